@@ -1,0 +1,117 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import express, { type ErrorRequestHandler, type Express } from 'express';
+import session from 'express-session';
+import helmet from 'helmet';
+import connectSessionSequelize from 'connect-session-sequelize';
+import type { Sequelize } from 'sequelize';
+import type { AppConfig } from './config';
+import { requireSameOrigin } from './auth/origin-check';
+import { createPassport } from './auth/passport';
+import { notFound, toHttpError } from './lib/errors';
+import { logError } from './lib/log';
+import { route } from './lib/route';
+import { auditRouter } from './modules/audit/audit.router';
+import { authRouter } from './modules/auth/auth.router';
+import { labProfileRouter } from './modules/lab-profile/lab-profile.router';
+import { usersRouter } from './modules/users/users.router';
+
+export type AppOptions = {
+  sequelize: Sequelize;
+  config: AppConfig;
+  /** Built client to serve; omitted in API tests. */
+  clientDir?: string;
+  /** Failed sign-ins allowed per client address per 15 minutes. */
+  loginAttemptsPerWindow?: number;
+  /** Periodically delete expired sessions (off in tests, whose databases live only as long as the test). */
+  expireSessions?: boolean;
+};
+
+export const JSON_BODY_LIMIT = '256kb';
+
+/** Builds the configured Express app without listening, so tests can drive it with supertest. */
+export function createApp(opts: AppOptions): Express {
+  const { sequelize, config } = opts;
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', false);
+
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        useDefaults: false,
+        directives: {
+          defaultSrc: ["'self'"],
+          scriptSrc: ["'self'"],
+          styleSrc: ["'self'"],
+          imgSrc: ["'self'", 'data:', 'blob:'],
+          fontSrc: ["'self'"],
+          connectSrc: ["'self'"],
+          objectSrc: ["'none'"],
+          frameSrc: ["'self'"],
+          baseUri: ["'self'"],
+          formAction: ["'self'"],
+          frameAncestors: ["'self'"],
+        },
+      },
+    }),
+  );
+
+  const SequelizeStore = connectSessionSequelize(session.Store);
+  const store = new SequelizeStore({
+    db: sequelize,
+    tableName: 'Sessions',
+    checkExpirationInterval: opts.expireSessions ? 15 * 60_000 : undefined,
+    expiration: 8 * 60 * 60_000,
+  });
+  if (!opts.expireSessions) store.stopExpiringSessions();
+
+  app.use('/api', requireSameOrigin(config.allowedOrigins));
+  app.use('/api', express.json({ limit: JSON_BODY_LIMIT }));
+  app.use(
+    '/api',
+    session({
+      name: 'cristae.sid',
+      secret: config.sessionSecret,
+      store,
+      resave: false,
+      saveUninitialized: false,
+      rolling: true,
+      cookie: {
+        httpOnly: true,
+        sameSite: 'lax',
+        secure: config.env === 'production',
+        maxAge: 8 * 60 * 60_000,
+      },
+    }),
+  );
+  const passport = createPassport();
+  app.use('/api', passport.initialize(), passport.session());
+
+  const health = express.Router();
+  route(health, 'GET /api/health', {}, (_in, _req, res) => {
+    res.json({ status: 'ok' });
+  });
+  app.use(health);
+  app.use(authRouter(passport, { loginAttemptsPerWindow: opts.loginAttemptsPerWindow ?? 20 }));
+  app.use(usersRouter(sequelize));
+  app.use(labProfileRouter(sequelize));
+  app.use(auditRouter());
+
+  app.use('/api', (req, _res, next) => next(notFound('API route', `${req.method} ${req.path}`)));
+
+  if (opts.clientDir && fs.existsSync(path.join(opts.clientDir, 'index.html'))) {
+    const indexHtml = path.join(opts.clientDir, 'index.html');
+    app.use(express.static(opts.clientDir, { index: false, maxAge: '1h' }));
+    app.get('/{*splat}', (_req, res) => res.sendFile(indexHtml));
+  }
+
+  const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
+    const { status, body } = toHttpError(err);
+    if (status >= 500) logError(err, `${req.method} ${req.originalUrl}`);
+    if (res.headersSent) return;
+    res.status(status).json(body);
+  };
+  app.use(errorHandler);
+  return app;
+}

@@ -1,0 +1,46 @@
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { createApp } from './app';
+import { loadConfig } from './config';
+import { initModels } from './db/models';
+import { migrate } from './db/migrate';
+import { seedDemoIfEmpty } from './db/seed/demo';
+import { openDatabase } from './db/sequelize';
+import { logError, logInfo } from './lib/log';
+
+const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
+
+async function main(): Promise<void> {
+  const config = loadConfig();
+  const sequelize = await openDatabase(config.databasePath);
+  initModels(sequelize);
+  const applied = await migrate(sequelize);
+  if (applied.length) logInfo('migrations applied', { applied });
+  if (await seedDemoIfEmpty(sequelize, config.demoPassword)) logInfo('demo data seeded (invented, fictitious)');
+
+  const app = createApp({ sequelize, config, clientDir: path.join(root, 'dist', 'client'), expireSessions: true });
+  const server = app.listen(config.port, () => {
+    logInfo(`Cristae is serving on http://localhost:${config.port}`);
+  });
+
+  const stop = (signal: string) => {
+    logInfo('shutting down', { signal });
+    server.close(() => {
+      void sequelize.close().finally(() => process.exit(0));
+    });
+    setTimeout(() => process.exit(0), 5000).unref();
+  };
+  process.on('SIGTERM', () => stop('SIGTERM'));
+  process.on('SIGINT', () => stop('SIGINT'));
+}
+
+process.on('unhandledRejection', (err) => {
+  logError(err, 'unhandledRejection');
+  process.exit(1);
+});
+process.on('uncaughtException', (err) => {
+  logError(err, 'uncaughtException');
+  process.exit(1);
+});
+
+void main();

@@ -1,0 +1,39 @@
+import {
+  DataTypes,
+  Model,
+  type CreationOptional,
+  type InferAttributes,
+  type InferCreationAttributes,
+  type Sequelize,
+} from 'sequelize';
+
+/** The single row (id 1) describing the performing laboratory, as reports print it. */
+export class LabProfileModel extends Model<InferAttributes<LabProfileModel>, InferCreationAttributes<LabProfileModel>> {
+  declare id: number;
+  declare name: string;
+  /** JSON array of address lines. */
+  declare addressLines: string;
+  declare accreditationNumber: string;
+  declare phone: string | null;
+  declare timeZone: string;
+  declare version: CreationOptional<number>;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+
+export function initLabProfileModel(sequelize: Sequelize): void {
+  LabProfileModel.init(
+    {
+      id: { type: DataTypes.INTEGER, primaryKey: true },
+      name: { type: DataTypes.STRING(160), allowNull: false },
+      addressLines: { type: DataTypes.TEXT, allowNull: false },
+      accreditationNumber: { type: DataTypes.STRING(80), allowNull: false },
+      phone: { type: DataTypes.STRING(40), allowNull: true },
+      timeZone: { type: DataTypes.STRING(60), allowNull: false },
+      version: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+      createdAt: DataTypes.DATE,
+      updatedAt: DataTypes.DATE,
+    },
+    { sequelize, tableName: 'lab_profiles', modelName: 'LabProfile' },
+  );
+}

@@ -1,0 +1,44 @@
+import {
+  DataTypes,
+  Model,
+  type CreationOptional,
+  type InferAttributes,
+  type InferCreationAttributes,
+  type Sequelize,
+} from 'sequelize';
+import type { Role } from '@/schemas/common';
+
+export class UserModel extends Model<InferAttributes<UserModel>, InferCreationAttributes<UserModel>> {
+  declare id: CreationOptional<number>;
+  declare email: string;
+  declare name: string;
+  declare title: string | null;
+  declare role: Role;
+  declare passwordHash: string;
+  declare active: CreationOptional<boolean>;
+  declare failedLogins: CreationOptional<number>;
+  declare lockedUntil: Date | null;
+  declare version: CreationOptional<number>;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+
+export function initUserModel(sequelize: Sequelize): void {
+  UserModel.init(
+    {
+      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      email: { type: DataTypes.STRING(254), allowNull: false, unique: true },
+      name: { type: DataTypes.STRING(120), allowNull: false },
+      title: { type: DataTypes.STRING(120), allowNull: true },
+      role: { type: DataTypes.STRING(20), allowNull: false },
+      passwordHash: { type: DataTypes.STRING(255), allowNull: false },
+      active: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
+      failedLogins: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+      lockedUntil: { type: DataTypes.DATE, allowNull: true },
+      version: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+      createdAt: DataTypes.DATE,
+      updatedAt: DataTypes.DATE,
+    },
+    { sequelize, tableName: 'users', modelName: 'User' },
+  );
+}

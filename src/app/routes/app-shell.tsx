@@ -1,0 +1,52 @@
+import { useQuery } from '@tanstack/react-query';
+import { NavLink, Outlet, useNavigate } from 'react-router-dom';
+import { Wordmark } from '@/components/ui/wordmark';
+import { canOpen, navigation, paths } from '@/config/paths';
+import { useSignOut } from '@/features/auth/api/sign-in';
+import { sessionQueries } from '@/features/auth/api/session-queries';
+import { roleLabels } from '@/features/accounts/components/role-labels';
+
+export function AppShell() {
+  const { data: user } = useQuery(sessionQueries.me());
+  const navigate = useNavigate();
+  const signOut = useSignOut({ onDone: () => navigate(paths.signIn.href()) });
+  if (!user) return null;
+  const items = navigation.filter((n) => canOpen(n.name, user.role));
+
+  return (
+    <div className="flex min-h-screen">
+      <nav aria-label="Main" className="sticky top-0 flex h-screen w-rail shrink-0 flex-col bg-matrix-900 px-4 py-5 text-matrix-100">
+        <Wordmark light className="mb-8 px-2" />
+        <ul className="flex flex-col gap-0.5">
+          {items.map((n) => (
+            <li key={n.name}>
+              <NavLink
+                to={paths[n.name].path}
+                end={n.name === 'cases'}
+                className={({ isActive }) =>
+                  `block rounded-md px-3 py-2 text-sm ${isActive ? 'bg-matrix-700 font-medium text-white' : 'hover:bg-matrix-800 hover:text-white'}`
+                }
+              >
+                {n.label}
+              </NavLink>
+            </li>
+          ))}
+        </ul>
+        <div className="mt-auto border-t border-matrix-700 px-2 pt-4 text-sm">
+          <p className="font-medium text-white" data-testid="signed-in-name">
+            {user.name}
+          </p>
+          <p className="text-xs text-matrix-300" data-testid="signed-in-role">
+            {roleLabels[user.role]}
+          </p>
+          <button type="button" className="mt-3 text-xs text-copper-300 underline hover:text-white" onClick={() => signOut.mutate()}>
+            Sign out
+          </button>
+        </div>
+      </nav>
+      <main className="min-w-0 flex-1 px-8 py-7">
+        <Outlet />
+      </main>
+    </div>
+  );
+}

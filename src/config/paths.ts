@@ -1,0 +1,50 @@
+import type { Role } from '@/schemas/common';
+
+const LAB: Role[] = ['technologist', 'director'];
+
+/** Every client route: its pattern, how to build a link to it, and who may open it. */
+export const paths = {
+  signIn: { path: '/sign-in', href: () => '/sign-in', roles: null },
+  home: { path: '/', href: () => '/', roles: null },
+  cases: { path: '/cases', href: (search = '') => `/cases${search}`, roles: LAB },
+  caseNew: { path: '/cases/new', href: () => '/cases/new', roles: LAB },
+  caseDetail: { path: '/cases/:id', href: (id: number) => `/cases/${id}`, roles: LAB },
+  calculator: { path: '/rate-check', href: () => '/rate-check', roles: LAB },
+  review: { path: '/review', href: () => '/review', roles: ['director'] as Role[] },
+  assayDefinitions: { path: '/assays', href: () => '/assays', roles: ['director'] as Role[] },
+  intervals: { path: '/intervals', href: () => '/intervals', roles: LAB },
+  myReports: { path: '/my-reports', href: () => '/my-reports', roles: ['clinician'] as Role[] },
+  adminUsers: { path: '/admin/accounts', href: () => '/admin/accounts', roles: ['admin'] as Role[] },
+  adminLab: { path: '/admin/laboratory', href: () => '/admin/laboratory', roles: ['admin'] as Role[] },
+  adminOutbox: { path: '/admin/outbox', href: () => '/admin/outbox', roles: ['admin'] as Role[] },
+  forbidden: { path: '/forbidden', href: () => '/forbidden', roles: null },
+} as const;
+
+export type PathName = keyof typeof paths;
+
+/** Where each role lands after signing in. */
+export const landingFor: Record<Role, string> = {
+  technologist: paths.cases.href(),
+  director: paths.review.href(),
+  clinician: paths.myReports.href(),
+  admin: paths.adminUsers.href(),
+};
+
+/** The navigation, in order; each entry shows only to the roles its route allows. */
+export const navigation: { name: PathName; label: string }[] = [
+  { name: 'review', label: 'Awaiting sign-out' },
+  { name: 'cases', label: 'Cases' },
+  { name: 'caseNew', label: 'Register a case' },
+  { name: 'calculator', label: 'Rate check' },
+  { name: 'intervals', label: 'Reference intervals' },
+  { name: 'assayDefinitions', label: 'Assay definitions' },
+  { name: 'myReports', label: 'Reports for my patients' },
+  { name: 'adminUsers', label: 'Accounts' },
+  { name: 'adminLab', label: 'Laboratory profile' },
+  { name: 'adminOutbox', label: 'Sent e-mail' },
+];
+
+export function canOpen(name: PathName, role: Role): boolean {
+  const roles = paths[name].roles as Role[] | null;
+  return roles === null || roles.includes(role);
+}

@@ -1,0 +1,172 @@
+import { useQuery } from '@tanstack/react-query';
+import { createColumnHelper, flexRender, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from '@tanstack/react-table';
+import { useMemo, useState } from 'react';
+import { Button } from '@/components/ui/button';
+import { Loading, Notice } from '@/components/ui/layout';
+import { ApiError } from '@/lib/api-client';
+import { roles, type Role } from '@/schemas/common';
+import { passwordSchema, type UserAccount } from '@/schemas/user';
+import { accountQueries } from '../api/account-queries';
+import { useResetPassword, useUpdateAccount } from '../api/change-account';
+import { roleLabels } from './role-labels';
+
+const col = createColumnHelper<UserAccount>();
+
+function AccountActions({ account, onMessage }: { account: UserAccount; onMessage: (tone: 'error' | 'success', text: string) => void }) {
+  const update = useUpdateAccount();
+  const reset = useResetPassword();
+  const [resetting, setResetting] = useState(false);
+  const [password, setPassword] = useState('');
+  const [resetError, setResetError] = useState<string | null>(null);
+  const fail = (err: unknown) => onMessage('error', err instanceof ApiError ? err.message : 'The change was not saved');
+
+  return (
+    <div className="flex flex-wrap items-center gap-2">
+      <label className="sr-only" htmlFor={`role-${account.id}`}>
+        Role of {account.name}
+      </label>
+      <select
+        id={`role-${account.id}`}
+        className="rounded border border-paper-line bg-paper-raised px-1.5 py-1 text-sm"
+        value={account.role}
+        onChange={(e) =>
+          update.mutate(
+            { id: account.id, input: { role: e.target.value as Role, version: account.version } },
+            { onSuccess: (a) => onMessage('success', `${a.name} is now ${roleLabels[a.role].toLowerCase()}.`), onError: fail },
+          )
+        }
+      >
+        {roles.map((r) => (
+          <option key={r} value={r}>
+            {roleLabels[r]}
+          </option>
+        ))}
+      </select>
+      <Button
+        variant="secondary"
+        onClick={() =>
+          update.mutate(
+            { id: account.id, input: { active: !account.active, version: account.version } },
+            { onSuccess: (a) => onMessage('success', `${a.name} ${a.active ? 'can sign in again' : 'can no longer sign in'}.`), onError: fail },
+          )
+        }
+      >
+        {account.active ? 'Deactivate' : 'Reactivate'}
+      </Button>
+      {resetting ? (
+        <form
+          className="flex items-center gap-1"
+          onSubmit={(e) => {
+            e.preventDefault();
+            const parsed = passwordSchema.safeParse(password);
+            if (!parsed.success) return setResetError(parsed.error.issues[0]?.message ?? 'Not a valid password');
+            reset.mutate(
+              { id: account.id, input: { password } },
+              {
+                onSuccess: () => {
+                  setResetting(false);
+                  setPassword('');
+                  setResetError(null);
+                  onMessage('success', `New password set for ${account.name}; any lock-out is lifted.`);
+                },
+                onError: fail,
+              },
+            );
+          }}
+        >
+          <label className="sr-only" htmlFor={`pw-${account.id}`}>
+            New password for {account.name}
+          </label>
+          <input
+            id={`pw-${account.id}`}
+            type="password"
+            autoComplete="new-password"
+            className="w-40 rounded border border-paper-line px-1.5 py-1 text-sm"
+            value={password}
+            onChange={(e) => setPassword(e.target.value)}
+            aria-invalid={resetError ? true : undefined}
+          />
+          <Button type="submit" variant="quiet">
+            Set
+          </Button>
+          {resetError ? <span className="text-xs text-below">{resetError}</span> : null}
+        </form>
+      ) : (
+        <Button variant="quiet" onClick={() => setResetting(true)}>
+          Reset password
+        </Button>
+      )}
+    </div>
+  );
+}
+
+export function AccountsTable() {
+  const { data, isPending, error } = useQuery(accountQueries.list());
+  const [sorting, setSorting] = useState<SortingState>([{ id: 'name', desc: false }]);
+  const [message, setMessage] = useState<{ tone: 'error' | 'success'; text: string } | null>(null);
+
+  const columns = useMemo(
+    () => [
+      col.accessor('name', { header: 'Name' }),
+      col.accessor('email', { header: 'E-mail' }),
+      col.accessor('title', { header: 'Title', cell: (c) => c.getValue() ?? '—' }),
+      col.accessor((a) => (!a.active ? 'Deactivated' : a.lockedUntil && new Date(a.lockedUntil) > new Date() ? 'Locked out' : 'Active'), {
+        id: 'status',
+        header: 'Status',
+      }),
+      col.display({
+        id: 'actions',
+        header: 'Role and access',
+        cell: (c) => <AccountActions account={c.row.original} onMessage={(tone, text) => setMessage({ tone, text })} />,
+      }),
+    ],
+    [],
+  );
+  const table = useReactTable({
+    data: data ?? [],
+    columns,
+    state: { sorting },
+    onSortingChange: setSorting,
+    getCoreRowModel: getCoreRowModel(),
+    getSortedRowModel: getSortedRowModel(),
+  });
+
+  if (isPending) return <Loading what="Loading accounts" />;
+  if (error) return <Notice tone="error">{error.message}</Notice>;
+  return (
+    <div className="flex flex-col gap-3">
+      {message ? <Notice tone={message.tone}>{message.text}</Notice> : null}
+      <table className="w-full text-left text-sm">
+        <thead className="border-b border-paper-line text-ink-soft">
+          {table.getHeaderGroups().map((hg) => (
+            <tr key={hg.id}>
+              {hg.headers.map((h) => (
+                <th key={h.id} className="py-2 pr-3 font-medium">
+                  {h.column.getCanSort() ? (
+                    <button type="button" className="hover:text-matrix-700" onClick={h.column.getToggleSortingHandler()}>
+                      {flexRender(h.column.columnDef.header, h.getContext())}
+                      {{ asc: ' ↑', desc: ' ↓' }[h.column.getIsSorted() as string] ?? ''}
+                    </button>
+                  ) : (
+                    flexRender(h.column.columnDef.header, h.getContext())
+                  )}
+                </th>
+              ))}
+            </tr>
+          ))}
+        </thead>
+        <tbody>
+          {table.getRowModel().rows.map((row) => (
+            <tr key={row.id} className="border-b border-paper-line/70 align-middle">
+              {row.getVisibleCells().map((cell) => (
+                <td key={cell.id} className="py-2 pr-3">
+                  {flexRender(cell.column.columnDef.cell, cell.getContext())}
+                </td>
+              ))}
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}
