@@ -21,7 +21,7 @@ export function SignInForm({ onSignedIn }: { onSignedIn: (user: User) => void })
         signIn.mutate(values, { onError: (err) => setFormError(applyServerError(form, err)) });
       })}
     >
-      <TextField label="E-mail address" type="email" autoComplete="username" autoFocus registration={form.register('email')} error={errors.email?.message} />
+      <TextField label="E-mail address" type="email" autoComplete="username" registration={form.register('email')} error={errors.email?.message} />
       <TextField label="Password" type="password" autoComplete="current-password" registration={form.register('password')} error={errors.password?.message} />
       {formError ? <Notice tone="error">{formError}</Notice> : null}
       <Button type="submit" disabled={signIn.isPending}>
