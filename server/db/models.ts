@@ -1,13 +1,27 @@
 import type { Sequelize } from 'sequelize';
+import { initAssayDefinitionModel } from '../modules/assay-definitions/assay-definition.model';
 import { initAuditEventModel } from '../modules/audit/audit.model';
+import { initCaseModels } from '../modules/cases/case.model';
 import { initLabProfileModel } from '../modules/lab-profile/lab-profile.model';
+import { initMeasurementModel } from '../modules/measurements/measurement.model';
+import { initPatientModel } from '../modules/patients/patient.model';
+import { initPlateMapModel } from '../modules/plate-maps/plate-map.model';
+import { initSpecimenModels } from '../modules/specimens/specimen.model';
+import { initUploadModel } from '../modules/uploads/upload.model';
 import { initUserModel } from '../modules/users/user.model';
 import { associate } from './associate';
 
-/** Binds every model class to this database. Called once per database, by createApp and the start-up script. */
+/** Binds every model class to this database. Called once per database, by createApp's callers. */
 export function initModels(sequelize: Sequelize): void {
   initUserModel(sequelize);
   initLabProfileModel(sequelize);
   initAuditEventModel(sequelize);
+  initAssayDefinitionModel(sequelize);
+  initPatientModel(sequelize);
+  initCaseModels(sequelize);
+  initSpecimenModels(sequelize);
+  initUploadModel(sequelize);
+  initPlateMapModel(sequelize);
+  initMeasurementModel(sequelize);
   associate();
 }

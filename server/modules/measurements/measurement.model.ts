@@ -1,0 +1,54 @@
+import {
+  DataTypes,
+  Model,
+  type CreationOptional,
+  type InferAttributes,
+  type InferCreationAttributes,
+  type Sequelize,
+} from 'sequelize';
+
+/** One assay replicate on one specimen: its inputs as entered and the engine's result, with the definition version. */
+export class MeasurementModel extends Model<InferAttributes<MeasurementModel>, InferCreationAttributes<MeasurementModel>> {
+  declare id: CreationOptional<number>;
+  declare caseId: number;
+  declare specimenId: number;
+  declare assay: string;
+  declare replicate: number;
+  declare inputMode: string;
+  declare inputs: string;
+  declare result: string;
+  declare definitionId: number;
+  declare definitionVersion: number;
+  declare activity: number | null;
+  declare flags: CreationOptional<string>;
+  declare uploadId: number | null;
+  declare createdById: number | null;
+  declare version: CreationOptional<number>;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+
+export function initMeasurementModel(sequelize: Sequelize): void {
+  MeasurementModel.init(
+    {
+      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      caseId: { type: DataTypes.INTEGER, allowNull: false },
+      specimenId: { type: DataTypes.INTEGER, allowNull: false },
+      assay: { type: DataTypes.STRING(10), allowNull: false },
+      replicate: { type: DataTypes.INTEGER, allowNull: false },
+      inputMode: { type: DataTypes.STRING(10), allowNull: false },
+      inputs: { type: DataTypes.TEXT, allowNull: false },
+      result: { type: DataTypes.TEXT, allowNull: false },
+      definitionId: { type: DataTypes.INTEGER, allowNull: false },
+      definitionVersion: { type: DataTypes.INTEGER, allowNull: false },
+      activity: { type: DataTypes.FLOAT, allowNull: true },
+      flags: { type: DataTypes.TEXT, allowNull: false, defaultValue: '[]' },
+      uploadId: { type: DataTypes.INTEGER, allowNull: true },
+      createdById: { type: DataTypes.INTEGER, allowNull: true },
+      version: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+      createdAt: DataTypes.DATE,
+      updatedAt: DataTypes.DATE,
+    },
+    { sequelize, tableName: 'measurements', modelName: 'Measurement' },
+  );
+}

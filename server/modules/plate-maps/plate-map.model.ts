@@ -1,0 +1,34 @@
+import {
+  DataTypes,
+  Model,
+  type CreationOptional,
+  type InferAttributes,
+  type InferCreationAttributes,
+  type Sequelize,
+} from 'sequelize';
+
+/** A reusable plate layout: which well holds which specimen, assay, trace role and replicate. */
+export class PlateMapModel extends Model<InferAttributes<PlateMapModel>, InferCreationAttributes<PlateMapModel>> {
+  declare id: CreationOptional<number>;
+  declare name: string;
+  declare wells: string;
+  declare createdById: number | null;
+  declare version: CreationOptional<number>;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+
+export function initPlateMapModel(sequelize: Sequelize): void {
+  PlateMapModel.init(
+    {
+      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      name: { type: DataTypes.STRING(120), allowNull: false, unique: true },
+      wells: { type: DataTypes.TEXT, allowNull: false },
+      createdById: { type: DataTypes.INTEGER, allowNull: true },
+      version: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+      createdAt: DataTypes.DATE,
+      updatedAt: DataTypes.DATE,
+    },
+    { sequelize, tableName: 'plate_maps', modelName: 'PlateMap' },
+  );
+}

@@ -1,0 +1,205 @@
+import { z } from 'zod';
+import { specimenTypeSchema } from './common';
+
+/** The workflow states, trade terms kept as the brief names them. */
+export const caseStates = ['received', 'in_assay', 'awaiting_review', 'final', 'corrected', 'cancelled'] as const;
+export const caseStateSchema = z.enum(caseStates);
+export type CaseState = z.infer<typeof caseStateSchema>;
+export const caseStateLabels: Record<CaseState, string> = {
+  received: 'Received',
+  in_assay: 'In assay',
+  awaiting_review: 'Awaiting review',
+  final: 'Final',
+  corrected: 'Corrected',
+  cancelled: 'Cancelled',
+};
+
+export const priorities = ['routine', 'urgent'] as const;
+export const prioritySchema = z.enum(priorities);
+export type Priority = z.infer<typeof prioritySchema>;
+
+export const sexes = ['female', 'male', 'other', 'unknown'] as const;
+export const sexSchema = z.enum(sexes);
+
+export const transportConditions = ['liquid_nitrogen', 'dry_ice', 'chilled', 'ambient', 'thawed', 'unknown'] as const;
+export const transportConditionSchema = z.enum(transportConditions);
+export const transportConditionLabels: Record<z.infer<typeof transportConditionSchema>, string> = {
+  liquid_nitrogen: 'Frozen in liquid nitrogen',
+  dry_ice: 'Frozen on dry ice',
+  chilled: 'Chilled (2–8 °C)',
+  ambient: 'Ambient temperature',
+  thawed: 'Arrived thawed',
+  unknown: 'Not stated',
+};
+
+const isoDate = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use the date format YYYY-MM-DD');
+/** A date-time as the browser's datetime-local control gives it, or a full ISO string with zone. */
+const dateTime = z
+  .string()
+  .min(1, 'Date and time are required')
+  .refine((s) => !Number.isNaN(Date.parse(s)), 'Not a valid date and time');
+
+/* ---------------------------------------------------------------- patients */
+
+export const patientSchema = z.object({
+  id: z.number().int(),
+  labPatientId: z.string(),
+  familyName: z.string(),
+  givenName: z.string(),
+  dateOfBirth: z.string(),
+  sex: sexSchema,
+  version: z.number().int(),
+});
+export type Patient = z.infer<typeof patientSchema>;
+
+export const createPatientInputSchema = z
+  .object({
+    labPatientId: z
+      .string()
+      .trim()
+      .min(1, 'Lab patient ID is required')
+      .max(40, 'Use at most 40 characters')
+      .regex(/^[A-Za-z0-9][A-Za-z0-9._-]*$/, 'Use letters, digits, dot, dash or underscore'),
+    familyName: z.string().trim().min(1, 'Family name is required').max(80),
+    givenName: z.string().trim().min(1, 'Given name is required').max(80),
+    dateOfBirth: isoDate.refine((s) => s <= new Date().toISOString().slice(0, 10), 'Date of birth cannot be in the future'),
+    sex: sexSchema,
+  })
+  .strict();
+export type CreatePatientInput = z.infer<typeof createPatientInputSchema>;
+
+export const patientSearchQuerySchema = z.object({ q: z.string().trim().max(80).optional() }).strict();
+
+/* ---------------------------------------------------------------- specimens */
+
+export const specimenSchema = z.object({
+  id: z.number().int(),
+  caseId: z.number().int(),
+  label: z.string(),
+  type: specimenTypeSchema,
+  source: z.string(),
+  collectedAt: z.string().nullable(),
+  receivedAt: z.string(),
+  transportCondition: transportConditionSchema,
+  wetWeightMg: z.number().nullable(),
+  accepted: z.boolean(),
+  rejectionReason: z.string().nullable(),
+  proteinMgPerMl: z.number().nullable(),
+  proteinSource: z.string().nullable(),
+  version: z.number().int(),
+});
+export type Specimen = z.infer<typeof specimenSchema>;
+
+export const receiveSpecimenInputSchema = z
+  .object({
+    type: specimenTypeSchema,
+    source: z.string().trim().max(160, 'Use at most 160 characters'),
+    collectedAt: dateTime.nullable(),
+    receivedAt: dateTime,
+    transportCondition: transportConditionSchema,
+    wetWeightMg: z.number().positive('Wet weight must be above 0').max(100000).nullable(),
+    accepted: z.boolean(),
+    rejectionReason: z.string().trim().max(200).nullable(),
+  })
+  .strict()
+  .refine((s) => s.accepted || (s.rejectionReason && s.rejectionReason.length > 0), {
+    path: ['rejectionReason'],
+    message: 'Give the reason the specimen is rejected',
+  })
+  .refine((s) => !s.collectedAt || Date.parse(s.collectedAt) <= Date.parse(s.receivedAt), {
+    path: ['collectedAt'],
+    message: 'Collection cannot be after receipt',
+  });
+export type ReceiveSpecimenInput = z.infer<typeof receiveSpecimenInputSchema>;
+
+export const setProteinInputSchema = z
+  .object({
+    proteinMgPerMl: z.number().positive('Protein must be above 0').max(1000),
+    proteinSource: z.string().trim().min(1).max(200),
+    version: z.number().int().min(0),
+  })
+  .strict();
+export type SetProteinInput = z.infer<typeof setProteinInputSchema>;
+
+export const rejectionReasonSchema = z.object({ id: z.number().int(), text: z.string(), active: z.boolean() });
+export type RejectionReason = z.infer<typeof rejectionReasonSchema>;
+export const createRejectionReasonInputSchema = z
+  .object({ text: z.string().trim().min(3, 'Give a reason of at least 3 characters').max(200) })
+  .strict();
+
+/* ---------------------------------------------------------------- cases */
+
+export const caseSummarySchema = z.object({
+  id: z.number().int(),
+  accession: z.string(),
+  state: caseStateSchema,
+  patientName: z.string(),
+  specimenTypes: z.array(specimenTypeSchema),
+  receivedAt: z.string().nullable(),
+  priority: prioritySchema,
+  patternCode: z.string().nullable(),
+  referringClinicianName: z.string().nullable(),
+});
+export type CaseSummary = z.infer<typeof caseSummarySchema>;
+
+export const caseDetailSchema = z.object({
+  id: z.number().int(),
+  accession: z.string(),
+  state: caseStateSchema,
+  priority: prioritySchema,
+  clinicalIndication: z.string(),
+  patient: patientSchema,
+  referringClinician: z.object({ id: z.number().int(), name: z.string(), email: z.string() }),
+  specimens: z.array(specimenSchema),
+  cancelReason: z.string().nullable(),
+  returnReason: z.string().nullable(),
+  createdAt: z.string(),
+  version: z.number().int(),
+});
+export type CaseDetail = z.infer<typeof caseDetailSchema>;
+
+export const createCaseInputSchema = z
+  .object({
+    patientId: z.number({ error: 'Choose or register the patient' }).int().positive('Choose or register the patient'),
+    referringClinicianId: z.number({ error: 'Choose the referring clinician' }).int().positive('Choose the referring clinician'),
+    clinicalIndication: z.string().trim().min(3, 'Describe the clinical indication').max(2000),
+    priority: prioritySchema,
+  })
+  .strict();
+export type CreateCaseInput = z.infer<typeof createCaseInputSchema>;
+
+export const updateCaseInputSchema = createCaseInputSchema
+  .pick({ referringClinicianId: true, clinicalIndication: true, priority: true })
+  .partial()
+  .extend({ version: z.number().int().min(0) })
+  .strict();
+export type UpdateCaseInput = z.infer<typeof updateCaseInputSchema>;
+
+export const reasonInputSchema = z
+  .object({ reason: z.string().trim().min(3, 'Give a reason').max(1000), version: z.number().int().min(0) })
+  .strict();
+export type ReasonInput = z.infer<typeof reasonInputSchema>;
+
+export const versionInputSchema = z.object({ version: z.number().int().min(0) }).strict();
+
+export const caseSortFields = ['accession', 'receivedAt', 'state', 'patientName', 'priority'] as const;
+
+/** The list query. API contract: page, pageSize (at most 200), q, state; the rest are Cristae's filters. */
+export const caseListQuerySchema = z
+  .object({
+    page: z.coerce.number().int().min(1, 'page starts at 1').optional(),
+    pageSize: z.coerce.number().int().min(1).max(200, 'pageSize is at most 200').optional(),
+    q: z.string().trim().max(80).optional(),
+    state: caseStateSchema.optional(),
+    specimenType: specimenTypeSchema.optional(),
+    pattern: z.string().trim().max(40).optional(),
+    from: isoDate.optional(),
+    to: isoDate.optional(),
+    sort: z.enum(caseSortFields).optional(),
+    dir: z.enum(['asc', 'desc']).optional(),
+  })
+  .strict();
+export type CaseListQuery = z.infer<typeof caseListQuerySchema>;
+
+export const caseListSchema = z.object({ items: z.array(caseSummarySchema), total: z.number().int() });
+export type CaseList = z.infer<typeof caseListSchema>;
