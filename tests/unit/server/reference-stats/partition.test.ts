@@ -1,0 +1,76 @@
+import * as ss from 'simple-statistics';
+import { describe, expect, it } from 'vitest';
+import { ReferenceStatsInputError } from '../../../../server/domain/reference-stats/errors';
+import { checkPartition, summarizeGroup } from '../../../../server/domain/reference-stats/partition';
+
+// Harris EK & Boyd JC, Clin Chem 1990;36:265–270 [confirmed]: z = |x̄₁ − x̄₂| / √(s₁²/n₁ + s₂²/n₂),
+// partition when z > 3·√((n₁ + n₂)/240); SD ratio > 1.5 also partitions [from memory].
+
+describe('checkPartition', () => {
+  it('on a hand-worked example partitions because the means differ', () => {
+    // n₁ = 60, x̄₁ = 100, s₁ = 20; n₂ = 80, x̄₂ = 112, s₂ = 25.
+    // s₁²/n₁ = 400/60 = 6.6667; s₂²/n₂ = 625/80 = 7.8125; sum 14.4792; √ = 3.8052; z = 12/3.8052 = 3.1536.
+    // critical = 3·√(140/240) = 3·√0.58333 = 3 × 0.76376 = 2.2913. z > critical → partition.
+    // SD ratio 25/20 = 1.25 ≤ 1.5.
+    const r = checkPartition(
+      { label: 'under 5 y', n: 60, mean: 100, sd: 20 },
+      { label: '5 y and over', n: 80, mean: 112, sd: 25 },
+    );
+    expect(r.z).toBeCloseTo(3.1536, 3);
+    expect(r.zCritical).toBeCloseTo(2.2913, 3);
+    expect(r.sdRatio).toBeCloseTo(1.25, 12);
+    expect(r.decision).toBe('partition');
+    expect(r.reason).toMatch(/means differ/);
+    expect(r.reason).not.toMatch(/SD of/);
+  });
+
+  it('on a hand-worked example combines when neither rule fires', () => {
+    // n = 120 each, means 100 and 103, SD 15 each: SE = √(225/120 × 2) = √3.75 = 1.9365; z = 3/1.9365 = 1.5492;
+    // critical = 3·√(240/240) = 3. SD ratio 1.
+    const r = checkPartition(
+      { label: 'A', n: 120, mean: 100, sd: 15 },
+      { label: 'B', n: 120, mean: 103, sd: 15 },
+    );
+    expect(r.z).toBeCloseTo(1.5492, 3);
+    expect(r.zCritical).toBeCloseTo(3, 12);
+    expect(r.decision).toBe('combine');
+  });
+
+  it('on a hand-worked example partitions on the SD ratio alone', () => {
+    // n = 100 each, means 50 and 50.5, SDs 10 and 16: SE = √(1 + 2.56) = 1.8868; z = 0.265;
+    // critical = 3·√(200/240) = 2.7386; SD ratio 1.6 > 1.5 → partition.
+    const r = checkPartition(
+      { label: 'girls', n: 100, mean: 50, sd: 10 },
+      { label: 'boys', n: 100, mean: 50.5, sd: 16 },
+    );
+    expect(r.z).toBeCloseTo(0.265, 3);
+    expect(r.zCritical).toBeCloseTo(2.7386, 3);
+    expect(r.sdRatio).toBeCloseTo(1.6, 12);
+    expect(r.decision).toBe('partition');
+    expect(r.reason).toMatch(/SD of "boys" is 1\.60 times/);
+  });
+
+  it('rejects a group with zero spread, naming that group', () => {
+    try {
+      checkPartition({ label: 'A', n: 10, mean: 5, sd: 1 }, { label: 'B', n: 10, mean: 5, sd: 0 });
+      expect.unreachable();
+    } catch (error) {
+      expect(error).toBeInstanceOf(ReferenceStatsInputError);
+      expect((error as ReferenceStatsInputError).field).toBe('b.sd');
+    }
+  });
+});
+
+describe('summarizeGroup', () => {
+  it('matches simple-statistics mean and sampleStandardDeviation', () => {
+    const values = [12.1, 14.8, 9.7, 11.2, 13.3, 10.9];
+    const g = summarizeGroup('band', values);
+    expect(g.n).toBe(6);
+    expect(g.mean).toBeCloseTo(ss.mean(values), 12);
+    expect(g.sd).toBeCloseTo(ss.sampleStandardDeviation(values), 12);
+  });
+
+  it('rejects a group of one value', () => {
+    expect(() => summarizeGroup('infants', [3])).toThrow(/"infants" needs at least 2 values/);
+  });
+});
