@@ -1,6 +1,8 @@
 import { ZodError } from 'zod';
 import { ForeignKeyConstraintError, UniqueConstraintError, ValidationError as SequelizeValidationError } from 'sequelize';
 import type { ErrorBody, ErrorCode, FileIssue } from '@/schemas/error';
+import { PlateImportError } from '../domain/plate-import/errors';
+import { ControlCsvError, ReferenceStatsInputError } from '../domain/reference-stats/errors';
 
 const defaultStatus: Record<ErrorCode, number> = {
   VALIDATION_FAILED: 400,
@@ -89,6 +91,20 @@ export function toHttpError(err: unknown): { status: number; body: ErrorBody } {
         ...(err.issues ? { issues: err.issues } : {}),
       }),
     };
+  }
+  if (err instanceof PlateImportError) {
+    const issues = err.issues.map((i) => ({
+      row: i.row,
+      column: i.column === null ? null : i.columnNumber ? `${i.column} (column ${i.columnNumber})` : i.column,
+      message: i.message,
+    }));
+    return { status: 400, body: envelope('FILE_REJECTED', err.message, { issues }) };
+  }
+  if (err instanceof ControlCsvError) {
+    return { status: 400, body: envelope('FILE_REJECTED', err.message, { issues: err.issues }) };
+  }
+  if (err instanceof ReferenceStatsInputError) {
+    return { status: 400, body: envelope('VALIDATION_FAILED', err.message, { fields: { [err.field]: err.message } }) };
   }
   if (err instanceof ZodError) {
     return { status: 400, body: envelope('VALIDATION_FAILED', 'Some fields are not valid', { fields: zodFields(err) }) };
