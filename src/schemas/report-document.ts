@@ -1,0 +1,268 @@
+import { z } from 'zod';
+import { assayCodeSchema, measureSchema, specimenTypeSchema } from './common';
+
+/**
+ * Everything the signed interpretive report prints, as one plain object. The PDF renderer reads only
+ * this; whoever builds it (the report service) copies frozen values at signing time, so the same
+ * document always renders to the same bytes.
+ */
+
+/** The caution every Cristae report carries (product brief, in Cristae's own words). */
+export const reportCaution =
+  'These results are laboratory measurements. They support, and do not replace, a diagnosis made by a ' +
+  'licensed clinician. How they are read depends on the specimen, how it was collected, transported and ' +
+  'handled, and on the clinical picture. Local regulations and the laboratory’s accreditation rules ' +
+  'govern how results are reported and released.';
+
+const text = z.string().trim().min(1, 'Required');
+const optionalText = z.string().trim().min(1, 'Must not be blank when given').nullable();
+const isoDate = z.iso.date({ message: 'Expected a date as YYYY-MM-DD' });
+const isoDateTime = z.iso.datetime({
+  offset: true,
+  message: 'Expected an ISO 8601 date-time with Z or an offset, e.g. 2025-03-14T09:30:00Z',
+});
+
+function isValidTimeZone(zone: string): boolean {
+  try {
+    new Intl.DateTimeFormat('en', { timeZone: zone });
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+export const reportLaboratorySchema = z.object({
+  name: text,
+  addressLines: z.array(text).min(1, 'At least one address line').max(6, 'At most 6 address lines'),
+  accreditationNumber: text,
+  /** IANA zone used to print date-times (receipt, signature); UTC when absent. */
+  timeZone: z
+    .string()
+    .refine(isValidTimeZone, { message: 'Unknown IANA time zone, e.g. Europe/Amsterdam' })
+    .optional(),
+});
+
+export const reportSexSchema = z.enum(['female', 'male', 'other', 'unknown']);
+export const reportSexLabels: Record<z.infer<typeof reportSexSchema>, string> = {
+  female: 'Female',
+  male: 'Male',
+  other: 'Other',
+  unknown: 'Not stated',
+};
+
+export const reportPatientSchema = z.object({
+  name: text,
+  labPatientId: text,
+  dateOfBirth: isoDate,
+  sex: reportSexSchema,
+});
+
+export const reportCaseSchema = z.object({
+  accession: text,
+  referringClinicianName: text,
+  clinicalIndication: text,
+  receivedAt: isoDateTime,
+  /** A date when only the day of collection is known; null when it was not recorded. */
+  collectedAt: z.union([isoDate, isoDateTime]).nullable(),
+});
+
+export const reportSpecimenSchema = z.object({
+  type: specimenTypeSchema,
+  /** Source and description, e.g. 'Left vastus lateralis, open biopsy, 48 mg'. */
+  description: text,
+  conditionOnReceipt: text,
+  accepted: z.boolean(),
+  rejectionReason: optionalText,
+  /** What was done with a rejected specimen (discarded, kept, returned); CLIA 493.1291(c)(7). */
+  disposition: optionalText,
+});
+
+export const resultStatusSchema = z.enum(['below', 'within', 'above', 'not_compared']);
+export const criterionBandSchema = z.enum(['major', 'minor']);
+
+export const reportResultSchema = z.object({
+  assay: assayCodeSchema,
+  assayName: text,
+  measure: measureSchema,
+  value: z.number().finite().nullable(),
+  /** Printed as given, e.g. 'nmol/min/mg protein' or 'ratio'. */
+  unit: text,
+  referenceLower: z.number().finite().nullable(),
+  referenceUpper: z.number().finite().nullable(),
+  referenceMean: z.number().finite().nullable(),
+  intervalLabel: text,
+  intervalVersion: z.number().int().positive(),
+  status: resultStatusSchema,
+  pctOfMean: z.number().finite().nullable(),
+  criterionBand: criterionBandSchema.nullable(),
+  flags: z.array(text),
+  /** Reporting precision set by the assay definition; significant-figure rule when absent. */
+  decimals: z.number().int().min(0).max(6).optional(),
+});
+
+export const reportGraphicBarSchema = z.object({
+  assay: assayCodeSchema,
+  pctOfMeanRatioCs: z.number().finite().min(0).nullable(),
+  pctOfMeanRatioCii: z.number().finite().min(0).nullable(),
+});
+
+export const reportGraphicSchema = z.object({
+  bars: z.array(reportGraphicBarSchema),
+  /** Shading of the criterion bands, from the director-approved rule set; null prints no shading. */
+  criterionBands: z
+    .object({
+      majorBelowPct: z.number().positive().max(100),
+      minorBelowPct: z.number().positive().max(100),
+      ruleSetLabel: text,
+    })
+    .refine((b) => b.majorBelowPct < b.minorBelowPct, {
+      message: 'majorBelowPct must be below minorBelowPct',
+      path: ['majorBelowPct'],
+    })
+    .nullable(),
+});
+
+export const reportMethodsSchema = z.object({
+  /** Brief method and constant sources, e.g. 'Beer–Lambert, ε NADH 6.2 mM⁻¹cm⁻¹ at 340 nm'. */
+  summary: text,
+  definitions: z.array(
+    z.object({
+      assay: assayCodeSchema,
+      version: z.number().int().positive(),
+      description: text,
+    }),
+  ),
+});
+
+export const reportSignatureSchema = z.object({
+  signerName: text,
+  signerTitle: text,
+  signedAt: isoDateTime,
+  /** The meaning of the signature (21 CFR Part 11), e.g. 'Reviewed and approved for release'. */
+  meaning: text,
+});
+
+export const reportStatusSchema = z.enum(['final', 'corrected']);
+
+export const reportMetaSchema = z.object({
+  version: z.number().int().positive(),
+  status: reportStatusSchema,
+  reportDate: isoDate,
+  supersedesVersion: z.number().int().positive().nullable(),
+  correctionReason: optionalText,
+  changesSummary: optionalText,
+});
+
+export const reportDocumentSchema = z
+  .object({
+    laboratory: reportLaboratorySchema,
+    patient: reportPatientSchema,
+    case: reportCaseSchema,
+    specimen: reportSpecimenSchema,
+    results: z.array(reportResultSchema),
+    graphic: reportGraphicSchema,
+    /** Null when there is nothing to summarise (e.g. a rejected specimen). */
+    patternSummary: optionalText,
+    interpretation: text,
+    methods: reportMethodsSchema,
+    signature: reportSignatureSchema,
+    report: reportMetaSchema,
+  })
+  .superRefine((doc, ctx) => {
+    const { report, specimen } = doc;
+    if (report.status === 'corrected') {
+      if (report.supersedesVersion === null) {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['report', 'supersedesVersion'],
+          message: 'A corrected report must name the version it supersedes',
+        });
+      } else if (report.supersedesVersion >= report.version) {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['report', 'supersedesVersion'],
+          message: 'Must be an earlier version than report.version',
+        });
+      }
+      for (const key of ['correctionReason', 'changesSummary'] as const) {
+        if (report[key] === null) {
+          ctx.addIssue({
+            code: 'custom',
+            path: ['report', key],
+            message: 'Required for a corrected report',
+          });
+        }
+      }
+    } else {
+      for (const key of ['supersedesVersion', 'correctionReason', 'changesSummary'] as const) {
+        if (report[key] !== null) {
+          ctx.addIssue({
+            code: 'custom',
+            path: ['report', key],
+            message: 'Only a corrected report has this; use null for a final report',
+          });
+        }
+      }
+    }
+    if (specimen.accepted) {
+      for (const key of ['rejectionReason', 'disposition'] as const) {
+        if (specimen[key] !== null) {
+          ctx.addIssue({
+            code: 'custom',
+            path: ['specimen', key],
+            message: 'Only a rejected specimen has this; use null for an accepted specimen',
+          });
+        }
+      }
+    } else {
+      for (const key of ['rejectionReason', 'disposition'] as const) {
+        if (specimen[key] === null) {
+          ctx.addIssue({
+            code: 'custom',
+            path: ['specimen', key],
+            message: 'Required for a rejected specimen',
+          });
+        }
+      }
+      if (doc.results.length > 0) {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['results'],
+          message: 'A rejected specimen has no results',
+        });
+      }
+    }
+    const seen = new Set<string>();
+    doc.results.forEach((r, i) => {
+      const key = `${r.assay}/${r.measure}`;
+      if (seen.has(key)) {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['results', i],
+          message: `Duplicate result for ${r.assay} ${r.measure}`,
+        });
+      }
+      seen.add(key);
+      if (r.referenceLower !== null && r.referenceUpper !== null && r.referenceLower > r.referenceUpper) {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['results', i, 'referenceLower'],
+          message: 'Lower reference limit is above the upper limit',
+        });
+      }
+      if (r.value === null && r.status !== 'not_compared') {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['results', i, 'status'],
+          message: "A result without a value must have status 'not_compared'",
+        });
+      }
+    });
+  });
+
+export type ReportDocument = z.infer<typeof reportDocumentSchema>;
+export type ReportResult = z.infer<typeof reportResultSchema>;
+export type ReportGraphic = z.infer<typeof reportGraphicSchema>;
+export type ReportGraphicBar = z.infer<typeof reportGraphicBarSchema>;
+export type ResultStatus = z.infer<typeof resultStatusSchema>;
+export type ReportSex = z.infer<typeof reportSexSchema>;

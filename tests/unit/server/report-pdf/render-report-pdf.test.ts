@@ -1,0 +1,423 @@
+import { createHash } from 'node:crypto';
+import { mkdirSync, writeFileSync } from 'node:fs';
+import path from 'node:path';
+import { getDocument, PDFDateString } from 'pdfjs-dist/legacy/build/pdf.mjs';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { specimenTypeLabels } from '@/schemas/common';
+import { reportCaution, type ReportDocument, type ReportResult } from '@/schemas/report-document';
+import { renderReportPdf, ReportDocumentError } from '../../../../server/domain/report-pdf/render-report-pdf';
+import {
+  buildCorrectedReportDocument,
+  buildRejectedReportDocument,
+  buildReportDocument,
+} from '../../../factories/report-document';
+
+/**
+ * The report is read back with pdfjs-dist, an independent PDF reader, and checked against the
+ * content rules of domain.md section 5:
+ *  - US CLIA 42 CFR 493.1291(c)(1)-(7) [confirmed];
+ *  - ISO 15189:2022 report items [from memory]: patient ID on every page, "page x of y", who
+ *    released, amended reports marked as revisions naming what they supersede;
+ *  - 21 CFR Part 11 signature manifestation [from memory]: printed name, date and time, meaning;
+ *  - the product brief's caution.
+ */
+
+const ARTIFACTS = path.resolve('test-artifacts/report-pdf');
+
+interface PdfPage {
+  /** Text lines, top to bottom; pieces on one baseline joined, a space where there is a gap. */
+  lines: string[];
+  /** All text of the page with whitespace collapsed, for phrases that may wrap. */
+  flat: string;
+  /** Baselines (PDF units from the page bottom) of lines, same order as `lines`. */
+  baselines: number[];
+  pieces: Piece[];
+}
+
+interface Piece {
+  str: string;
+  x: number;
+  y: number;
+  w: number;
+  h: number;
+}
+
+interface ReadPdf {
+  pages: PdfPage[];
+  flat: string;
+  info: Record<string, unknown>;
+}
+
+const collapse = (s: string): string => s.replace(/\s+/g, ' ').trim();
+
+async function readPdf(bytes: Buffer): Promise<ReadPdf> {
+  const pdf = await getDocument({ data: new Uint8Array(bytes), isEvalSupported: false, verbosity: 0 }).promise;
+  const pages: PdfPage[] = [];
+  for (let n = 1; n <= pdf.numPages; n++) {
+    const page = await pdf.getPage(n);
+    const content = await page.getTextContent();
+    const pieces: Piece[] = [];
+    for (const item of content.items) {
+      if (!('str' in item) || item.str.length === 0) continue;
+      const [, , , , x, y] = item.transform as number[];
+      pieces.push({ str: item.str, x: x ?? 0, y: y ?? 0, w: item.width, h: item.height });
+    }
+    // Pieces on the same baseline form a line. A smaller piece a little above a line (a raised
+    // superscript) belongs to that line; larger pieces go first so their lines exist by then.
+    pieces.sort((a, b) => b.h - a.h || b.y - a.y || a.x - b.x);
+    const rows: Array<{ y: number; h: number; items: typeof pieces }> = [];
+    for (const p of pieces) {
+      const row =
+        rows.find((r) => Math.abs(r.y - p.y) < 0.5) ??
+        rows.find((r) => p.h < 0.8 * r.h && p.y - r.y > 0 && p.y - r.y < 0.5 * r.h);
+      if (row) row.items.push(p);
+      else rows.push({ y: p.y, h: p.h, items: [p] });
+    }
+    rows.sort((a, b) => b.y - a.y);
+    const lines = rows.map((r) => {
+      const items = [...r.items].sort((a, b) => a.x - b.x);
+      let text = '';
+      let end = -Infinity;
+      for (const it of items) {
+        text += (text && it.x - end > 1.5 ? ' ' : '') + it.str;
+        end = it.x + it.w;
+      }
+      return text;
+    });
+    pages.push({ lines, flat: collapse(lines.join(' ')), baselines: rows.map((r) => r.y), pieces });
+  }
+  const meta = await pdf.getMetadata();
+  await pdf.destroy();
+  return { pages, flat: collapse(pages.map((p) => p.flat).join(' ')), info: meta.info as Record<string, unknown> };
+}
+
+function save(name: string, bytes: Buffer): void {
+  mkdirSync(ARTIFACTS, { recursive: true });
+  writeFileSync(path.join(ARTIFACTS, name), bytes);
+}
+
+/** Text of one table column, top to bottom: pieces starting between the x of two header labels. */
+function columnText(page: PdfPage, fromHeader: string, toHeader?: string): string {
+  const xOf = (label: string): number => {
+    const piece = page.pieces.find((p) => p.str.trim() === label);
+    if (!piece) throw new Error(`No header piece '${label}' on the page`);
+    return piece.x;
+  };
+  const from = xOf(fromHeader) - 1;
+  const to = toHeader === undefined ? Infinity : xOf(toHeader) - 1;
+  const inColumn = page.pieces.filter((p) => p.x >= from && p.x < to).sort((a, b) => b.y - a.y || a.x - b.x);
+  let text = '';
+  let prev: Piece | null = null;
+  for (const p of inColumn) {
+    const touching = prev !== null && Math.abs(prev.y - p.y) < 0.5 && p.x - (prev.x + prev.w) <= 1.5;
+    text += (text && !touching ? ' ' : '') + p.str;
+    prev = p;
+  }
+  return collapse(text);
+}
+
+/** pdfjs reports the micro sign as Greek mu and the superscript minus is drawn as a raised minus. */
+const asExtracted = (s: string): string => collapse(s).replace(/µ/g, 'μ').replace(/⁻/g, '\u2212');
+
+const sha256 = (b: Buffer): string => createHash('sha256').update(b).digest('hex');
+
+/** Expected printing of a value: fixed decimals from the assay definition, Unicode minus sign. */
+const fixed = (v: number, d: number | undefined): string => v.toFixed(d ?? 2).replace('-', '\u2212');
+const MEASURE_WORDS = { activity: 'Activity', ratio_cs: 'Ratio to CS', ratio_cii: 'Ratio to CII' } as const;
+
+describe('renderReportPdf: final report of an accepted specimen', () => {
+  let doc: ReportDocument;
+  let bytes: Buffer;
+  let pdf: ReadPdf;
+
+  beforeAll(async () => {
+    doc = buildReportDocument();
+    bytes = await renderReportPdf(doc);
+    save('final.pdf', bytes);
+    pdf = await readPdf(bytes);
+  });
+
+  it('when rendered, then it is a PDF of more than one A4 page', () => {
+    expect(bytes.subarray(0, 5).toString('latin1')).toBe('%PDF-');
+    // A multi-page fixture is needed for the every-page checks below to mean anything.
+    expect(pdf.pages.length).toBeGreaterThanOrEqual(2);
+    expect(bytes.toString('latin1')).toMatch(/\/MediaBox \[0 0 595\.28 841\.89\]/);
+  });
+
+  it('when read back, then it shows patient name and ID, laboratory name and address, report date (CLIA 493.1291(c)(1)-(3) [confirmed])', () => {
+    expect(pdf.flat).toContain(doc.patient.name);
+    expect(pdf.flat).toContain(doc.patient.labPatientId);
+    expect(pdf.flat).toContain(doc.laboratory.name);
+    for (const line of doc.laboratory.addressLines) expect(pdf.pages[0]?.lines).toContain(line);
+    expect(pdf.flat).toContain(`Accreditation no. ${doc.laboratory.accreditationNumber}`);
+    // reportDate 2025-03-14, printed day-month-name-year so day and month cannot be swapped.
+    expect(pdf.pages[0]?.flat).toContain('Report date 14 Mar 2025');
+  });
+
+  it('when read back, then it names the test performed and the specimen source (CLIA 493.1291(c)(4)-(5) [confirmed])', () => {
+    expect(pdf.pages[0]?.flat).toContain('Respiratory-chain enzyme report');
+    const assayColumn = columnText(pdf.pages[0]!, 'Assay', 'Measure');
+    for (const r of doc.results) expect(assayColumn).toContain(`${r.assay} ${r.assayName}`);
+    const specimenColumn = columnText(pdf.pages[0]!, 'SPECIMEN');
+    expect(specimenColumn).toContain(`Type ${specimenTypeLabels[doc.specimen.type]}`);
+    expect(specimenColumn).toContain(`Source ${doc.specimen.description}`);
+    expect(specimenColumn).toContain(`On receipt ${doc.specimen.conditionOnReceipt}`);
+  });
+
+  it('when read back, then every result stands on one line with its measure, value, unit and reference interval (CLIA 493.1291(c)(6), (d) [confirmed])', () => {
+    const allLines = pdf.pages.flatMap((p) => p.lines);
+    const missing: string[] = [];
+    const check = (r: ReportResult): void => {
+      const value = r.value === null ? 'No value' : fixed(r.value, r.decimals);
+      const interval = `${fixed(r.referenceLower!, r.decimals)}\u2013${fixed(r.referenceUpper!, r.decimals)}`;
+      const found = allLines.some(
+        (l) =>
+          l.includes(`${MEASURE_WORDS[r.measure]} ${value} ${r.unit} ${interval}`) &&
+          l.includes(`${Math.round(r.pctOfMean!)}%`),
+      );
+      if (!found) missing.push(`${r.assay} ${r.measure}`);
+    };
+    doc.results.forEach(check);
+    expect(missing).toEqual([]);
+  });
+
+  it('when a result lies outside its interval, then the table says so in words, not only colour', () => {
+    const below = doc.results.filter((r) => r.status === 'below').length;
+    const within = doc.results.filter((r) => r.status === 'within').length;
+    const count = (word: string): number => pdf.pages.flatMap((p) => p.lines).filter((l) => l.includes(word)).length;
+    expect(below).toBeGreaterThan(0);
+    expect(count('Below interval')).toBe(below);
+    expect(count('Within interval')).toBe(within);
+    const minorBands = doc.results.filter((r) => r.criterionBand === 'minor').length;
+    expect(pdf.flat.split('minor-criterion band').length - 1).toBeGreaterThanOrEqual(minorBands);
+  });
+
+  it('when a result carries a flag, then the flag is printed', () => {
+    const flagged = doc.results.filter((r) => r.flags.length > 0);
+    expect(flagged.length).toBeGreaterThan(0);
+    for (const r of flagged) for (const f of r.flags) expect(pdf.flat).toContain(f);
+  });
+
+  it('when read back, then every page carries the patient ID, accession, version and "Page x of y" (ISO 15189:2022 [from memory])', () => {
+    const total = pdf.pages.length;
+    pdf.pages.forEach((page, i) => {
+      expect(page.flat).toContain(`Patient ID ${doc.patient.labPatientId}`);
+      expect(page.flat).toContain(`Accession ${doc.case.accession}`);
+      expect(page.flat).toContain('Version 1, final report');
+      expect(page.flat).toContain(`Page ${i + 1} of ${total}`);
+      // collection date on every page (ISO 15189 [from memory]); collectedAt 2025-03-03.
+      expect(page.flat).toContain('Collected 3 Mar 2025');
+    });
+  });
+
+  it('when read back, then the signature shows who released it, printed name, date and time, and meaning (21 CFR Part 11 and ISO 15189 [from memory])', () => {
+    const s = doc.signature;
+    expect(pdf.flat).toContain(`Released by ${s.signerName}, ${s.signerTitle}`);
+    // signedAt 2025-03-14T09:30:00Z in Europe/Amsterdam: CET, UTC+1, in March before the switch to
+    // summer time on the last Sunday (30 Mar 2025) [common practice: EU summer-time rule].
+    expect(pdf.flat).toContain('Signed on 14 Mar 2025 10:30 (UTC+01:00)');
+    expect(pdf.flat).toContain(`Meaning of signature ${s.meaning}`);
+  });
+
+  it('when read back, then the caution of the product brief is printed in full', () => {
+    expect(pdf.flat).toContain(collapse(reportCaution));
+    // The three points the product brief requires, checked as ideas rather than the exact wording.
+    expect(reportCaution).toMatch(/support.*do not replace.*diagnosis.*licensed clinician/);
+    expect(reportCaution).toMatch(/specimen.*clinical picture/s);
+    expect(reportCaution).toMatch(/regulations.*accreditation/s);
+  });
+
+  it('when read back, then pattern, interpretation, methods and interval versions are printed', () => {
+    expect(pdf.flat).toContain(collapse(doc.patternSummary!));
+    for (const para of doc.interpretation.split('\n\n')) expect(pdf.flat).toContain(collapse(para));
+    expect(pdf.flat).toContain(asExtracted(doc.methods.summary));
+    for (const d of doc.methods.definitions) expect(pdf.flat).toContain(`${d.assay}, definition version ${d.version}:`);
+    for (const r of doc.results) expect(pdf.flat).toContain(`${r.intervalLabel}, interval version ${r.intervalVersion}`);
+  });
+
+  it('when read back, then the bar graphic labels each complex ratio with its % of mean', () => {
+    const page = pdf.pages.find((p) => p.flat.includes('Activity as % of reference mean'));
+    expect(page).toBeDefined();
+    for (const bar of doc.graphic.bars) {
+      for (const v of [bar.pctOfMeanRatioCs, bar.pctOfMeanRatioCii]) {
+        if (v !== null) expect(page?.flat).toContain(`${Math.round(v)}%`);
+      }
+    }
+    expect(page?.flat).toContain('Ratio to citrate synthase (CS)');
+    expect(page?.flat).toContain('Ratio to complex II (CII)');
+    expect(page?.flat).toContain(doc.graphic.criterionBands!.ruleSetLabel);
+  });
+
+  it('when read back, then special characters survive: ε, µ, ±, °, –, superscript one', () => {
+    for (const ch of ['ε', 'µ', '±', '°', '–', '¹']) expect(pdf.flat).toContain(asExtracted(ch));
+    expect(pdf.flat.includes('\u0000')).toBe(false);
+    expect(pdf.flat).not.toContain('\ufffd');
+  });
+
+  it('when written, then it embeds IBM Plex Sans and no built-in Helvetica', () => {
+    const raw = bytes.toString('latin1');
+    expect(raw).toMatch(/\/FontName \/[A-Z]{6}\+IBMPlexSans-Regular/);
+    expect(raw).toMatch(/\/FontName \/[A-Z]{6}\+IBMPlexSans-SemiBold/);
+    expect(raw).not.toContain('Helvetica');
+  });
+
+  it('when written, then no body text runs into the footer band', () => {
+    // The footer lines start with these; anything else below the footer rule is an overflow.
+    const footerStarts = ['Patient ID', 'Version '];
+    for (const page of pdf.pages) {
+      page.lines.forEach((line, i) => {
+        const y = page.baselines[i] ?? 0;
+        expect(y).toBeGreaterThan(0);
+        if (y < 48) expect(footerStarts.some((s) => line.startsWith(s)), line).toBe(true);
+      });
+    }
+  });
+});
+
+describe('renderReportPdf: corrected report', () => {
+  it('when a report corrects version 1, then every page says so and the first shows the reason and the change (CLIA 493.1291(k) [confirmed]; ISO 15189 [from memory])', async () => {
+    const doc = buildCorrectedReportDocument();
+    const bytes = await renderReportPdf(doc);
+    save('corrected.pdf', bytes);
+    const pdf = await readPdf(bytes);
+
+    expect(pdf.pages[0]?.flat).toContain('CORRECTED REPORT \u2014 supersedes version 1');
+    expect(pdf.pages[0]?.flat).toContain(doc.report.correctionReason!);
+    expect(pdf.pages[0]?.flat).toContain(collapse(doc.report.changesSummary!));
+    expect(pdf.pages[0]?.flat).toContain('Report date 18 Mar 2025');
+    for (const page of pdf.pages) expect(page.flat).toContain('Version 2, corrected report (supersedes version 1)');
+    expect(pdf.flat).not.toContain('final report');
+    expect(pdf.flat).toContain('Signed on 18 Mar 2025 15:05 (UTC+01:00)');
+  });
+
+  it('when a final report is rendered, then it carries no correction notice', async () => {
+    const pdf = await readPdf(await renderReportPdf(buildReportDocument()));
+    expect(pdf.flat).not.toMatch(/CORRECTED|supersedes/i);
+  });
+});
+
+describe('renderReportPdf: rejected specimen', () => {
+  it('when the specimen was rejected, then the reason, condition and disposition are printed and no results table (CLIA 493.1291(c)(7) [confirmed])', async () => {
+    const doc = buildRejectedReportDocument();
+    const bytes = await renderReportPdf(doc);
+    save('rejected.pdf', bytes);
+    const pdf = await readPdf(bytes);
+
+    expect(pdf.pages[0]?.flat).toContain('SPECIMEN REJECTED');
+    expect(pdf.pages[0]?.flat).toContain(`Reason for rejection ${doc.specimen.rejectionReason}`);
+    expect(pdf.pages[0]?.flat).toContain(`Condition on receipt ${doc.specimen.conditionOnReceipt}`);
+    expect(pdf.pages[0]?.flat).toContain(`Disposition ${doc.specimen.disposition}`);
+    expect(pdf.flat).toContain('Not performed.');
+    expect(pdf.flat).not.toContain('Reference interval');
+    expect(pdf.flat).not.toContain('Activity as % of reference mean');
+    // Still a complete report: patient, laboratory, signature, caution, page numbering.
+    expect(pdf.flat).toContain(doc.patient.labPatientId);
+    expect(pdf.flat).toContain(doc.laboratory.addressLines[0]);
+    expect(pdf.flat).toContain(`Released by ${doc.signature.signerName}`);
+    expect(pdf.flat).toContain(collapse(reportCaution));
+    expect(pdf.pages.at(-1)?.flat).toContain(`Page ${pdf.pages.length} of ${pdf.pages.length}`);
+  });
+});
+
+describe('renderReportPdf: long content', () => {
+  it('when the interpretation runs over several pages, then every page still has its header, footer and numbering', async () => {
+    const paragraph =
+      'The director discusses the specimen, the ratios and their reference intervals at length in this invented paragraph. ';
+    const doc = buildReportDocument({ interpretation: Array.from({ length: 12 }, () => paragraph.repeat(6)).join('\n\n') });
+    const bytes = await renderReportPdf(doc);
+    save('long.pdf', bytes);
+    const pdf = await readPdf(bytes);
+    expect(pdf.pages.length).toBeGreaterThanOrEqual(4);
+    pdf.pages.forEach((page, i) => {
+      expect(page.flat).toContain(`Page ${i + 1} of ${pdf.pages.length}`);
+      expect(page.flat).toContain(`Patient ID ${doc.patient.labPatientId}`);
+      if (i > 0) expect(page.lines[0]).toContain(doc.laboratory.name);
+    });
+    const words = (s: string): number => s.split(/\s+/).filter((w) => w === 'invented').length;
+    // Nothing lost at page breaks: every copy of the paragraph is there.
+    expect(words(pdf.flat)).toBe(12 * 6);
+  });
+});
+
+describe('renderReportPdf: names outside basic Latin', () => {
+  it('when names carry Polish, Icelandic and Vietnamese letters, then they print from the fallback fonts and read back intact', async () => {
+    const doc = buildReportDocument({
+      patient: { name: 'Zoë Łukasik-Nguyễn Þórsdóttir (demo)' },
+      case: { referringClinicianName: 'Dr Émile Ødegård-Šimková (demo)' },
+    });
+    const pdf = await readPdf(await renderReportPdf(doc));
+    const nfc = (s: string): string => s.normalize('NFC');
+    expect(nfc(pdf.flat)).toContain(nfc(`Patient ID ${doc.patient.labPatientId} · ${doc.patient.name}`));
+    expect(nfc(columnText(pdf.pages[0]!, 'CASE', 'SPECIMEN'))).toContain(nfc(doc.case.referringClinicianName));
+    expect(pdf.flat).not.toContain('?');
+  });
+});
+
+describe('renderReportPdf: determinism', () => {
+  it('when the same document is rendered twice, then the bytes and their SHA-256 are identical', async () => {
+    const doc = buildCorrectedReportDocument();
+    const first = await renderReportPdf(doc);
+    const second = await renderReportPdf(structuredClone(doc));
+    expect(sha256(second)).toBe(sha256(first));
+  });
+
+  it('when read back, then the PDF creation and modification dates are the signing time, not the clock', async () => {
+    const doc = buildReportDocument();
+    const pdf = await readPdf(await renderReportPdf(doc));
+    const created = PDFDateString.toDateObject(pdf.info.CreationDate as string);
+    const modified = PDFDateString.toDateObject(pdf.info.ModDate as string);
+    expect(created?.toISOString()).toBe(new Date(doc.signature.signedAt).toISOString());
+    expect(modified?.toISOString()).toBe(new Date(doc.signature.signedAt).toISOString());
+  });
+
+  it('when only the signing time differs, then the bytes differ (the file ID follows the document)', async () => {
+    const a = await renderReportPdf(buildReportDocument());
+    const b = await renderReportPdf(buildReportDocument({ signature: { signedAt: '2025-03-14T09:31:00Z' } }));
+    expect(sha256(a)).not.toBe(sha256(b));
+    const idOf = (buf: Buffer): string | undefined => /\/ID \[<([0-9a-f]+)>/i.exec(buf.toString('latin1'))?.[1];
+    expect(idOf(a)).toBeDefined();
+    expect(idOf(a)).not.toBe(idOf(b));
+  });
+
+  it('when no patient name is given to the metadata, then the Info title names only the accession and version', async () => {
+    const doc = buildReportDocument();
+    const pdf = await readPdf(await renderReportPdf(doc));
+    expect(pdf.info.Title).toContain(doc.case.accession);
+    expect(pdf.info.Title).not.toContain(doc.patient.name);
+  });
+});
+
+describe('renderReportPdf: invalid input', () => {
+  it('when a corrected report does not say which version it supersedes, then the error names report.supersedesVersion', async () => {
+    const doc = buildCorrectedReportDocument();
+    const bad = { ...doc, report: { ...doc.report, supersedesVersion: null } };
+    await expect(renderReportPdf(bad)).rejects.toThrow(ReportDocumentError);
+    await expect(renderReportPdf(bad)).rejects.toThrow(/report\.supersedesVersion/);
+  });
+
+  it('when a rejected specimen has no disposition, then the error names specimen.disposition', async () => {
+    const doc = buildRejectedReportDocument();
+    const bad = { ...doc, specimen: { ...doc.specimen, disposition: null } };
+    await expect(renderReportPdf(bad)).rejects.toThrow(/specimen\.disposition/);
+  });
+
+  it('when a result row has no unit, then the error names the row and the field', async () => {
+    const doc = buildReportDocument();
+    const results = doc.results.map((r, i) => (i === 2 ? { ...r, unit: '' } : r));
+    await expect(renderReportPdf({ ...doc, results })).rejects.toThrow(/results\.2\.unit/);
+  });
+
+  it('when the same assay and measure appear twice, then the error names the second row', async () => {
+    const doc = buildReportDocument();
+    const results = [...doc.results, { ...doc.results[0]!, value: 1 }];
+    await expect(renderReportPdf({ ...doc, results })).rejects.toThrow(
+      new RegExp(`results\\.${results.length - 1}: Duplicate result for CI activity`),
+    );
+  });
+
+  it('when the signing time has no zone, then the error names signature.signedAt', async () => {
+    const doc = buildReportDocument();
+    const bad = { ...doc, signature: { ...doc.signature, signedAt: '2025-03-14 09:30' } };
+    await expect(renderReportPdf(bad)).rejects.toThrow(/signature\.signedAt/);
+  });
+});
