@@ -11,6 +11,7 @@ import { createPassport } from './auth/passport';
 import { notFound, toHttpError } from './lib/errors';
 import { logError } from './lib/log';
 import { route } from './lib/route';
+import { assayDefinitionsRouter } from './modules/assay-definitions/assay-definitions.router';
 import { auditRouter } from './modules/audit/audit.router';
 import { authRouter } from './modules/auth/auth.router';
 import { labProfileRouter } from './modules/lab-profile/lab-profile.router';
@@ -97,6 +98,7 @@ export function createApp(opts: AppOptions): Express {
   app.use(usersRouter(sequelize));
   app.use(labProfileRouter(sequelize));
   app.use(auditRouter());
+  app.use(assayDefinitionsRouter(sequelize));
 
   app.use('/api', (req, _res, next) => next(notFound('API route', `${req.method} ${req.path}`)));
 

@@ -5,6 +5,7 @@ import { loadConfig } from './config';
 import { initModels } from './db/models';
 import { migrate } from './db/migrate';
 import { seedDemoIfEmpty } from './db/seed/demo';
+import { ensureDefaultDefinitions } from './modules/assay-definitions/assay-definitions.service';
 import { openDatabase } from './db/sequelize';
 import { logError, logInfo } from './lib/log';
 
@@ -16,6 +17,7 @@ async function main(): Promise<void> {
   initModels(sequelize);
   const applied = await migrate(sequelize);
   if (applied.length) logInfo('migrations applied', { applied });
+  await ensureDefaultDefinitions(sequelize);
   if (await seedDemoIfEmpty(sequelize, config.demoPassword)) logInfo('demo data seeded (invented, fictitious)');
 
   const app = createApp({ sequelize, config, clientDir: path.join(root, 'dist', 'client'), expireSessions: true });

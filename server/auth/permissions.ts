@@ -25,6 +25,10 @@ export const permissions = {
   'POST /api/users/:id/password': ADMIN,
   'GET /api/clinicians': LAB,
   'GET /api/audit': [...ADMIN, ...DIRECTOR],
+  'GET /api/assay-definitions': LAB,
+  'GET /api/assay-definitions/:code/versions': LAB,
+  'POST /api/assay-definitions/:code/versions': DIRECTOR,
+  'POST /api/calculations/activity': LAB,
 } as const satisfies Record<string, Access>;
 
 export type RouteKey = keyof typeof permissions;

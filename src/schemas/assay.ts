@@ -38,7 +38,8 @@ const finite = (field: string) =>
 
 const positive = (field: string) => finite(field).positive(`${field} must be greater than 0`);
 
-export const assayDefinitionSchema = z
+/** The fields of a definition; cross-field rules are added in assayDefinitionSchema below. */
+export const assayDefinitionFieldsSchema = z
   .object({
     code: assayCodeSchema,
     version: z.number().int('version must be a whole number').positive('version starts at 1'),
@@ -66,7 +67,9 @@ export const assayDefinitionSchema = z
     ),
     /** Replicate CV% above this flags the mean. */
     cvLimitPct: positive('cvLimitPct'),
-  })
+  });
+
+export const assayDefinitionSchema = assayDefinitionFieldsSchema
   .refine((d) => d.linearRangeMax > d.linearRangeMin, {
     path: ['linearRangeMax'],
     message: 'linearRangeMax must be above linearRangeMin',
@@ -487,3 +490,25 @@ export const demoReferenceIntervals: readonly ComparisonInterval[] = demoRows.ma
     method: 'mean ± 2 SD of invented demo values',
   }),
 );
+
+/* ----------------------------------------------------------------------------------------------
+ * Stored definition versions (the API's view of the assay_definitions table)
+ * -------------------------------------------------------------------------------------------- */
+
+export const storedAssayDefinitionSchema = z.object({
+  id: z.number().int(),
+  definition: assayDefinitionSchema,
+  changeNote: z.string().nullable(),
+  createdBy: z.string().nullable(),
+  createdAt: z.string(),
+});
+export type StoredAssayDefinition = z.infer<typeof storedAssayDefinitionSchema>;
+
+/** A director's new version: every field of the definition except its code and number, plus why it changed. */
+export const createAssayDefinitionVersionInputSchema = z.strictObject({
+  definition: assayDefinitionFieldsSchema.omit({ code: true, version: true }).strict(),
+  changeNote: z.string().trim().min(3, 'Say what changed and why').max(1000),
+  /** The version the director was looking at; a newer one in between is a conflict. */
+  basedOnVersion: z.number().int().positive(),
+});
+export type CreateAssayDefinitionVersionInput = z.infer<typeof createAssayDefinitionVersionInputSchema>;

@@ -7,6 +7,7 @@ import { initModels } from '../../server/db/models';
 import { migrate } from '../../server/db/migrate';
 import { demoAccounts, seedDemoIfEmpty } from '../../server/db/seed/demo';
 import { openDatabase } from '../../server/db/sequelize';
+import { ensureDefaultDefinitions } from '../../server/modules/assay-definitions/assay-definitions.service';
 import type { Role } from '@/schemas/common';
 
 export const ORIGIN = 'http://localhost:3000';
@@ -35,6 +36,7 @@ export async function makeTestApp(overrides: Partial<AppOptions> = {}): Promise<
   const sequelize = await openDatabase(':memory:');
   initModels(sequelize);
   await migrate(sequelize);
+  await ensureDefaultDefinitions(sequelize);
   await seedDemoIfEmpty(sequelize, DEMO_PASSWORD);
   const config = loadConfig({ NODE_ENV: 'test', PORT: '3000', DEMO_PASSWORD });
   const app = createApp({ sequelize, config, loginAttemptsPerWindow: 1000, ...overrides });
