@@ -53,6 +53,8 @@ export function createAppRouter(queryClient: QueryClient) {
             return redirect(landingFor[user.role]);
           },
         },
+        page('calculator', () => import('./routes/rate-check')),
+        page('assayDefinitions', () => import('./routes/assay-definitions')),
         page('adminUsers', () => import('./routes/admin/accounts')),
         page('adminLab', () => import('./routes/admin/laboratory')),
         { path: paths.forbidden.path, Component: ForbiddenPage },
