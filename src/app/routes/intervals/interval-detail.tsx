@@ -1,0 +1,27 @@
+import { useQuery } from '@tanstack/react-query';
+import { Link, useParams } from 'react-router-dom';
+import { PageHeader } from '@/components/ui/layout';
+import { paths } from '@/config/paths';
+import { sessionQueries } from '@/features/auth/api/session-queries';
+import { IntervalDetail } from '@/features/reference-intervals/components/interval-detail';
+import NotFoundPage from '../not-found';
+
+export default function IntervalDetailPage() {
+  const { id } = useParams();
+  const { data: user } = useQuery(sessionQueries.me());
+  const numeric = Number(id);
+  if (!Number.isInteger(numeric) || numeric < 1) return <NotFoundPage />;
+  return (
+    <>
+      <PageHeader
+        title="Reference interval"
+        lead={
+          <Link className="text-matrix-700 underline" to={paths.intervals.href()}>
+            ← All reference intervals
+          </Link>
+        }
+      />
+      <IntervalDetail key={numeric} id={numeric} canManage={user?.role === 'director'} />
+    </>
+  );
+}

@@ -1,0 +1,28 @@
+import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { api } from '@/lib/api-client';
+import { intervalKeys, intervalQueries } from './interval-queries';
+import { storedIntervalSchema, type DraftFromControlsInput, type NewIntervalInput, type StoredInterval } from './interval-schemas';
+
+async function storeDraft(qc: ReturnType<typeof useQueryClient>, created: StoredInterval) {
+  qc.setQueryData(intervalQueries.detail(created.id).queryKey, created);
+  await qc.invalidateQueries({ queryKey: intervalKeys.lists() });
+}
+
+/** A draft typed in by a director. */
+export function useCreateInterval() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: NewIntervalInput) => api.post('/api/reference-intervals', input, storedIntervalSchema),
+    onSuccess: (created) => storeDraft(qc, created),
+  });
+}
+
+/** A draft derived on the server from a stored control file. */
+export function useCreateDraftFromControls() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: ({ uploadId, input }: { uploadId: number; input: DraftFromControlsInput }) =>
+      api.post(`/api/reference-intervals/controls/${uploadId}/draft`, input, storedIntervalSchema),
+    onSuccess: (created) => storeDraft(qc, created),
+  });
+}
