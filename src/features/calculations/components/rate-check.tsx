@@ -1,4 +1,4 @@
-import { useEffect, useMemo, useState } from 'react';
+import { useMemo, useState } from 'react';
 import { Button } from '@/components/ui/button';
 import { TraceChart } from '@/components/charts/trace-chart';
 import { SelectField, TextArea, TextField } from '@/components/ui/field';
@@ -36,7 +36,7 @@ export function RateCheck({ definitions }: { definitions: StoredAssayDefinition[
   const total = useMemo(() => (totalText.trim() ? parsePastedTrace(totalText, 'Total trace') : null), [totalText]);
   const background = useMemo(() => (backgroundText.trim() ? parsePastedTrace(backgroundText, 'Background trace') : null), [backgroundText]);
 
-  function buildRequest(): CalculationRequest | null {
+  function buildRequest(win = window, byHand = manual): CalculationRequest | null {
     const errors: Record<string, string> = {};
     if (!total) errors.total = 'Paste the total trace';
     else if (total.error) errors.total = total.error;
@@ -49,7 +49,7 @@ export function RateCheck({ definitions }: { definitions: StoredAssayDefinition[
       proteinMgPerMl: Number(numbers.proteinMgPerMl),
       total: total?.points ?? [],
       ...(background?.points ? { background: background.points } : {}),
-      ...(manual ? { window: { fromS: Number(window.fromS), toS: Number(window.toS) } } : {}),
+      ...(byHand ? { window: { fromS: Number(win.fromS), toS: Number(win.toS) } } : {}),
     };
     const parsed = calculationRequestSchema.safeParse(candidate);
     if (!parsed.success) {
@@ -59,12 +59,12 @@ export function RateCheck({ definitions }: { definitions: StoredAssayDefinition[
     return Object.keys(errors).length === 0 && parsed.success ? parsed.data : null;
   }
 
-  function run() {
-    const request = buildRequest();
+  function run(win = window, byHand = manual) {
+    const request = buildRequest(win, byHand);
     if (!request) return;
     preview.mutate(request, {
       onSuccess: (result) => {
-        if (!manual && result.window) setWindow({ fromS: String(result.window.fromS), toS: String(result.window.toS) });
+        if (!byHand && result.window) setWindow({ fromS: String(result.window.fromS), toS: String(result.window.toS) });
       },
       onError: (err) => {
         if (err instanceof ApiError) setFieldErrors(err.fields);
@@ -72,11 +72,11 @@ export function RateCheck({ definitions }: { definitions: StoredAssayDefinition[
     });
   }
 
-  // Moving the window recomputes at once, as long as both ends are numbers.
-  useEffect(() => {
-    if (manual && preview.data && window.fromS !== '' && window.toS !== '' && Number(window.toS) > Number(window.fromS)) run();
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [manual, window.fromS, window.toS]);
+  // Moving the window recomputes at once, as long as both ends are numbers in order.
+  function moveWindow(next: { fromS: string; toS: string }) {
+    setWindow(next);
+    if (preview.data && next.fromS !== '' && next.toS !== '' && Number(next.toS) > Number(next.fromS)) run(next, true);
+  }
 
   const result = preview.data;
   const setNumber = (key: keyof Numbers) => (e: React.ChangeEvent<HTMLInputElement>) => setNumbers((n) => ({ ...n, [key]: e.target.value }));
@@ -125,14 +125,21 @@ export function RateCheck({ definitions }: { definitions: StoredAssayDefinition[
             <legend className="px-1 text-sm font-medium text-ink-soft">Fitted window</legend>
             <div className="flex flex-wrap items-end gap-3">
               <label className="flex items-center gap-2 text-sm">
-                <input type="checkbox" checked={manual} onChange={(e) => setManual(e.target.checked)} />
+                <input
+                  type="checkbox"
+                  checked={manual}
+                  onChange={(e) => {
+                    setManual(e.target.checked);
+                    if (preview.data) run(window, e.target.checked);
+                  }}
+                />
                 Set the window by hand
               </label>
               <div className="w-28">
-                <TextField label="From (s)" inputMode="decimal" disabled={!manual} value={window.fromS} onChange={(e) => setWindow((w) => ({ ...w, fromS: e.target.value }))} error={fieldErrors['window.fromS']} />
+                <TextField label="From (s)" inputMode="decimal" disabled={!manual} value={window.fromS} onChange={(e) => moveWindow({ ...window, fromS: e.target.value })} error={fieldErrors['window.fromS']} />
               </div>
               <div className="w-28">
-                <TextField label="To (s)" inputMode="decimal" disabled={!manual} value={window.toS} onChange={(e) => setWindow((w) => ({ ...w, toS: e.target.value }))} error={fieldErrors['window.toS'] ?? fieldErrors.window} />
+                <TextField label="To (s)" inputMode="decimal" disabled={!manual} value={window.toS} onChange={(e) => moveWindow({ ...window, toS: e.target.value })} error={fieldErrors['window.toS'] ?? fieldErrors.window} />
               </div>
             </div>
             {!manual ? (
