@@ -69,6 +69,20 @@ export const createPatientInputSchema = z
 export type CreatePatientInput = z.infer<typeof createPatientInputSchema>;
 
 export const patientSearchQuerySchema = z.object({ q: z.string().trim().max(80).optional() }).strict();
+export type PatientSearchQuery = z.infer<typeof patientSearchQuerySchema>;
+
+/** Corrections to a patient's details, with the version the editor saw. */
+export const updatePatientInputSchema = createPatientInputSchema
+  .partial()
+  .extend({ version: z.number().int().min(0) })
+  .strict();
+export type UpdatePatientInput = z.infer<typeof updatePatientInputSchema>;
+
+/**
+ * A 409 for a duplicate patient names the clashing field(s) in `fields` and carries the existing patient's id
+ * under this key, so the form can offer to use that patient instead.
+ */
+export const EXISTING_PATIENT_FIELD = 'existingPatientId';
 
 /* ---------------------------------------------------------------- specimens */
 
@@ -90,17 +104,23 @@ export const specimenSchema = z.object({
 });
 export type Specimen = z.infer<typeof specimenSchema>;
 
-export const receiveSpecimenInputSchema = z
-  .object({
-    type: specimenTypeSchema,
-    source: z.string().trim().max(160, 'Use at most 160 characters'),
-    collectedAt: dateTime.nullable(),
-    receivedAt: dateTime,
-    transportCondition: transportConditionSchema,
-    wetWeightMg: z.number().positive('Wet weight must be above 0').max(100000).nullable(),
-    accepted: z.boolean(),
-    rejectionReason: z.string().trim().max(200).nullable(),
-  })
+/** The fields of a specimen as received; the input schemas below add their rules to this one shape. */
+export const specimenFieldsSchema = z.object({
+  type: specimenTypeSchema,
+  source: z.string().trim().max(160, 'Use at most 160 characters'),
+  collectedAt: dateTime.nullable(),
+  receivedAt: dateTime,
+  transportCondition: transportConditionSchema,
+  wetWeightMg: z
+    .number({ error: 'Give the wet weight in mg, or leave it empty' })
+    .positive('Wet weight must be above 0')
+    .max(100000, 'Wet weight is at most 100 000 mg')
+    .nullable(),
+  accepted: z.boolean(),
+  rejectionReason: z.string().trim().max(200, 'Use at most 200 characters').nullable(),
+});
+
+export const receiveSpecimenInputSchema = specimenFieldsSchema
   .strict()
   .refine((s) => s.accepted || (s.rejectionReason && s.rejectionReason.length > 0), {
     path: ['rejectionReason'],
@@ -111,6 +131,25 @@ export const receiveSpecimenInputSchema = z
     message: 'Collection cannot be after receipt',
   });
 export type ReceiveSpecimenInput = z.infer<typeof receiveSpecimenInputSchema>;
+
+/**
+ * Changes to a received specimen (corrections, or recording a rejection), with the version the editor saw.
+ * The type is fixed once received: a different tissue is a different specimen.
+ */
+export const updateSpecimenInputSchema = specimenFieldsSchema
+  .omit({ type: true })
+  .partial()
+  .extend({ version: z.number().int().min(0) })
+  .strict()
+  .refine((s) => s.accepted !== false || (s.rejectionReason && s.rejectionReason.length > 0), {
+    path: ['rejectionReason'],
+    message: 'Give the reason the specimen is rejected',
+  })
+  .refine((s) => !s.collectedAt || !s.receivedAt || Date.parse(s.collectedAt) <= Date.parse(s.receivedAt), {
+    path: ['collectedAt'],
+    message: 'Collection cannot be after receipt',
+  });
+export type UpdateSpecimenInput = z.infer<typeof updateSpecimenInputSchema>;
 
 export const setProteinInputSchema = z
   .object({
@@ -126,6 +165,7 @@ export type RejectionReason = z.infer<typeof rejectionReasonSchema>;
 export const createRejectionReasonInputSchema = z
   .object({ text: z.string().trim().min(3, 'Give a reason of at least 3 characters').max(200) })
   .strict();
+export type CreateRejectionReasonInput = z.infer<typeof createRejectionReasonInputSchema>;
 
 /* ---------------------------------------------------------------- cases */
 
@@ -155,6 +195,8 @@ export const caseDetailSchema = z.object({
   returnReason: z.string().nullable(),
   createdAt: z.string(),
   version: z.number().int(),
+  receivedAt: z.string().nullable(),
+  patternCode: z.string().nullable(),
 });
 export type CaseDetail = z.infer<typeof caseDetailSchema>;
 
@@ -167,6 +209,10 @@ export const createCaseInputSchema = z
   })
   .strict();
 export type CreateCaseInput = z.infer<typeof createCaseInputSchema>;
+
+/** Registering a case receives its first specimen in the same step (and the same transaction). */
+export const registerCaseInputSchema = createCaseInputSchema.extend({ specimen: receiveSpecimenInputSchema }).strict();
+export type RegisterCaseInput = z.infer<typeof registerCaseInputSchema>;
 
 export const updateCaseInputSchema = createCaseInputSchema
   .pick({ referringClinicianId: true, clinicalIndication: true, priority: true })
@@ -203,3 +249,28 @@ export type CaseListQuery = z.infer<typeof caseListQuerySchema>;
 
 export const caseListSchema = z.object({ items: z.array(caseSummarySchema), total: z.number().int() });
 export type CaseList = z.infer<typeof caseListSchema>;
+
+/* ---------------------------------------------------------------- history */
+
+export const caseHistoryChangeSchema = z.object({
+  field: z.string(),
+  before: z.string().nullable(),
+  after: z.string().nullable(),
+});
+export type CaseHistoryChange = z.infer<typeof caseHistoryChangeSchema>;
+
+/** One audit event as the case history shows it: who, when, what, and the fields it changed. */
+export const caseHistoryEventSchema = z.object({
+  id: z.number().int(),
+  at: z.string(),
+  actorName: z.string().nullable(),
+  actorEmail: z.string().nullable(),
+  action: z.string(),
+  entity: z.string(),
+  entityId: z.string().nullable(),
+  summary: z.string(),
+  note: z.string().nullable(),
+  changes: z.array(caseHistoryChangeSchema),
+});
+export type CaseHistoryEvent = z.infer<typeof caseHistoryEventSchema>;
+export const caseHistorySchema = z.object({ items: z.array(caseHistoryEventSchema) });

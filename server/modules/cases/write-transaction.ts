@@ -1,0 +1,28 @@
+import { Transaction, type Sequelize } from 'sequelize';
+
+/*
+ * Registry writes run one at a time per database handle, each in an IMMEDIATE transaction.
+ * - SQLite allows one writer. BEGIN IMMEDIATE takes the write lock up front, so two writers queue on the
+ *   busy timeout instead of failing when a read lock cannot be upgraded (a DEFERRED transaction's failure mode).
+ * - Sequelize shares a single connection for an in-memory database, where a second BEGIN on the same connection
+ *   fails outright; the in-process queue keeps concurrent requests from overlapping there.
+ */
+const queues = new WeakMap<Sequelize, Promise<unknown>>();
+
+export async function writeTransaction<T>(sequelize: Sequelize, work: (t: Transaction) => Promise<T>): Promise<T> {
+  const previous = queues.get(sequelize) ?? Promise.resolve();
+  const run = previous.catch(() => undefined).then(() =>
+    sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, work),
+  );
+  queues.set(sequelize, run.catch(() => undefined));
+  return run;
+}
+
+/** Runs inside the caller's transaction when one is given, otherwise in a queued write transaction of its own. */
+export async function withWriteTransaction<T>(
+  sequelize: Sequelize,
+  transaction: Transaction | undefined,
+  work: (t: Transaction) => Promise<T>,
+): Promise<T> {
+  return transaction ? work(transaction) : writeTransaction(sequelize, work);
+}

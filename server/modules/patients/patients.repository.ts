@@ -1,0 +1,80 @@
+import { Op, Sequelize, type Transaction, type WhereOptions } from 'sequelize';
+import type { Patient } from '@/schemas/case';
+import { PatientModel } from './patient.model';
+
+function toPatient(row: PatientModel): Patient {
+  return {
+    id: row.id,
+    labPatientId: row.labPatientId,
+    familyName: row.familyName,
+    givenName: row.givenName,
+    dateOfBirth: row.dateOfBirth,
+    sex: row.sex as Patient['sex'],
+    version: row.version,
+  };
+}
+
+export async function findPatientById(id: number, transaction?: Transaction): Promise<Patient | null> {
+  const row = await PatientModel.findByPk(id, { transaction });
+  return row ? toPatient(row) : null;
+}
+
+export async function findPatientByLabId(labPatientId: string, transaction?: Transaction): Promise<Patient | null> {
+  const row = await PatientModel.findOne({ where: { labPatientId }, transaction });
+  return row ? toPatient(row) : null;
+}
+
+export async function findPatientByNameAndBirth(
+  nameKey: string,
+  dateOfBirth: string,
+  transaction?: Transaction,
+): Promise<Patient | null> {
+  const row = await PatientModel.findOne({ where: { nameKey, dateOfBirth }, order: [['id', 'ASC']], transaction });
+  return row ? toPatient(row) : null;
+}
+
+/**
+ * Patients whose lab ID, folded name or date of birth contains every token. Lab-ID prefix matches rank first,
+ * then names, alphabetically.
+ */
+export async function searchPatients(tokens: string[], limit: number): Promise<Patient[]> {
+  const conditions: WhereOptions[] = tokens.map((t) => ({
+    [Op.or]: [
+      Sequelize.where(Sequelize.fn('instr', Sequelize.col('nameKey'), t), Op.gt, 0),
+      Sequelize.where(Sequelize.fn('instr', Sequelize.fn('lower', Sequelize.col('labPatientId')), t), Op.gt, 0),
+      Sequelize.where(Sequelize.fn('instr', Sequelize.col('dateOfBirth'), t), Op.gt, 0),
+    ],
+  }));
+  const first = tokens[0] ?? '';
+  const rows = await PatientModel.findAll({
+    where: conditions.length ? { [Op.and]: conditions } : {},
+    order: [
+      [Sequelize.literal(`CASE WHEN lower("labPatientId") LIKE ${PatientModel.sequelize!.escape(`${first}%`)} THEN 0 ELSE 1 END`), 'ASC'],
+      ['nameKey', 'ASC'],
+      ['id', 'ASC'],
+    ],
+    limit,
+  });
+  return rows.map(toPatient);
+}
+
+export async function insertPatient(
+  data: Omit<Patient, 'id' | 'version'> & { nameKey: string },
+  transaction: Transaction,
+): Promise<Patient> {
+  return toPatient(await PatientModel.create(data, { transaction }));
+}
+
+/** Updates a patient only if its version is still `expectedVersion`; false when another save got there first. */
+export async function updatePatientIfVersion(
+  id: number,
+  expectedVersion: number,
+  changes: Partial<Omit<Patient, 'id' | 'version'>> & { nameKey?: string },
+  transaction: Transaction,
+): Promise<boolean> {
+  const [count] = await PatientModel.update(
+    { ...changes, version: expectedVersion + 1 },
+    { where: { id, version: expectedVersion }, transaction },
+  );
+  return count === 1;
+}

@@ -1,0 +1,102 @@
+import type { Sequelize, Transaction } from 'sequelize';
+import {
+  EXISTING_PATIENT_FIELD,
+  type CreatePatientInput,
+  type Patient,
+  type UpdatePatientInput,
+} from '@/schemas/case';
+import type { User } from '@/schemas/user';
+import { AppError, notFound, staleVersion } from '../../lib/errors';
+import { recordAudit } from '../audit/audit.service';
+import { refreshPatientOnCases } from '../cases/cases.repository';
+import { writeTransaction } from '../cases/write-transaction';
+import { displayName, nameKeyOf, searchTokens } from './patient-names';
+import * as repo from './patients.repository';
+
+/** Lab IDs are compared and stored in capitals, so "demo-0001" and "DEMO-0001" are one patient. */
+const normaliseLabId = (s: string) => s.trim().toUpperCase();
+
+function duplicateOf(existing: Patient, fields: string[], message: string): AppError {
+  const where = `${displayName(existing)}, born ${existing.dateOfBirth}, lab ID ${existing.labPatientId}`;
+  return new AppError('CONFLICT', `${message} (${where}). Use that patient instead of registering a new one.`, {
+    fields: {
+      ...Object.fromEntries(fields.map((f) => [f, `${message}: ${where}`])),
+      [EXISTING_PATIENT_FIELD]: String(existing.id),
+    },
+  });
+}
+
+/** Catches a second registration of the same person: same lab ID, or same name and date of birth. */
+async function assertNotDuplicate(
+  candidate: { labPatientId: string; nameKey: string; dateOfBirth: string },
+  exceptId: number | null,
+  transaction: Transaction,
+): Promise<void> {
+  const byId = await repo.findPatientByLabId(candidate.labPatientId, transaction);
+  if (byId && byId.id !== exceptId) {
+    throw duplicateOf(byId, ['labPatientId'], `Lab patient ID ${candidate.labPatientId} is already registered`);
+  }
+  const byName = await repo.findPatientByNameAndBirth(candidate.nameKey, candidate.dateOfBirth, transaction);
+  if (byName && byName.id !== exceptId) {
+    throw duplicateOf(byName, ['familyName', 'givenName', 'dateOfBirth'], 'A patient with this name and date of birth is already registered');
+  }
+}
+
+export async function getPatient(id: number): Promise<Patient> {
+  const p = await repo.findPatientById(id);
+  if (!p) throw notFound('Patient', id);
+  return p;
+}
+
+/** Up to `limit` patients matching what has been typed so far (name in any order, lab ID, or date of birth). */
+export async function findPatients(q: string | undefined, limit = 10): Promise<Patient[]> {
+  const tokens = searchTokens(q);
+  if (tokens.length === 0) return [];
+  return repo.searchPatients(tokens, limit);
+}
+
+export async function registerPatient(sequelize: Sequelize, actor: User, input: CreatePatientInput): Promise<Patient> {
+  return writeTransaction(sequelize, async (transaction) => {
+    const data = {
+      labPatientId: normaliseLabId(input.labPatientId),
+      familyName: input.familyName,
+      givenName: input.givenName,
+      dateOfBirth: input.dateOfBirth,
+      sex: input.sex,
+      nameKey: nameKeyOf(input.familyName, input.givenName),
+    };
+    await assertNotDuplicate(data, null, transaction);
+    const created = await repo.insertPatient(data, transaction);
+    await recordAudit(actor, { action: 'create', entity: 'patient', entityId: created.id, after: created }, transaction);
+    return created;
+  });
+}
+
+/** Corrects a patient's details; the names and lab ID copied onto their cases for search follow. */
+export async function correctPatient(
+  sequelize: Sequelize,
+  actor: User,
+  id: number,
+  input: UpdatePatientInput,
+): Promise<Patient> {
+  return writeTransaction(sequelize, async (transaction) => {
+    const current = await repo.findPatientById(id, transaction);
+    if (!current) throw notFound('Patient', id);
+    const { version, ...changes } = input;
+    const next = {
+      labPatientId: changes.labPatientId !== undefined ? normaliseLabId(changes.labPatientId) : current.labPatientId,
+      familyName: changes.familyName ?? current.familyName,
+      givenName: changes.givenName ?? current.givenName,
+      dateOfBirth: changes.dateOfBirth ?? current.dateOfBirth,
+      sex: changes.sex ?? current.sex,
+    };
+    const nameKey = nameKeyOf(next.familyName, next.givenName);
+    if (version !== current.version) throw staleVersion('patient');
+    await assertNotDuplicate({ ...next, nameKey }, id, transaction);
+    if (!(await repo.updatePatientIfVersion(id, version, { ...next, nameKey }, transaction))) throw staleVersion('patient');
+    const after = (await repo.findPatientById(id, transaction))!;
+    await refreshPatientOnCases(after, transaction);
+    await recordAudit(actor, { action: 'update', entity: 'patient', entityId: id, before: current, after }, transaction);
+    return after;
+  });
+}

@@ -1,0 +1,8 @@
+import { useQuery } from '@tanstack/react-query';
+import { labProfileQueries } from '@/features/lab-profile/api/lab-profile';
+
+/** The laboratory's time zone from its profile (null while loading), for the case pages to show times in. */
+export function useLabTimeZone(): { timeZone: string | null; error: Error | null } {
+  const { data, error } = useQuery(labProfileQueries.profile());
+  return { timeZone: data?.timeZone ?? (error ? 'UTC' : null), error };
+}
