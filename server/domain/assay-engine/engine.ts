@@ -57,10 +57,7 @@ export function calculateActivity(
       !manual && definition.background === 'baseline' ? { kind: 'all' } : pairedChoice;
     fitBackground = fitTrace(request.background, 'background', definition, bgChoice, { checkR2: false }, flags);
   } else if (definition.background !== 'none') {
-    flags.push({
-      code: 'NO_BACKGROUND',
-      message: `The ${definition.code} definition subtracts a background trace (${definition.backgroundNote || definition.background}), but none was sent: the total slope is used as the specific slope`,
-    });
+    flags.push(noBackgroundFlag(definition));
   }
 
   let slopeBlankPerMin: number | null = null;
@@ -93,37 +90,15 @@ export function calculateActivity(
         : slopeTotalPerMin - (slopeBlankPerMin ?? 0);
   }
 
-  const inputs = {
-    epsilonPerMmPerCm: definition.epsilonPerMmPerCm,
-    epsilonSource: definition.epsilonSource,
-    pathlengthCm: request.pathlengthCm,
-    reactionVolumeUl: request.reactionVolumeUl,
-    sampleVolumeUl: request.sampleVolumeUl,
-    proteinMgPerMl: request.proteinMgPerMl,
-    direction: definition.direction,
-    backgroundKind: definition.background,
-    rateModel: definition.rateModel,
-  };
-  const factor = activityFactor({
-    epsilonPerMmPerCm: definition.epsilonPerMmPerCm,
-    pathlengthCm: request.pathlengthCm,
-    reactionVolume: request.reactionVolumeUl,
-    sampleVolume: request.sampleVolumeUl,
-    proteinMgPerMl: request.proteinMgPerMl,
-  });
-  if (!Number.isFinite(factor) || !(factor > 0)) {
-    flags.push({
-      code: 'NON_FINITE',
-      message: `The activity factor is not a finite positive number (ε ${fmt(definition.epsilonPerMmPerCm)}, pathlength ${fmt(request.pathlengthCm)} cm, volumes ${fmt(request.reactionVolumeUl)}/${fmt(request.sampleVolumeUl)} µL, protein ${fmt(request.proteinMgPerMl)} mg/mL)`,
-    });
-  }
+  const inputs = inputsOf(request, definition);
+  const factor = checkedFactor(request, definition, flags);
 
   let activity: number | null = null;
   if (specificSlopePerMin !== null && Number.isFinite(factor) && factor > 0) {
     activity = judgeSpecificSlope(
       specificSlopePerMin,
       slopeTotalPerMin!,
-      request,
+      request.background ? { identicalTraces: sameTrace(request.total, request.background) } : null,
       definition,
       flags,
     )
@@ -181,6 +156,50 @@ export function calculateActivity(
   };
 }
 
+type Conditions = Pick<
+  CalculationRequest,
+  'pathlengthCm' | 'reactionVolumeUl' | 'sampleVolumeUl' | 'proteinMgPerMl'
+>;
+
+function inputsOf(request: Conditions, definition: AssayDefinition): CalculationResult['inputs'] {
+  return {
+    epsilonPerMmPerCm: definition.epsilonPerMmPerCm,
+    epsilonSource: definition.epsilonSource,
+    pathlengthCm: request.pathlengthCm,
+    reactionVolumeUl: request.reactionVolumeUl,
+    sampleVolumeUl: request.sampleVolumeUl,
+    proteinMgPerMl: request.proteinMgPerMl,
+    direction: definition.direction,
+    backgroundKind: definition.background,
+    rateModel: definition.rateModel,
+  };
+}
+
+function noBackgroundFlag(definition: AssayDefinition): Flag {
+  return {
+    code: 'NO_BACKGROUND',
+    message: `The ${definition.code} definition subtracts a background trace (${definition.backgroundNote || definition.background}), but none was sent: the total slope is used as the specific slope`,
+  };
+}
+
+/** The activity factor, with a flag when it is not a finite positive number. */
+function checkedFactor(request: Conditions, definition: AssayDefinition, flags: Flag[]): number {
+  const factor = activityFactor({
+    epsilonPerMmPerCm: definition.epsilonPerMmPerCm,
+    pathlengthCm: request.pathlengthCm,
+    reactionVolume: request.reactionVolumeUl,
+    sampleVolume: request.sampleVolumeUl,
+    proteinMgPerMl: request.proteinMgPerMl,
+  });
+  if (!Number.isFinite(factor) || !(factor > 0)) {
+    flags.push({
+      code: 'NON_FINITE',
+      message: `The activity factor is not a finite positive number (ε ${fmt(definition.epsilonPerMmPerCm)}, pathlength ${fmt(request.pathlengthCm)} cm, volumes ${fmt(request.reactionVolumeUl)}/${fmt(request.sampleVolumeUl)} µL, protein ${fmt(request.proteinMgPerMl)} mg/mL)`,
+    });
+  }
+  return factor;
+}
+
 function isSlope(b: NonNullable<CalculationOptions['blank']>): b is { slopePerMin: number } {
   return !Array.isArray(b);
 }
@@ -206,19 +225,18 @@ function traceSpan(trace: readonly TracePoint[]): { fromS: number; toS: number }
 function judgeSpecificSlope(
   specific: number,
   total: number,
-  request: CalculationRequest,
+  background: { identicalTraces: boolean } | null,
   definition: AssayDefinition,
   flags: Flag[],
 ): boolean {
   const expectedSign = definition.direction === 'rises' ? 1 : -1;
   if (
-    request.background &&
-    (sameTrace(request.total, request.background) ||
-      Math.abs(specific) <= SAME_SLOPE_RELATIVE * Math.abs(total))
+    background &&
+    (background.identicalTraces || Math.abs(specific) <= SAME_SLOPE_RELATIVE * Math.abs(total))
   ) {
     flags.push({
       code: 'BACKGROUND_MATCHES_TOTAL',
-      message: sameTrace(request.total, request.background)
+      message: background.identicalTraces
         ? 'The background trace is identical to the total trace: check that the right readings were sent for each'
         : 'The background slope equals the total slope: no inhibitor-sensitive rate remains',
     });
@@ -238,4 +256,83 @@ function judgeSpecificSlope(
     });
   }
   return ok;
+}
+
+/** Rates read off the instrument and typed in: ΔA/min of the total and, when measured, the background. */
+export interface RatesRequest extends Conditions {
+  assay: CalculationRequest['assay'];
+  /** Signed, absorbance units per minute. */
+  totalRatePerMin: number;
+  /** Signed; null when no background rate was measured. */
+  backgroundRatePerMin: number | null;
+}
+
+/**
+ * One assay from typed rates instead of traces: the same subtraction, factor and sign / near-zero /
+ * cancelled-background checks as calculateActivity, with no fit (r², window and fitted lines are null).
+ */
+export function calculateActivityFromRates(
+  request: RatesRequest,
+  definition: AssayDefinition,
+): CalculationResult {
+  if (request.assay !== definition.code) {
+    throw new RangeError(
+      `assay: the request is for ${request.assay} but the definition given is for ${definition.code}`,
+    );
+  }
+  const flags: Flag[] = [];
+  const total = request.totalRatePerMin;
+  const background = request.backgroundRatePerMin;
+  let ratesOk = true;
+  if (!Number.isFinite(total)) {
+    flags.push({ code: 'NON_FINITE', message: `total rate is not a finite number (${String(total)})` });
+    ratesOk = false;
+  }
+  if (background !== null && !Number.isFinite(background)) {
+    flags.push({ code: 'NON_FINITE', message: `background rate is not a finite number (${String(background)})` });
+    ratesOk = false;
+  }
+  if (background === null && definition.background !== 'none') flags.push(noBackgroundFlag(definition));
+
+  const specificSlopePerMin = ratesOk ? total - (background ?? 0) : null;
+  const factor = checkedFactor(request, definition, flags);
+  let activity: number | null = null;
+  if (specificSlopePerMin !== null && Number.isFinite(factor) && factor > 0) {
+    activity = judgeSpecificSlope(
+      specificSlopePerMin,
+      total,
+      background === null ? null : { identicalTraces: false },
+      definition,
+      flags,
+    )
+      ? Math.abs(specificSlopePerMin) * factor
+      : null;
+  }
+  if (definition.rateModel === 'first_order') {
+    flags.push({
+      code: 'FIRST_ORDER_NOT_COMPUTED',
+      message: `The ${definition.code} definition reports a first-order rate constant, which needs the readings themselves; typed rates give only the linear early rate`,
+    });
+  }
+  return {
+    assay: request.assay,
+    definitionVersion: definition.version,
+    slopeTotalPerMin: ratesOk ? total : null,
+    slopeBackgroundPerMin: ratesOk ? background : null,
+    specificSlopePerMin,
+    activity,
+    unit: ACTIVITY_UNIT,
+    r2: null,
+    window: null,
+    flags,
+    basis: 'linear_rate',
+    windowAuto: false,
+    slopeBlankPerMin: null,
+    residualSd: null,
+    fitTotal: null,
+    fitBackground: null,
+    factor,
+    inputs: inputsOf(request, definition),
+    firstOrder: null,
+  };
 }

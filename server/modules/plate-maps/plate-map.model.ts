@@ -12,6 +12,7 @@ export class PlateMapModel extends Model<InferAttributes<PlateMapModel>, InferCr
   declare id: CreationOptional<number>;
   declare name: string;
   declare wells: string;
+  declare description: CreationOptional<string>;
   declare createdById: number | null;
   declare version: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
@@ -24,6 +25,7 @@ export function initPlateMapModel(sequelize: Sequelize): void {
       id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
       name: { type: DataTypes.STRING(120), allowNull: false, unique: true },
       wells: { type: DataTypes.TEXT, allowNull: false },
+      description: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
       createdById: { type: DataTypes.INTEGER, allowNull: true },
       version: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
       createdAt: DataTypes.DATE,

@@ -1,0 +1,80 @@
+import type { AssayDefinition, CalculationResult } from '@/schemas/assay';
+import type { StoredInputs } from '@/schemas/measurement';
+import { calculateActivity, calculateActivityFromRates } from '../../domain/assay-engine/engine';
+
+/**
+ * One measurement through the assay engine from what was stored with it: typed rates by the rate helper,
+ * pasted readings and plate wells by the trace engine (a plate blank is subtracted as the engine says).
+ */
+export function computeFromInputs(inputs: StoredInputs, definition: AssayDefinition): CalculationResult {
+  const conditions = {
+    assay: definition.code,
+    pathlengthCm: inputs.pathlengthCm,
+    reactionVolumeUl: inputs.reactionVolumeUl,
+    sampleVolumeUl: inputs.sampleVolumeUl,
+    proteinMgPerMl: inputs.proteinMgPerMl,
+  };
+  switch (inputs.mode) {
+    case 'rates':
+      return calculateActivityFromRates(
+        { ...conditions, totalRatePerMin: inputs.totalRatePerMin, backgroundRatePerMin: inputs.backgroundRatePerMin },
+        definition,
+      );
+    case 'traces':
+      return calculateActivity(
+        {
+          ...conditions,
+          total: inputs.total,
+          ...(inputs.background ? { background: inputs.background } : {}),
+          ...(inputs.window ? { window: inputs.window } : {}),
+        },
+        definition,
+      );
+    case 'plate':
+      return calculateActivity(
+        {
+          ...conditions,
+          total: inputs.total,
+          ...(inputs.background ? { background: inputs.background } : {}),
+          ...(inputs.window ? { window: inputs.window } : {}),
+        },
+        definition,
+        inputs.blank ? { blank: inputs.blank } : {},
+      );
+  }
+}
+
+/** A short account of a measurement for the audit trail (the readings themselves stay on the row). */
+export function auditSummary(m: {
+  specimenId: number;
+  assay: string;
+  replicate: number;
+  inputs: StoredInputs;
+  result: CalculationResult;
+  definitionVersion: number;
+}): Record<string, unknown> {
+  const base = {
+    specimenId: m.specimenId,
+    assay: m.assay,
+    replicate: m.replicate,
+    inputMode: m.inputs.mode,
+    proteinMgPerMl: m.inputs.proteinMgPerMl,
+    pathlengthCm: m.inputs.pathlengthCm,
+    reactionVolumeUl: m.inputs.reactionVolumeUl,
+    sampleVolumeUl: m.inputs.sampleVolumeUl,
+    definitionVersion: m.definitionVersion,
+    specificSlopePerMin: m.result.specificSlopePerMin,
+    activity: m.result.activity,
+    flags: m.result.flags.map((f) => f.code),
+  };
+  if (m.inputs.mode === 'rates') {
+    return { ...base, totalRatePerMin: m.inputs.totalRatePerMin, backgroundRatePerMin: m.inputs.backgroundRatePerMin };
+  }
+  return {
+    ...base,
+    window: m.result.window,
+    windowAuto: m.result.windowAuto,
+    readings: m.inputs.total.length,
+    ...(m.inputs.mode === 'plate' ? { uploadId: m.inputs.uploadId, wells: m.inputs.wells } : {}),
+  };
+}

@@ -1,0 +1,177 @@
+import { useState } from 'react';
+import { TraceChart } from '@/components/charts/trace-chart';
+import { Button } from '@/components/ui/button';
+import { SelectField, TextArea, TextField } from '@/components/ui/field';
+import { Notice } from '@/components/ui/layout';
+import { ApiError } from '@/lib/api-client';
+import { assayCodes, type AssayCode } from '@/schemas/common';
+import { createMeasurementInputSchema, parsePastedReadings, type CreateMeasurementInput, type WorkupSpecimen } from '@/schemas/measurement';
+import { useCreateMeasurement, usePreviewMeasurement, type MeasurementPreview } from '../api/save-measurement';
+import { fmt } from '../utils/format';
+import { ResultLine } from './result-line';
+
+type Mode = 'rates' | 'traces';
+const numberOrNaN = (s: string) => (s.trim() === '' ? Number.NaN : Number(s));
+
+/**
+ * Typing the rates read off the instrument, or pasting the readings themselves, for one replicate of one assay.
+ * "Check" computes on the server without saving; "Save" stores the measurement.
+ */
+export function ManualEntry({ caseId, specimens, mode }: { caseId: number; specimens: WorkupSpecimen[]; mode: Mode }) {
+  const ready = specimens.filter((s) => s.accepted && s.proteinMgPerMl !== null);
+  const [specimenId, setSpecimenId] = useState(ready[0]?.id ?? 0);
+  const [assay, setAssay] = useState<AssayCode>('CS');
+  const [replicate, setReplicate] = useState('1');
+  const [pathlength, setPathlength] = useState('1');
+  const [reaction, setReaction] = useState('1000');
+  const [sample, setSample] = useState('20');
+  const [total, setTotal] = useState('');
+  const [background, setBackground] = useState('');
+  const [fromS, setFromS] = useState('');
+  const [toS, setToS] = useState('');
+  const [errors, setErrors] = useState<Record<string, string>>({});
+  const [formError, setFormError] = useState<string | null>(null);
+  const [checked, setChecked] = useState<{ input: CreateMeasurementInput; preview: MeasurementPreview } | null>(null);
+  const [saved, setSaved] = useState<string | null>(null);
+  const preview = usePreviewMeasurement(caseId);
+  const create = useCreateMeasurement(caseId);
+
+  if (ready.length === 0) {
+    return <Notice>Record the protein of an accepted specimen first: every activity is per mg of protein.</Notice>;
+  }
+
+  function build(): CreateMeasurementInput | null {
+    const found: Record<string, string> = {};
+    const common = {
+      specimenId,
+      assay,
+      replicate: numberOrNaN(replicate),
+      pathlengthCm: numberOrNaN(pathlength),
+      reactionVolumeUl: numberOrNaN(reaction),
+      sampleVolumeUl: numberOrNaN(sample),
+    };
+    let candidate: unknown;
+    if (mode === 'rates') {
+      candidate = { ...common, mode, totalRatePerMin: numberOrNaN(total), backgroundRatePerMin: background.trim() === '' ? null : numberOrNaN(background) };
+    } else {
+      const t = parsePastedReadings(total);
+      const b = background.trim() === '' ? null : parsePastedReadings(background);
+      if (t.problems.length) found.total = t.problems.map((p) => p.message).join('; ');
+      if (b?.problems.length) found.background = b.problems.map((p) => p.message).join('; ');
+      const window = fromS.trim() === '' && toS.trim() === '' ? null : { fromS: numberOrNaN(fromS), toS: numberOrNaN(toS) };
+      candidate = { ...common, mode, total: t.points, background: b ? b.points : null, window };
+    }
+    const parsed = createMeasurementInputSchema.safeParse(candidate);
+    if (!parsed.success) for (const issue of parsed.error.issues) found[issue.path.map(String).join('.')] ??= issue.message;
+    setErrors(found);
+    setFormError(null);
+    return Object.keys(found).length === 0 && parsed.success ? parsed.data : null;
+  }
+
+  const onServerError = (err: unknown) => {
+    if (err instanceof ApiError) {
+      setErrors(err.fields);
+      setFormError(err.message);
+    } else setFormError('The measurement could not be computed');
+  };
+
+  const label = (id: number) => ready.find((s) => s.id === id)?.label ?? String(id);
+  const windowError = errors['window.fromS'] ?? errors['window.toS'] ?? errors.window;
+
+  return (
+    <div className="flex flex-col gap-4">
+      <div className="grid gap-3 sm:grid-cols-3 lg:grid-cols-6">
+        <SelectField
+          label="Specimen"
+          value={String(specimenId)}
+          onChange={(e) => setSpecimenId(Number(e.target.value))}
+          options={ready.map((s) => ({ value: String(s.id), label: `${s.label} (${fmt(s.proteinMgPerMl)} mg/mL)` }))}
+          error={errors.specimenId}
+        />
+        <SelectField label="Assay" value={assay} onChange={(e) => setAssay(e.target.value as AssayCode)} options={assayCodes.map((a) => ({ value: a, label: a }))} />
+        <TextField label="Replicate" inputMode="numeric" value={replicate} onChange={(e) => setReplicate(e.target.value)} error={errors.replicate} />
+        <TextField label="Pathlength (cm)" inputMode="decimal" value={pathlength} onChange={(e) => setPathlength(e.target.value)} error={errors.pathlengthCm} />
+        <TextField label="Reaction volume (µL)" inputMode="decimal" value={reaction} onChange={(e) => setReaction(e.target.value)} error={errors.reactionVolumeUl} />
+        <TextField label="Sample volume (µL)" inputMode="decimal" value={sample} onChange={(e) => setSample(e.target.value)} error={errors.sampleVolumeUl} />
+      </div>
+      {mode === 'rates' ? (
+        <div className="grid gap-3 sm:grid-cols-2">
+          <TextField label="Total rate (ΔA/min)" inputMode="decimal" value={total} onChange={(e) => setTotal(e.target.value)} error={errors.totalRatePerMin} hint="Signed: a falling absorbance is negative." />
+          <TextField
+            label="Background rate (ΔA/min)"
+            inputMode="decimal"
+            value={background}
+            onChange={(e) => setBackground(e.target.value)}
+            error={errors.backgroundRatePerMin}
+            hint="With the inhibitor, or before the starting substrate; empty when the assay subtracts nothing."
+          />
+        </div>
+      ) : (
+        <>
+          <div className="grid gap-3 md:grid-cols-2">
+            <TextArea label="Total readings (time in s, absorbance)" value={total} onChange={(e) => setTotal(e.target.value)} error={errors.total} placeholder={'0\t0.912\n15\t0.905\n30\t0.897'} />
+            <TextArea label="Background readings (optional)" value={background} onChange={(e) => setBackground(e.target.value)} error={errors.background} placeholder="Same layout" />
+          </div>
+          <div className="grid gap-3 sm:grid-cols-[10rem_10rem_1fr]">
+            <TextField label="Window from (s)" inputMode="decimal" value={fromS} onChange={(e) => setFromS(e.target.value)} error={windowError} />
+            <TextField label="Window to (s)" inputMode="decimal" value={toS} onChange={(e) => setToS(e.target.value)} />
+            <p className="self-end pb-2 text-xs text-ink-faint">Leave both empty for the automatic window: the longest early stretch whose r² reaches the definition&apos;s threshold.</p>
+          </div>
+        </>
+      )}
+      {formError ? <Notice tone="error">{formError}</Notice> : null}
+      {saved ? <Notice tone="success">{saved}</Notice> : null}
+      <div className="flex gap-2">
+        <Button
+          variant="secondary"
+          disabled={preview.isPending}
+          onClick={() => {
+            setSaved(null);
+            const input = build();
+            if (input) preview.mutate(input, { onSuccess: (p) => setChecked({ input, preview: p }), onError: onServerError });
+          }}
+        >
+          Check
+        </Button>
+        <Button
+          disabled={create.isPending}
+          onClick={() => {
+            const input = build();
+            if (!input) return;
+            create.mutate(input, {
+              onSuccess: (m) => {
+                setSaved(`Saved ${m.assay} replicate ${m.replicate} of specimen ${label(m.specimenId)}: ${m.activity === null ? 'no activity (see flags)' : `${fmt(m.activity)} ${m.result.unit}`}.`);
+                setChecked(null);
+                setTotal('');
+                setBackground('');
+                setReplicate(String(m.replicate + 1));
+              },
+              onError: onServerError,
+            });
+          }}
+        >
+          Save measurement
+        </Button>
+      </div>
+      {checked ? (
+        <div className="grid gap-4 rounded-md border border-paper-line p-3 lg:grid-cols-[3fr_2fr]">
+          {checked.input.mode === 'traces' ? (
+            <TraceChart
+              label={`${checked.input.assay} readings`}
+              window={checked.preview.result.window}
+              series={[
+                { name: 'total', points: checked.input.total, fit: checked.preview.result.fitTotal, color: '#184a42' },
+                ...(checked.input.background
+                  ? [{ name: 'background', points: checked.input.background, fit: checked.preview.result.fitBackground, color: '#b8682f' }]
+                  : []),
+              ]}
+            />
+          ) : (
+            <p className="text-sm text-ink-soft">Typed rates: no readings to plot.</p>
+          )}
+          <ResultLine result={checked.preview.result} />
+        </div>
+      ) : null}
+    </div>
+  );
+}
