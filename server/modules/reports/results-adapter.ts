@@ -1,0 +1,118 @@
+import { defaultDiagnosticCriteria, type DiagnosticCriteria } from '@/schemas/assay';
+import { specimenClassOf, type Measure } from '@/schemas/common';
+import type { ReportResult } from '@/schemas/report-document';
+import type { AssayResult, CaseResults, ResultComparison, SpecimenResult } from '@/schemas/results';
+import { findDefinitionById } from '../assay-definitions/assay-definitions.repository';
+import { describeDefinition, type ReportableResults } from './build-report-document';
+
+/*
+ * From the measurements engineer's CaseResults (frozen at submission) to the rows the report prints.
+ * Nothing is recomputed here: every number, interval and band is copied as the snapshot holds it.
+ */
+
+const MEASURE_WORDS: Record<Measure, string> = { activity: 'activity', ratio_cs: 'ratio to CS', ratio_cii: 'ratio to CII' };
+
+/** "Bernier FP et al. 2002": the first author and year of a citation, for captions. */
+export function shortCitation(citation: string): string {
+  const author = citation.split(',')[0]?.trim() ?? citation;
+  const year = /\b(19|20)\d{2}\b/.exec(citation)?.[0];
+  return year ? `${author} ${year}` : author;
+}
+
+export function criteriaFor(specimen: Pick<SpecimenResult, 'type'>, citation: string, criteria: DiagnosticCriteria = defaultDiagnosticCriteria) {
+  const cellLine = specimenClassOf(specimen.type) === 'cell_line';
+  const rule = cellLine ? criteria.cellLine : criteria.tissue;
+  return {
+    majorBelowPct: rule.majorBelowPct,
+    minorBelowPct: rule.minorBelowPct,
+    ruleSetLabel: `${shortCitation(citation)} (${cellLine ? 'cell-line' : 'tissue'} thresholds: major below ${rule.majorBelowPct}%, minor below ${rule.minorBelowPct}% of the reference mean)`,
+  };
+}
+
+function fmt(v: number): string {
+  return Number(v.toPrecision(3)).toString();
+}
+
+function row(a: AssayResult, c: ResultComparison, flags: string[], notes: string[]): ReportResult | null {
+  const what = `${a.assay} ${MEASURE_WORDS[c.measure]}`;
+  if (!c.interval) {
+    // The report schema requires an interval version on every row; a value with no interval is stated in the
+    // methods instead of being printed against an interval version that does not exist.
+    notes.push(
+      c.value === null
+        ? `${what}: no value.`
+        : `${what} ${fmt(c.value)}${c.measure === 'activity' ? ` ${a.unit}` : ''} was measured with no reference interval for this specimen type and age.`,
+    );
+    return null;
+  }
+  const status = c.value === null || c.position === null ? 'not_compared' : c.position;
+  return {
+    assay: a.assay,
+    assayName: a.name,
+    measure: c.measure,
+    value: c.value,
+    unit: c.measure === 'activity' ? a.unit : 'ratio',
+    referenceLower: c.interval.lower,
+    referenceUpper: c.interval.upper,
+    referenceMean: c.interval.mean,
+    intervalLabel: c.interval.label,
+    intervalVersion: Math.max(1, c.interval.version),
+    status,
+    pctOfMean: status === 'not_compared' ? null : c.percentOfMean,
+    criterionBand: c.band === 'major' || c.band === 'minor' ? c.band : null,
+    flags: [...new Set(flags.map((f) => f.trim()).filter((f) => f.length > 0))],
+  };
+}
+
+function specimenRows(s: SpecimenResult, notes: string[]): ReportResult[] {
+  const rows: ReportResult[] = [];
+  for (const a of s.assays) {
+    const ratioMessages = new Set([...(a.ratioCs?.flags ?? []), ...(a.ratioCii?.flags ?? [])].map((f) => f.message));
+    // Replicate and activity flags go with the activity row; each ratio row carries its own.
+    const activityFlags = a.flags.map((f) => f.message).filter((m) => !ratioMessages.has(m));
+    const activity = row(a, a.activity, activityFlags, notes);
+    if (activity) rows.push(activity);
+    for (const c of [a.ratioCs, a.ratioCii]) {
+      if (!c) continue;
+      const r = row(a, c, c.flags.map((f) => f.message), notes);
+      if (r) rows.push(r);
+    }
+  }
+  return rows;
+}
+
+function patternSummaryOf(s: SpecimenResult): string | null {
+  if (!s.pattern) return null;
+  const sentence = (t: string) => (/[.!?]$/.test(t.trim()) ? t.trim() : `${t.trim()}.`);
+  return [s.pattern.headline, ...s.pattern.notes].filter((t) => t.trim().length > 0).map(sentence).join(' ') || null;
+}
+
+/** Every specimen's results in the report's shape, keyed by specimen id. */
+export async function toReportableResults(caseResults: CaseResults): Promise<Map<number, ReportableResults>> {
+  const descriptions = new Map<number, string>();
+  for (const d of caseResults.definitions) {
+    if (descriptions.has(d.id)) continue;
+    const stored = await findDefinitionById(d.id);
+    descriptions.set(d.id, stored ? describeDefinition(stored.definition) : `${d.assay} assay definition version ${d.version}.`);
+  }
+  const out = new Map<number, ReportableResults>();
+  for (const s of caseResults.specimens) {
+    const notes: string[] = [];
+    const results = s.accepted ? specimenRows(s, notes) : [];
+    const used = new Set(s.assays.flatMap((a) => a.replicates.map((r) => r.definitionId)));
+    const definitions = caseResults.definitions
+      .filter((d) => used.has(d.id))
+      .map((d) => ({ assay: d.assay, version: Math.max(1, d.version), description: descriptions.get(d.id)! }));
+    const citation = s.pattern?.criteriaCitation ?? defaultDiagnosticCriteria.citation;
+    out.set(s.specimenId, {
+      specimenId: s.specimenId,
+      results,
+      patternSummary: s.accepted ? patternSummaryOf(s) : null,
+      findings: (s.pattern?.findings ?? []).map((f) => ({ kind: f.kind, label: f.label, complexes: f.complexes })),
+      definitions,
+      criteria: results.some((r) => r.measure !== 'activity') ? criteriaFor(s, citation) : null,
+      notes,
+    });
+  }
+  return out;
+}

@@ -1,0 +1,29 @@
+import { queryOptions } from '@tanstack/react-query';
+import { z } from 'zod';
+import { api } from '@/lib/api-client';
+import { caseReportsListSchema, reportDetailSchema, reportListSchema } from '@/schemas/report';
+
+export const reportKeys = {
+  all: ['reports'] as const,
+  list: () => [...reportKeys.all, 'list'] as const,
+  byCase: () => [...reportKeys.all, 'by-case'] as const,
+  ofCase: (caseId: number) => [...reportKeys.all, 'of-case', caseId] as const,
+  detail: (id: number) => [...reportKeys.all, 'detail', id] as const,
+};
+
+export const reportQueries = {
+  /** Every version the user may read (GET /api/reports, the contract list). */
+  list: () => queryOptions({ queryKey: reportKeys.list(), queryFn: () => api.get('/api/reports', reportListSchema) }),
+  /** The readable reports grouped by case, with the details a reader needs. */
+  byCase: () => queryOptions({ queryKey: reportKeys.byCase(), queryFn: () => api.get('/api/reports/by-case', caseReportsListSchema) }),
+  /** Every version of one case (laboratory staff). */
+  ofCase: (caseId: number) =>
+    queryOptions({
+      queryKey: reportKeys.ofCase(caseId),
+      queryFn: async () => (await api.get(`/api/cases/${caseId}/reports`, z.object({ items: z.array(reportDetailSchema) }))).items,
+    }),
+  detail: (id: number) => queryOptions({ queryKey: reportKeys.detail(id), queryFn: () => api.get(`/api/reports/${id}`, reportDetailSchema) }),
+};
+
+/** The stored PDF of a report version; the browser downloads it with the session cookie. */
+export const reportPdfHref = (id: number) => `/api/reports/${id}/pdf`;

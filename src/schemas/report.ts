@@ -1,0 +1,225 @@
+import { z } from 'zod';
+import { caseDetailSchema, caseStateSchema, prioritySchema } from './case';
+import { specimenTypeSchema } from './common';
+
+/*
+ * Signed reports, the director's review and the e-mail notices. The shapes of GET /api/reports and of the
+ * sign request are an API contract (docs/api.md): change them only additively and in step with the tests.
+ */
+
+/** A report version as listed: final, corrected, or superseded by a later version. */
+export const reportStatuses = ['final', 'corrected', 'superseded'] as const;
+export const reportListStatusSchema = z.enum(reportStatuses);
+export type ReportListStatus = z.infer<typeof reportListStatusSchema>;
+export const reportStatusLabels: Record<ReportListStatus, string> = {
+  final: 'Final',
+  corrected: 'Corrected',
+  superseded: 'Superseded',
+};
+
+/** One element of GET /api/reports (the API contract: exactly these keys). */
+export const reportListItemSchema = z.object({
+  id: z.number().int(),
+  caseId: z.number().int(),
+  accession: z.string(),
+  version: z.number().int(),
+  status: reportListStatusSchema,
+  signedAt: z.string(),
+  signedBy: z.string(),
+});
+export type ReportListItem = z.infer<typeof reportListItemSchema>;
+export const reportListSchema = z.array(reportListItemSchema);
+
+/** One report version with what a reader needs to tell it apart and trust it. */
+export const reportDetailSchema = reportListItemSchema.extend({
+  patientName: z.string(),
+  labPatientId: z.string(),
+  dateOfBirth: z.string(),
+  specimenType: specimenTypeSchema.nullable(),
+  specimenLabel: z.string().nullable(),
+  referringClinicianName: z.string(),
+  patternSummary: z.string().nullable(),
+  interpretation: z.string(),
+  meaning: z.string(),
+  signerTitle: z.string(),
+  correctionReason: z.string().nullable(),
+  changesSummary: z.string().nullable(),
+  supersedesVersion: z.number().int().nullable(),
+  supersededByVersion: z.number().int().nullable(),
+  supersededAt: z.string().nullable(),
+  pdfSha256: z.string(),
+  pdfSizeBytes: z.number().int(),
+  documentSha256: z.string(),
+});
+export type ReportDetail = z.infer<typeof reportDetailSchema>;
+
+/** The reports of one case, newest version first (GET /api/reports/by-case). */
+export const caseReportsSchema = z.object({
+  caseId: z.number().int(),
+  accession: z.string(),
+  patientName: z.string(),
+  dateOfBirth: z.string(),
+  referringClinicianName: z.string(),
+  reports: z.array(reportDetailSchema),
+});
+export type CaseReports = z.infer<typeof caseReportsSchema>;
+export const caseReportsListSchema = z.array(caseReportsSchema);
+
+/* ---------------------------------------------------------------- signing */
+
+export const DEFAULT_SIGNATURE_MEANING = 'Reviewed and approved for release';
+export const DEFAULT_CORRECTION_MEANING = 'Reviewed and approved for release as a correction';
+
+/** Meanings offered in the signing form; the director may write another. */
+export const signatureMeanings = [
+  DEFAULT_SIGNATURE_MEANING,
+  'Reviewed, interpreted and approved for release',
+  DEFAULT_CORRECTION_MEANING,
+] as const;
+
+const password = z.string().min(1, 'Enter your password to sign').max(200);
+const meaning = z
+  .string()
+  .trim()
+  .min(3, 'Say what the signature means, e.g. "Reviewed and approved for release"')
+  .max(200, 'Use at most 200 characters');
+export const INTERPRETATION_MAX = 8000;
+const interpretation = z
+  .string()
+  .trim()
+  .min(10, 'Write the interpretation (at least 10 characters)')
+  .max(INTERPRETATION_MAX, `Use at most ${INTERPRETATION_MAX} characters`);
+const caseVersion = z.number().int().min(0);
+
+/**
+ * POST /api/cases/:id/sign. The password is checked again (the second identity component of the signature).
+ * Without `interpretation`, the saved draft is signed, or Cristae's proposal when there is no draft; without
+ * `meaning`, DEFAULT_SIGNATURE_MEANING. `version` is the case version the director reviewed.
+ */
+export const signCaseInputSchema = z
+  .object({ password, meaning: meaning.optional(), interpretation: interpretation.optional(), version: caseVersion.optional() })
+  .strict();
+export type SignCaseInput = z.infer<typeof signCaseInputSchema>;
+
+/** POST /api/cases/:id/correct: a new, signed version that supersedes the current one. */
+export const correctReportInputSchema = z
+  .object({
+    password,
+    reason: z.string().trim().min(3, 'Say why the report is corrected').max(1000, 'Use at most 1000 characters'),
+    changesSummary: z.string().trim().min(3, 'Say what changed').max(2000, 'Use at most 2000 characters'),
+    interpretation: interpretation.optional(),
+    meaning: meaning.optional(),
+    version: caseVersion.optional(),
+  })
+  .strict();
+export type CorrectReportInput = z.infer<typeof correctReportInputSchema>;
+
+/** The form fields of the sign panel (the password is typed, never kept). */
+export const signFormSchema = z.object({ interpretation, meaning, password });
+export type SignFormValues = z.infer<typeof signFormSchema>;
+export const correctFormSchema = z.object({
+  interpretation,
+  meaning,
+  password,
+  reason: correctReportInputSchema.shape.reason,
+  changesSummary: correctReportInputSchema.shape.changesSummary,
+});
+export type CorrectFormValues = z.infer<typeof correctFormSchema>;
+
+/** PUT /api/review/:id/draft: the director's working text, with the draft version they started from. */
+export const saveDraftInputSchema = z
+  .object({
+    interpretation: z.string().max(INTERPRETATION_MAX, `Use at most ${INTERPRETATION_MAX} characters`),
+    version: z.number().int().min(0).nullable(),
+  })
+  .strict();
+export type SaveDraftInput = z.infer<typeof saveDraftInputSchema>;
+
+export const interpretationDraftSchema = z.object({
+  interpretation: z.string(),
+  version: z.number().int(),
+  updatedAt: z.string(),
+  updatedByName: z.string().nullable(),
+});
+export type InterpretationDraft = z.infer<typeof interpretationDraftSchema>;
+
+/* ---------------------------------------------------------------- review */
+
+export const reviewQueueItemSchema = z.object({
+  caseId: z.number().int(),
+  accession: z.string(),
+  patientName: z.string(),
+  priority: prioritySchema,
+  specimenTypes: z.array(specimenTypeSchema),
+  receivedAt: z.string().nullable(),
+  /** When the case was last submitted for review. */
+  submittedAt: z.string().nullable(),
+  submittedByName: z.string().nullable(),
+  referringClinicianName: z.string().nullable(),
+  patternCode: z.string().nullable(),
+  patternSummary: z.string().nullable(),
+  version: z.number().int(),
+});
+export type ReviewQueueItem = z.infer<typeof reviewQueueItemSchema>;
+export const reviewQueueSchema = z.object({ items: z.array(reviewQueueItemSchema) });
+
+/** Cristae's proposed wording and the lines it was built from. */
+export const interpretationProposalSchema = z.object({
+  patternSummary: z.string().nullable(),
+  interpretation: z.string(),
+});
+export type InterpretationProposal = z.infer<typeof interpretationProposalSchema>;
+
+export const reviewCaseSchema = z.object({
+  case: caseDetailSchema,
+  state: caseStateSchema,
+  /** The specimen the report is about (first accepted specimen with results, else the first specimen). */
+  reportedSpecimenId: z.number().int().nullable(),
+  proposal: interpretationProposalSchema,
+  draft: interpretationDraftSchema.nullable(),
+  reports: z.array(reportDetailSchema),
+  /** Points the director should know before signing (e.g. a second specimen with results). */
+  notes: z.array(z.string()),
+  submittedAt: z.string().nullable(),
+  submittedByName: z.string().nullable(),
+});
+export type ReviewCase = z.infer<typeof reviewCaseSchema>;
+
+export const signResultSchema = z.object({ report: reportDetailSchema, caseState: caseStateSchema, caseVersion: z.number().int() });
+export type SignResult = z.infer<typeof signResultSchema>;
+
+/* ---------------------------------------------------------------- mail */
+
+export const outboxMessageSchema = z.object({
+  id: z.number().int(),
+  messageId: z.string().nullable(),
+  from: z.string().nullable(),
+  to: z.string(),
+  subject: z.string(),
+  text: z.string(),
+  receivedAt: z.string(),
+});
+export type OutboxMessage = z.infer<typeof outboxMessageSchema>;
+
+export const mailDeliverySchema = z.object({
+  id: z.number().int(),
+  kind: z.string(),
+  reportId: z.number().int().nullable(),
+  accession: z.string().nullable(),
+  recipient: z.string(),
+  subject: z.string(),
+  status: z.enum(['sent', 'failed']),
+  error: z.string().nullable(),
+  messageId: z.string().nullable(),
+  attemptedAt: z.string(),
+});
+export type MailDelivery = z.infer<typeof mailDeliverySchema>;
+
+/** GET /api/outbox: what the local SMTP stand-in received, and the log of every sending attempt. */
+export const outboxSchema = z.object({
+  messages: z.array(outboxMessageSchema),
+  deliveries: z.array(mailDeliverySchema),
+  /** True when a local SMTP stand-in receives the mail (development and tests), false with a real server. */
+  localServer: z.boolean(),
+});
+export type Outbox = z.infer<typeof outboxSchema>;

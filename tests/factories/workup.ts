@@ -1,0 +1,95 @@
+import type request from 'supertest';
+import { storedAssayDefinitionSchema } from '@/schemas/assay';
+import type { CaseDetail, RegisterCaseInput } from '@/schemas/case';
+import type { AssayCode } from '@/schemas/common';
+import { createCase } from './cases';
+
+type Agent = request.Agent;
+
+/*
+ * A whole workup through the laboratory's own API, as a technologist does it: register the case, record the
+ * protein, type one rate per assay, submit for review. Rates are worked back from the wanted activity with the
+ * Beer–Lambert relation of docs/domain.md §1 [derived]:
+ *   activity = |ΔA/min| × V_reaction × 1000 / (ε × l × V_sample × protein)
+ * so |ΔA/min| = activity × ε × l × V_sample × protein / (V_reaction × 1000).
+ * All values are invented fixtures.
+ */
+
+const CONDITIONS = { pathlengthCm: 1, reactionVolumeUl: 1000, sampleVolumeUl: 20 } as const;
+const PROTEIN_MG_PER_ML = 2;
+
+/** An invented muscle profile with complex I low against CS and CII (isolated complex I pattern). */
+export const isolatedComplexI: Record<AssayCode, number> = {
+  CS: 150,
+  CI: 6,
+  CII: 30,
+  CIII: 120,
+  CIV: 180,
+  'CI+III': 14,
+  'CII+III': 40,
+};
+
+/** An invented muscle profile near the demo reference means (no deficiency pattern). */
+export const nearMeans: Record<AssayCode, number> = {
+  CS: 150,
+  CI: 37,
+  CII: 30,
+  CIII: 120,
+  CIV: 180,
+  'CI+III': 45,
+  'CII+III': 40,
+};
+
+function check(res: request.Response, status: number, what: string): void {
+  if (res.status !== status) throw new Error(`${what}: ${res.status} ${JSON.stringify(res.body)}`);
+}
+
+/** Registers a case, enters its assays and submits it; returns the case as it awaits review. */
+export async function createCaseAwaitingReview(
+  tech: Agent,
+  opts: { referringClinicianId: number; activities?: Record<AssayCode, number>; overrides?: Partial<RegisterCaseInput> },
+): Promise<CaseDetail> {
+  const created = await createCase(tech, { referringClinicianId: opts.referringClinicianId, ...opts.overrides });
+  const specimen = created.specimens[0]!;
+  check(
+    await tech
+      .put(`/api/specimens/${specimen.id}/protein`)
+      .send({ kind: 'direct', proteinMgPerMl: PROTEIN_MG_PER_ML, proteinSource: 'BCA assay (fixture)', version: specimen.version }),
+    200,
+    'protein',
+  );
+  const defsRes = await tech.get('/api/assay-definitions');
+  check(defsRes, 200, 'assay definitions');
+  const defs = (defsRes.body.items as unknown[]).map((d) => storedAssayDefinitionSchema.parse(d).definition);
+  const activities = opts.activities ?? isolatedComplexI;
+  for (const def of defs) {
+    const wanted = activities[def.code];
+    const slope = (wanted * def.epsilonPerMmPerCm * CONDITIONS.pathlengthCm * CONDITIONS.sampleVolumeUl * PROTEIN_MG_PER_ML) /
+      (CONDITIONS.reactionVolumeUl * 1000);
+    const res = await tech.post(`/api/cases/${created.id}/measurements`).send({
+      specimenId: specimen.id,
+      assay: def.code,
+      replicate: 1,
+      mode: 'rates',
+      ...CONDITIONS,
+      totalRatePerMin: def.direction === 'rises' ? slope : -slope,
+      backgroundRatePerMin: def.background === 'none' ? null : 0,
+    });
+    check(res, 201, `measurement ${def.code}`);
+  }
+  const current = await tech.get(`/api/cases/${created.id}`);
+  check(current, 200, 'case');
+  check(await tech.post(`/api/cases/${created.id}/submit`).send({ version: current.body.version }), 200, 'submit');
+  const after = await tech.get(`/api/cases/${created.id}`);
+  check(after, 200, 'case after submit');
+  return after.body as CaseDetail;
+}
+
+/** The id of a demo account, looked up through the admin API. */
+export async function accountId(admin: Agent, email: string): Promise<number> {
+  const res = await admin.get('/api/users');
+  check(res, 200, 'users');
+  const found = (res.body.items as { id: number; email: string }[]).find((u) => u.email === email);
+  if (!found) throw new Error(`no account ${email}`);
+  return found.id;
+}
