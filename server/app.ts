@@ -14,8 +14,20 @@ import { route } from './lib/route';
 import { assayDefinitionsRouter } from './modules/assay-definitions/assay-definitions.router';
 import { auditRouter } from './modules/audit/audit.router';
 import { authRouter } from './modules/auth/auth.router';
+import { casesRouter } from './modules/cases/cases.router';
 import { labProfileRouter } from './modules/lab-profile/lab-profile.router';
+import { patientsRouter } from './modules/patients/patients.router';
+import { referenceIntervalsRouter } from './modules/reference-intervals/reference-intervals.router';
+import { specimensRouter } from './modules/specimens/specimens.router';
 import { usersRouter } from './modules/users/users.router';
+import { measurementsRouter } from './modules/measurements/measurements.router';
+import { plateMapsRouter } from './modules/plate-maps/plate-maps.router';
+import { resultsRouter } from './modules/results/results.router';
+import { uploadsRouter } from './modules/uploads/uploads.router';
+import { createDisabledMailer, type Mailer } from './modules/mail/mailer';
+import { mailRouter } from './modules/mail/mail.router';
+import { reportsRouter } from './modules/reports/reports.router';
+import { reviewRouter } from './modules/review/review.router';
 
 export type AppOptions = {
   sequelize: Sequelize;
@@ -26,6 +38,8 @@ export type AppOptions = {
   loginAttemptsPerWindow?: number;
   /** Periodically delete expired sessions (off in tests, whose databases live only as long as the test). */
   expireSessions?: boolean;
+  /** Sends the report notices; without one, notices are recorded as not sent (no mail server). */
+  mailer?: Mailer;
 };
 
 export const JSON_BODY_LIMIT = '256kb';
@@ -99,6 +113,20 @@ export function createApp(opts: AppOptions): Express {
   app.use(labProfileRouter(sequelize));
   app.use(auditRouter());
   app.use(assayDefinitionsRouter(sequelize));
+  app.use(patientsRouter(sequelize));
+  app.use(casesRouter(sequelize));
+  app.use(specimensRouter(sequelize));
+  app.use(referenceIntervalsRouter(sequelize));
+
+  const mailer = opts.mailer ?? createDisabledMailer(config.mail.from);
+  app.use(reportsRouter(sequelize, { sequelize, mailer, publicOrigin: config.publicOrigin }));
+  app.use(reviewRouter(sequelize));
+  app.use(mailRouter(mailer));
+
+  app.use(measurementsRouter(sequelize));
+  app.use(uploadsRouter(sequelize));
+  app.use(plateMapsRouter(sequelize));
+  app.use(resultsRouter(sequelize));
 
   app.use('/api', (req, _res, next) => next(notFound('API route', `${req.method} ${req.path}`)));
 

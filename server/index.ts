@@ -8,6 +8,7 @@ import { seedDemoIfEmpty } from './db/seed/demo';
 import { ensureDefaultDefinitions } from './modules/assay-definitions/assay-definitions.service';
 import { openDatabase } from './db/sequelize';
 import { logError, logInfo } from './lib/log';
+import { startMail } from './modules/mail/mail-setup';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 
@@ -20,7 +21,8 @@ async function main(): Promise<void> {
   await ensureDefaultDefinitions(sequelize);
   if (await seedDemoIfEmpty(sequelize, config.demoPassword)) logInfo('demo data seeded (invented, fictitious)');
 
-  const app = createApp({ sequelize, config, clientDir: path.join(root, 'dist', 'client'), expireSessions: true });
+  const mail = await startMail(sequelize, config);
+  const app = createApp({ sequelize, config, clientDir: path.join(root, 'dist', 'client'), expireSessions: true, mailer: mail.mailer });
   const server = app.listen(config.port, () => {
     logInfo(`Cristae is serving on http://localhost:${config.port}`);
   });
@@ -28,7 +30,11 @@ async function main(): Promise<void> {
   const stop = (signal: string) => {
     logInfo('shutting down', { signal });
     server.close(() => {
-      void sequelize.close().finally(() => process.exit(0));
+      void mail
+        .close()
+        .catch((err: unknown) => logError(err, 'closing mail'))
+        .then(() => sequelize.close())
+        .finally(() => process.exit(0));
     });
     setTimeout(() => process.exit(0), 5000).unref();
   };

@@ -2,9 +2,13 @@ import type { Sequelize } from 'sequelize';
 import { SequelizeStorage, Umzug } from 'umzug';
 import * as m0001 from './migrations/0001-foundation';
 import * as m0002 from './migrations/0002-registry';
+import * as m0003 from './migrations/0003-registry-indexes';
+import * as m0004 from './migrations/0004-reference-intervals';
+import * as m0005 from './migrations/0005-plate-map-description';
+import * as m0006 from './migrations/0006-reports';
 
 /** Versioned migrations, applied in this order and recorded in the SequelizeMeta table. Never sync({alter}). */
-const migrations = [m0001, m0002];
+const migrations = [m0001, m0002, m0003, m0004, m0005, m0006];
 
 export function createMigrator(sequelize: Sequelize) {
   return new Umzug({

@@ -6,9 +6,12 @@ import { initLabProfileModel } from '../modules/lab-profile/lab-profile.model';
 import { initMeasurementModel } from '../modules/measurements/measurement.model';
 import { initPatientModel } from '../modules/patients/patient.model';
 import { initPlateMapModel } from '../modules/plate-maps/plate-map.model';
+import { initReferenceIntervalModel } from '../modules/reference-intervals/reference-interval.model';
 import { initSpecimenModels } from '../modules/specimens/specimen.model';
 import { initUploadModel } from '../modules/uploads/upload.model';
 import { initUserModel } from '../modules/users/user.model';
+import { initReportModels } from '../modules/reports/report.model';
+import { initMailModels } from '../modules/mail/outbox.model';
 import { associate } from './associate';
 
 /** Binds every model class to this database. Called once per database, by createApp's callers. */
@@ -23,5 +26,8 @@ export function initModels(sequelize: Sequelize): void {
   initUploadModel(sequelize);
   initPlateMapModel(sequelize);
   initMeasurementModel(sequelize);
+  initReferenceIntervalModel(sequelize);
+  initReportModels(sequelize);
+  initMailModels(sequelize);
   associate();
 }

@@ -3,6 +3,10 @@ import type { Role } from '@/schemas/common';
 import { hashPassword } from '../../auth/password';
 import { saveLabProfile } from '../../modules/lab-profile/lab-profile.service';
 import { countUsers, insertUser } from '../../modules/users/users.repository';
+import { seedDemoCases } from './demo-cases';
+import { seedDemoIntervals } from './demo-intervals';
+import { seedDemoReports } from './demo-reports';
+import { seedDemoMeasurements } from './demo-measurements';
 
 /** Invented staff of an invented laboratory. No real people or institutions. */
 export const demoAccounts: { email: string; name: string; title: string; role: Role }[] = [
@@ -30,5 +34,10 @@ export async function seedDemoIfEmpty(sequelize: Sequelize, demoPassword: string
     for (const a of demoAccounts) await insertUser({ ...a, passwordHash }, transaction);
   });
   await saveLabProfile(sequelize, null, demoLabProfile);
+  await seedDemoIntervals(sequelize);
+  const demoCaseIds = await seedDemoCases(sequelize);
+  await seedDemoMeasurements(sequelize, demoCaseIds);
+  // Last: signs cases the seeds above left awaiting review.
+  await seedDemoReports(sequelize, demoCaseIds);
   return true;
 }
