@@ -28,7 +28,8 @@ describe('signing in, in Chromium', () => {
     await signIn(page, server.origin, email);
     await page.waitForURL(`**${landing}`);
     const nav = page.getByRole('navigation', { name: 'Main' });
-    for (const label of sees) await expect(nav.getByRole('link', { name: label, exact: true }).count()).resolves.toBe(1);
+    // The shell renders after the session loads: wait for each expected link before counting the others.
+    for (const label of sees) await nav.getByRole('link', { name: label, exact: true }).waitFor();
     for (const label of never) await expect(nav.getByRole('link', { name: label, exact: true }).count()).resolves.toBe(0);
     await page.waitForLoadState('networkidle');
     await screenshot(page, `sign-in-${email.split('@')[0]}`);
@@ -39,7 +40,8 @@ describe('signing in, in Chromium', () => {
     const page = await browser.newPage();
     await signIn(page, server.origin, 'clinician@demo.test');
     await page.goto(`${server.origin}/admin/accounts`);
-    await expect(page.getByRole('heading', { name: 'This page is not part of your role' }).isVisible()).resolves.toBe(true);
+    await page.getByRole('heading', { name: 'This page is not part of your role' }).waitFor();
+    await expect(page.getByRole('heading', { name: 'Accounts' }).count()).resolves.toBe(0);
     await page.close();
   });
 
@@ -49,7 +51,7 @@ describe('signing in, in Chromium', () => {
     await page.getByLabel('E-mail address').fill('director@demo.test');
     await page.getByLabel('Password').fill('wrong-password');
     await page.getByRole('button', { name: 'Sign in' }).click();
-    await expect(page.getByRole('alert').first().textContent()).resolves.toMatch(/not correct/);
+    await page.getByRole('alert').filter({ hasText: 'not correct' }).waitFor();
     expect(new URL(page.url()).pathname).toBe('/sign-in');
     await page.close();
   });
