@@ -7,7 +7,7 @@ import { transportConditionLabels } from '@/schemas/case';
 import { reportCaution } from '@/schemas/report-document';
 import { reportListItemSchema, type ReportDetail } from '@/schemas/report';
 import type { CaseResults } from '@/schemas/results';
-import { createCase } from '../factories/cases';
+import { buildSpecimenInput, createCase } from '../factories/cases';
 import { accountId, createCaseAwaitingReview } from '../factories/workup';
 import { DEMO_PASSWORD, countRows, makeTestApp, type TestApp } from '../setup/test-app';
 
@@ -387,5 +387,33 @@ describe('who reads which report', () => {
       const versions = g.reports.map((r) => r.version);
       expect(versions).toEqual([...versions].sort((x, y) => y - x));
     }
+  });
+});
+
+describe('a case whose only specimen was rejected on receipt', () => {
+  it('when it is submitted and signed, then the report states the rejection and its reason, and no results', async () => {
+    // CLIA 42 CFR 493.1291(c)(7) [confirmed]: the report shows the condition and disposition of a specimen that
+    // did not meet the laboratory's criteria for acceptability.
+    const c = await createCase(tech, {
+      specimen: buildSpecimenInput({ accepted: false, rejectionReason: 'Thawed in transit', transportCondition: 'thawed' }),
+    });
+    expect(c.state).toBe('received');
+    const submitted = await tech.post(`/api/cases/${c.id}/submit`).send({ version: c.version });
+    expect(submitted.status).toBe(200);
+    expect(submitted.body.state).toBe('awaiting_review');
+    const signed = await sign(c.id);
+    expect(signed.status).toBe(201);
+    const [report] = await reportOf(c.id);
+    const text = await pdfText((await binary(tech.get(`/api/reports/${report!.id}/pdf`))).body as Buffer);
+    expect(text).toContain('Thawed in transit');
+    expect(text).toMatch(/not performed/i);
+    expect(text).not.toContain('Ratio to CS');
+  });
+
+  it('when a received case still has an accepted specimen without results, then submission is refused (409)', async () => {
+    const c = await createCase(tech);
+    const res = await tech.post(`/api/cases/${c.id}/submit`).send({ version: c.version });
+    expect(res.status).toBe(409);
+    expect(res.body.error.code).toBe('INVALID_STATE');
   });
 });

@@ -314,20 +314,27 @@ export async function submitCaseForReview(
   return writeTransaction(sequelize, async (t) => {
     const c = await findCaseById(caseId, t);
     if (!c) throw notFound('Case', caseId);
-    if (c.state !== 'in_assay') {
+    const results = await computeCaseResults(caseId, t);
+    // Every specimen rejected on receipt: there is nothing to assay, but the rejection and its reason must
+    // still reach the requester in a signed report (CLIA 42 CFR 493.1291(c)(7) [confirmed]).
+    const allRejected = results.specimens.length > 0 && results.specimens.every((s) => !s.accepted);
+    if (c.state !== 'in_assay' && !(c.state === 'received' && allRejected)) {
       throw invalidState(
         c.state === 'received'
           ? `Case ${c.accession} has no assay results yet: enter them before submitting it for review.`
           : `Case ${c.accession} is not in assay, so it cannot be submitted for review.`,
       );
     }
-    const results = await computeCaseResults(caseId, t);
-    if (!results.specimens.some((s) => s.assays.length > 0)) {
+    if (!allRejected && !results.specimens.some((s) => s.assays.length > 0)) {
       throw invalidState(`Case ${c.accession} has no assay results yet: enter them before submitting it for review.`);
+    }
+    let version = input.version;
+    if (c.state === 'received') {
+      version = (await transitionCase(sequelize, actor, caseId, 'in_assay', { version }, t)).version;
     }
     const frozen: CaseResults = { ...results, frozen: true };
     await writeResultsSnapshot(caseId, JSON.stringify(frozen), results.patternCode, t);
-    const after = await transitionCase(sequelize, actor, caseId, 'awaiting_review', { version: input.version }, t);
+    const after = await transitionCase(sequelize, actor, caseId, 'awaiting_review', { version }, t);
     return { ...frozen, state: after.state, caseVersion: after.version, returnReason: after.returnReason };
   });
 }

@@ -14,6 +14,9 @@ export function SubmitPanel({ results }: { results: CaseResults }) {
   const [confirming, setConfirming] = useState(false);
   const [error, setError] = useState<string | null>(null);
   const hasResults = results.specimens.some((s) => s.assays.length > 0);
+  // With every specimen rejected on receipt there is nothing to assay; the report states the rejection.
+  const allRejected = results.specimens.length > 0 && results.specimens.every((s) => !s.accepted);
+  const canSubmit = hasResults || allRejected;
 
   if (results.frozen) {
     return (
@@ -22,11 +25,17 @@ export function SubmitPanel({ results }: { results: CaseResults }) {
       </Notice>
     );
   }
-  if (results.state !== 'in_assay') {
+  if (results.state !== 'in_assay' && !(results.state === 'received' && allRejected)) {
     return <Notice>{hasResults ? 'The case is not in assay, so it cannot be submitted.' : 'Enter assay results first; the case is submitted from here once they are in.'}</Notice>;
   }
   return (
     <div className="flex flex-col gap-3">
+      {allRejected ? (
+        <p className="text-sm text-ink-soft">
+          Every specimen of this case was rejected on receipt. Submitting sends the case to the director, whose signed report will
+          state the rejection and its reason so the requester can send a new specimen.
+        </p>
+      ) : null}
       <p className="text-sm text-ink-soft">
         Check every row and flag above. Submitting freezes these numbers, the intervals they were compared with and the pattern, and sends
         the case to the director. Nothing can be changed afterwards unless the director returns the case.
@@ -57,7 +66,7 @@ export function SubmitPanel({ results }: { results: CaseResults }) {
         </div>
       ) : (
         <div>
-          <Button disabled={!hasResults} onClick={() => setConfirming(true)}>
+          <Button disabled={!canSubmit} onClick={() => setConfirming(true)}>
             Submit for review…
           </Button>
         </div>
