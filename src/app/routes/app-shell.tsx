@@ -15,7 +15,8 @@ export function AppShell() {
 
   return (
     <div className="flex min-h-screen">
-      <nav aria-label="Main" className="sticky top-0 flex h-screen w-rail shrink-0 flex-col bg-matrix-900 px-4 py-5 text-matrix-100">
+      <div className="w-rail shrink-0 bg-matrix-900">
+      <nav aria-label="Main" className="sticky top-0 flex h-screen flex-col px-4 py-5 text-matrix-100">
         <Wordmark light className="mb-8 px-2" />
         <ul className="flex flex-col gap-0.5">
           {items.map((n) => (
@@ -44,6 +45,7 @@ export function AppShell() {
           </button>
         </div>
       </nav>
+      </div>
       <main className="min-w-0 flex-1 px-8 py-7">
         <Outlet />
       </main>

@@ -2,6 +2,7 @@ import { useParams } from 'react-router-dom';
 import { Loading } from '@/components/ui/layout';
 import { CaseDetailLayout } from '@/features/cases/components/case-detail-layout';
 import { CaseFilesPanel } from '@/features/measurements/components/case-files-panel';
+import { CaseReportsPanel } from '@/features/reports/components/case-reports-panel';
 import { WorkupSummaryPanel } from '@/features/results/components/workup-summary-panel';
 import type { CaseDetail } from '@/schemas/case';
 import { useLabTimeZone } from './use-lab-time-zone';
@@ -14,7 +15,9 @@ import { useLabTimeZone } from './use-lab-time-zone';
  * measurements panel, e.g. <MeasurementsPanel detail={detail} timeZone={timeZone} />.
  */
 function CaseWorkSections({ detail }: { detail: CaseDetail; timeZone: string }) {
+  const signed = detail.state === 'final' || detail.state === 'corrected';
   return (
+    <>
     <section aria-labelledby="work-area-title" data-slot="case-work" className="rounded-card border border-paper-line bg-paper-raised p-5 shadow-card">
       <h2 id="work-area-title" className="mb-3 text-lg font-semibold text-matrix-900">
         Assay entry and results
@@ -24,6 +27,15 @@ function CaseWorkSections({ detail }: { detail: CaseDetail; timeZone: string }) 
         <CaseFilesPanel caseId={detail.id} />
       </div>
     </section>
+    {signed ? (
+      <section aria-labelledby="reports-title" className="rounded-card border border-paper-line bg-paper-raised p-5 shadow-card">
+        <h2 id="reports-title" className="mb-3 text-lg font-semibold text-matrix-900">
+          Signed reports
+        </h2>
+        <CaseReportsPanel caseId={detail.id} />
+      </section>
+    ) : null}
+    </>
   );
 }
 
