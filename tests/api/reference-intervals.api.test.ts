@@ -9,7 +9,7 @@ import {
   intervalListSchema,
   storedIntervalSchema,
   type StoredInterval,
-} from '@/features/reference-intervals/api/interval-schemas';
+} from '@/schemas/reference-interval-api';
 import {
   findApplicableInterval,
   getIntervalById,

@@ -11,6 +11,15 @@ import type {
   VerificationResult,
 } from '@/schemas/reference-interval';
 import type { User } from '@/schemas/user';
+import type {
+  ControlPreview,
+  ControlSelection,
+  ControlUploadDetail,
+  ControlUploadSummary,
+  DraftFromControlsBody,
+  PartitionBody,
+  StoredInterval,
+} from '@/schemas/reference-interval-api';
 import { parseControlCsv } from '../../domain/reference-stats/control-csv';
 import { derive, deriveInterval } from '../../domain/reference-stats/derive';
 import { ReferenceStatsInputError } from '../../domain/reference-stats/errors';
@@ -22,15 +31,6 @@ import { AppError, badInput, fileRejected, notFound } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
 import { ageBandText, methodDescriptions, outlierDescriptions } from './interval-labels';
 import * as repo from './reference-intervals.repository';
-import type {
-  ControlPreview,
-  ControlSelection,
-  ControlUploadDetail,
-  ControlUploadSummary,
-  DraftFromControlsBody,
-  PartitionBody,
-  StoredInterval,
-} from './reference-intervals.schemas';
 import { insertDraft } from './reference-intervals.service';
 
 /** Largest control file accepted (multer limit): about 20 000 subjects with every assay. */

@@ -1,10 +1,10 @@
 import { Op, type Transaction, type WhereOptions } from 'sequelize';
 import type { AssayCode, Measure, SpecimenType } from '@/schemas/common';
 import type { ReferenceIntervalStatus } from '@/schemas/reference-interval';
+import type { ControlUploadSummary, IntervalDerivation, StoredInterval } from '@/schemas/reference-interval-api';
 import { UploadModel } from '../uploads/upload.model';
 import { findUserById } from '../users/users.repository';
 import { ReferenceIntervalModel } from './reference-interval.model';
-import type { ControlUploadSummary, IntervalDerivation, StoredInterval } from './reference-intervals.schemas';
 import { intervalLabel } from './interval-labels';
 
 /** The columns a new version is written with. */

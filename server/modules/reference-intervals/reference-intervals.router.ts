@@ -3,8 +3,6 @@ import multer from 'multer';
 import type { Sequelize } from 'sequelize';
 import { idParamsSchema } from '@/schemas/common';
 import { deriveRequestSchema, verificationRequestSchema } from '@/schemas/reference-interval';
-import { route } from '../../lib/route';
-import * as controls from './control-data.service';
 import {
   controlSelectionSchema,
   controlUploadIdParamsSchema,
@@ -13,7 +11,9 @@ import {
   partitionBodySchema,
   retireBodySchema,
   revisionBodySchema,
-} from './reference-intervals.schemas';
+} from '@/schemas/reference-interval-api';
+import { route } from '../../lib/route';
+import * as controls from './control-data.service';
 import * as intervals from './reference-intervals.service';
 
 /** One CSV per request, held in memory: control files are small, and they are kept in the database. */

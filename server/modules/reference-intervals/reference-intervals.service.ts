@@ -2,11 +2,11 @@ import type { Sequelize, Transaction } from 'sequelize';
 import { ACTIVITY_UNIT, type ComparisonInterval } from '@/schemas/assay';
 import type { AssayCode, Measure, SpecimenType } from '@/schemas/common';
 import type { User } from '@/schemas/user';
+import type { CreateIntervalBody, IntervalDerivation, RetireBody, StoredInterval } from '@/schemas/reference-interval-api';
 import { AppError, invalidState, notFound, staleVersion } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
 import { ageBandText, intervalKeyOf } from './interval-labels';
 import * as repo from './reference-intervals.repository';
-import type { CreateIntervalBody, IntervalDerivation, RetireBody, StoredInterval } from './reference-intervals.schemas';
 
 const AUDIT_ENTITY = 'reference-interval';
 

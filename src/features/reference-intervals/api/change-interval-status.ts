@@ -1,7 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '@/lib/api-client';
+import { storedIntervalSchema, type StoredInterval } from '@/schemas/reference-interval-api';
 import { intervalKeys, intervalQueries } from './interval-queries';
-import { storedIntervalSchema, type StoredInterval } from './interval-schemas';
 
 function useAfterStatusChange() {
   const qc = useQueryClient();

@@ -1,7 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '@/lib/api-client';
+import { storedIntervalSchema, type DraftFromControlsInput, type NewIntervalInput, type StoredInterval } from '@/schemas/reference-interval-api';
 import { intervalKeys, intervalQueries } from './interval-queries';
-import { storedIntervalSchema, type DraftFromControlsInput, type NewIntervalInput, type StoredInterval } from './interval-schemas';
 
 async function storeDraft(qc: ReturnType<typeof useQueryClient>, created: StoredInterval) {
   qc.setQueryData(intervalQueries.detail(created.id).queryKey, created);

@@ -7,7 +7,7 @@ import {
   intervalListSchema,
   storedIntervalSchema,
   type ControlSelection,
-} from './interval-schemas';
+} from '@/schemas/reference-interval-api';
 
 export const intervalKeys = {
   all: ['reference-intervals'] as const,

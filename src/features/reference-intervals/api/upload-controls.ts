@@ -1,7 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '@/lib/api-client';
+import { controlUploadResponseSchema } from '@/schemas/reference-interval-api';
 import { intervalKeys, intervalQueries } from './interval-queries';
-import { controlUploadResponseSchema } from './interval-schemas';
 
 export function useUploadControls() {
   const qc = useQueryClient();

@@ -1,8 +1,8 @@
 import { useQuery } from '@tanstack/react-query';
 import { Button } from '@/components/ui/button';
 import { Loading, Notice } from '@/components/ui/layout';
+import type { ControlSelection } from '@/schemas/reference-interval-api';
 import { intervalQueries } from '../api/interval-queries';
-import type { ControlSelection } from '../api/interval-schemas';
 import { DistributionChart } from './distribution-chart';
 import { methodNames, num, outlierNames } from './interval-text';
 

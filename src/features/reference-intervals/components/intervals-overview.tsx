@@ -3,8 +3,8 @@ import { Link } from 'react-router-dom';
 import { Card, Loading, Notice } from '@/components/ui/layout';
 import { paths } from '@/config/paths';
 import { assayCodes, specimenTypeLabels, specimenTypes } from '@/schemas/common';
+import type { StoredInterval } from '@/schemas/reference-interval-api';
 import { intervalQueries } from '../api/interval-queries';
-import type { StoredInterval } from '../api/interval-schemas';
 import { ageText, assayNames, measureNames, methodNames, num, periodText } from './interval-text';
 import { StatusTag } from './status-tag';
 

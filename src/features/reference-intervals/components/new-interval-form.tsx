@@ -7,8 +7,8 @@ import { paths } from '@/config/paths';
 import { applyServerError, useUnsavedChangesPrompt, useZodForm } from '@/lib/form';
 import { assayCodes, measures, specimenTypeLabels, specimenTypes } from '@/schemas/common';
 import { intervalMethods } from '@/schemas/reference-interval';
+import { newIntervalFormSchema } from '@/schemas/reference-interval-api';
 import { useCreateInterval } from '../api/create-interval';
-import { newIntervalFormSchema } from '../api/interval-schemas';
 import { assayNames, measureNames, methodNames, todayIso } from './interval-text';
 
 const optionalNumber = (v: unknown) => (v === '' || v === null || v === undefined ? null : Number(v));

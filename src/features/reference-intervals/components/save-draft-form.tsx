@@ -5,8 +5,8 @@ import { TextField } from '@/components/ui/field';
 import { Notice } from '@/components/ui/layout';
 import { paths } from '@/config/paths';
 import { ApiError } from '@/lib/api-client';
+import type { ControlSelection } from '@/schemas/reference-interval-api';
 import { useCreateDraftFromControls } from '../api/create-interval';
-import type { ControlSelection } from '../api/interval-schemas';
 import { methodNames, todayIso } from './interval-text';
 
 /** Names the set and the dates; the server derives the numbers again from the stored file and keeps the draft. */

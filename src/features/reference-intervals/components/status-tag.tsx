@@ -1,4 +1,4 @@
-import type { StoredInterval } from '../api/interval-schemas';
+import type { StoredInterval } from '@/schemas/reference-interval-api';
 import { statusNames, todayIso } from './interval-text';
 
 const tones = {
