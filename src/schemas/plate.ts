@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { tracePointSchema, type TracePoint } from './assay';
 import { assayCodeSchema } from './common';
 
 /*
@@ -265,9 +266,12 @@ export const plateParseResultSchema = z
   });
 export type PlateParseResult = z.infer<typeof plateParseResultSchema>;
 
-/** One reading: t in seconds since the start of the read, a in absorbance units. */
-export const tracePointSchema = z.object({ t: z.number(), a: z.number() });
-export type TracePoint = z.infer<typeof tracePointSchema>;
+/**
+ * One reading: t in seconds since the start of the read, a in absorbance units. This is ./assay's schema
+ * (strict, finite t and a), re-exported so plate code can import it with the other plate shapes. Mapped
+ * groups only ever carry { t, a } built from finite parsed absorbances, so its strictness changes nothing here.
+ */
+export { tracePointSchema, type TracePoint };
 
 export const mappedTraceGroupSchema = z.object({
   specimenRef: z.string(),
