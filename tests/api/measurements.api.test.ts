@@ -2,29 +2,25 @@ import { linearRegression } from 'simple-statistics';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { measurementSchema, type CreateMeasurementInput } from '@/schemas/measurement';
 import { buildSpecimenInput, createCase } from '../factories/cases';
-import { countRows, makeTestApp, type TestApp } from '../setup/test-app';
+import { cuvette, recordDirectProtein } from '../factories/measurements';
+import { makeAppWithLabStaff, type Agent } from '../setup/lab-staff';
+import { countRows, type TestApp } from '../setup/test-app';
 
-type Agent = Awaited<ReturnType<TestApp['signedIn']>>;
 let t: TestApp;
 let tech: Agent;
 let director: Agent;
 beforeAll(async () => {
-  t = await makeTestApp();
-  tech = await t.signedIn('technologist');
-  director = await t.signedIn('director');
+  ({ t, tech, director } = await makeAppWithLabStaff());
 });
 afterAll(() => t.close());
 
-// 1 mL reaction, 1 cm, 10 µL of a 4 mg/mL homogenate: 40 µg protein in the cuvette, as in the domain worked check.
-const cuvette = { pathlengthCm: 1, reactionVolumeUl: 1000, sampleVolumeUl: 10 };
+// cuvette: 1 mL reaction, 1 cm, 10 µL of a 4 mg/mL homogenate: 40 µg protein in the cuvette, as in the domain worked check.
 
 /** A received case with one accepted muscle specimen whose protein is recorded (typed in). */
 async function caseWithProtein(proteinMgPerMl = 4) {
   const c = await createCase(tech);
   const specimen = c.specimens[0]!;
-  const res = await tech
-    .put(`/api/specimens/${specimen.id}/protein`)
-    .send({ kind: 'direct', proteinMgPerMl, proteinSource: 'BCA, read elsewhere (test)', version: specimen.version });
+  const res = await recordDirectProtein(tech, specimen, proteinMgPerMl, 'BCA, read elsewhere (test)');
   expect(res.status).toBe(200);
   return { caseId: c.id, specimenId: specimen.id, specimenVersion: res.body.version as number };
 }

@@ -4,16 +4,15 @@ import { defaultAssayDefinitions, demoReferenceIntervals } from '@/schemas/assay
 import type { AssayCode, Measure } from '@/schemas/common';
 import { caseResultsSchema, type AssayResult, type CaseResults } from '@/schemas/results';
 import { createCase } from '../factories/cases';
-import { makeTestApp, type TestApp } from '../setup/test-app';
+import { cuvette, recordDirectProtein } from '../factories/measurements';
+import { makeAppWithLabStaff, type Agent } from '../setup/lab-staff';
+import type { TestApp } from '../setup/test-app';
 
-type Agent = Awaited<ReturnType<TestApp['signedIn']>>;
 let t: TestApp;
 let tech: Agent;
 let director: Agent;
 beforeAll(async () => {
-  t = await makeTestApp();
-  tech = await t.signedIn('technologist');
-  director = await t.signedIn('director');
+  ({ t, tech, director } = await makeAppWithLabStaff());
 });
 afterAll(() => t.close());
 
@@ -24,7 +23,6 @@ afterAll(() => t.close());
  * mean ± 2 SD), and the criteria bands against Bernier et al. 2002 tissue thresholds (< 20% major,
  * 20–30% minor of the control mean) [from memory, docs/domain.md §2].
  */
-const cuvette = { pathlengthCm: 1, reactionVolumeUl: 1000, sampleVolumeUl: 10 };
 const def = (a: AssayCode) => defaultAssayDefinitions.find((d) => d.code === a)!;
 const demo = (a: AssayCode, m: Measure) => demoReferenceIntervals.find((i) => i.assay === a && i.measure === m)!;
 
@@ -41,7 +39,7 @@ function ratesFor(assay: AssayCode, activity: number) {
 async function caseWith(activities: Partial<Record<AssayCode, number | number[]>>) {
   const c = await createCase(tech);
   const s = c.specimens[0]!;
-  const p = await tech.put(`/api/specimens/${s.id}/protein`).send({ kind: 'direct', proteinMgPerMl: 4, proteinSource: 'BCA (test)', version: s.version });
+  const p = await recordDirectProtein(tech, s, 4, 'BCA (test)');
   expect(p.status).toBe(200);
   for (const [assay, values] of Object.entries(activities) as [AssayCode, number | number[]][]) {
     const list = Array.isArray(values) ? values : [values];

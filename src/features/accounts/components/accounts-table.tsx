@@ -1,7 +1,8 @@
 import { useQuery } from '@tanstack/react-query';
-import { createColumnHelper, flexRender, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from '@tanstack/react-table';
+import { createColumnHelper, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from '@tanstack/react-table';
 import { useMemo, useState } from 'react';
 import { Button } from '@/components/ui/button';
+import { DataTable, type DataTableClasses } from '@/components/ui/data-table';
 import { Loading, Notice } from '@/components/ui/layout';
 import { ApiError } from '@/lib/api-client';
 import { roles, type Role } from '@/schemas/common';
@@ -11,6 +12,14 @@ import { useResetPassword, useUpdateAccount } from '../api/change-account';
 import { roleLabels } from './role-labels';
 
 const col = createColumnHelper<UserAccount>();
+
+const accountTableClasses: DataTableClasses = {
+  head: 'border-b border-paper-line text-ink-soft',
+  headerCell: 'py-2 pr-3 font-medium',
+  sortButton: 'hover:text-matrix-700',
+  row: 'border-b border-paper-line/70 align-middle',
+  cell: 'py-2 pr-3',
+};
 
 function AccountActions({ account, onMessage }: { account: UserAccount; onMessage: (tone: 'error' | 'success', text: string) => void }) {
   const update = useUpdateAccount();
@@ -136,37 +145,11 @@ export function AccountsTable() {
   return (
     <div className="flex flex-col gap-3">
       {message ? <Notice tone={message.tone}>{message.text}</Notice> : null}
-      <table className="w-full text-left text-sm">
-        <thead className="border-b border-paper-line text-ink-soft">
-          {table.getHeaderGroups().map((hg) => (
-            <tr key={hg.id}>
-              {hg.headers.map((h) => (
-                <th key={h.id} className="py-2 pr-3 font-medium">
-                  {h.column.getCanSort() ? (
-                    <button type="button" className="hover:text-matrix-700" onClick={h.column.getToggleSortingHandler()}>
-                      {flexRender(h.column.columnDef.header, h.getContext())}
-                      {{ asc: ' ↑', desc: ' ↓' }[h.column.getIsSorted() as string] ?? ''}
-                    </button>
-                  ) : (
-                    flexRender(h.column.columnDef.header, h.getContext())
-                  )}
-                </th>
-              ))}
-            </tr>
-          ))}
-        </thead>
-        <tbody>
-          {table.getRowModel().rows.map((row) => (
-            <tr key={row.id} className="border-b border-paper-line/70 align-middle">
-              {row.getVisibleCells().map((cell) => (
-                <td key={cell.id} className="py-2 pr-3">
-                  {flexRender(cell.column.columnDef.cell, cell.getContext())}
-                </td>
-              ))}
-            </tr>
-          ))}
-        </tbody>
-      </table>
+      <DataTable
+        table={table}
+        classes={accountTableClasses}
+        sortIndicator={(sorted) => (sorted ? { asc: ' ↑', desc: ' ↓' }[sorted] : '')}
+      />
     </div>
   );
 }

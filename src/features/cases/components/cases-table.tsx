@@ -1,7 +1,6 @@
 import { useQuery } from '@tanstack/react-query';
 import {
   createColumnHelper,
-  flexRender,
   getCoreRowModel,
   useReactTable,
   type SortingState,
@@ -9,6 +8,7 @@ import {
 } from '@tanstack/react-table';
 import { useCallback, useMemo } from 'react';
 import { Link, useSearchParams } from 'react-router-dom';
+import { DataTable, type DataTableClasses } from '@/components/ui/data-table';
 import { Notice } from '@/components/ui/layout';
 import { paths } from '@/config/paths';
 import { specimenTypeLabels } from '@/schemas/common';
@@ -21,6 +21,14 @@ import { StatePill } from './state-pill';
 
 const col = createColumnHelper<CaseSummary>();
 const sortable = new Set<string>(caseSortFields);
+
+const caseTableClasses: DataTableClasses = {
+  head: 'border-b border-paper-line bg-paper-sunk/60 text-xs uppercase tracking-wide text-ink-soft',
+  headerCell: 'px-3 py-2.5 font-medium',
+  sortButton: 'inline-flex items-center gap-1 uppercase tracking-wide hover:text-matrix-800',
+  row: 'border-b border-paper-line/60 last:border-0 hover:bg-matrix-50/40',
+  cell: 'px-3 py-2.5 align-middle',
+};
 
 const kindWords: Record<string, string> = {
   normal: 'Within reference',
@@ -133,62 +141,31 @@ export function CasesTable({ timeZone }: { timeZone: string }) {
       <CaseFilters query={query} onChange={change} />
       {error ? <Notice tone="error">{error.message}</Notice> : null}
       <div className={`overflow-x-auto rounded-card border border-paper-line bg-paper-raised shadow-card transition-opacity ${isPlaceholderData ? 'opacity-60' : ''}`}>
-        <table className="w-full text-left text-sm">
-          <thead className="border-b border-paper-line bg-paper-sunk/60 text-xs uppercase tracking-wide text-ink-soft">
-            {table.getHeaderGroups().map((hg) => (
-              <tr key={hg.id}>
-                {hg.headers.map((h) => {
-                  const sorted = h.column.getIsSorted();
-                  const canSort = sortable.has(h.column.id) && h.column.getCanSort();
-                  return (
-                    <th
-                      key={h.id}
-                      scope="col"
-                      className="px-3 py-2.5 font-medium"
-                      aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : undefined}
-                    >
-                      {canSort ? (
-                        <button type="button" className="inline-flex items-center gap-1 uppercase tracking-wide hover:text-matrix-800" onClick={h.column.getToggleSortingHandler()}>
-                          {flexRender(h.column.columnDef.header, h.getContext())}
-                          <span aria-hidden="true" className={sorted ? 'text-copper-600' : 'text-ink-faint/50'}>
-                            {sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '↕'}
-                          </span>
-                        </button>
-                      ) : (
-                        flexRender(h.column.columnDef.header, h.getContext())
-                      )}
-                    </th>
-                  );
-                })}
-              </tr>
-            ))}
-          </thead>
-          <tbody>
-            {table.getRowModel().rows.map((row) => (
-              <tr key={row.id} className="border-b border-paper-line/60 last:border-0 hover:bg-matrix-50/40">
-                {row.getVisibleCells().map((cell) => (
-                  <td key={cell.id} className="px-3 py-2.5 align-middle">
-                    {flexRender(cell.column.columnDef.cell, cell.getContext())}
-                  </td>
-                ))}
-              </tr>
-            ))}
-            {!isPending && total === 0 ? (
-              <tr>
-                <td colSpan={columns.length} className="px-3 py-10 text-center text-ink-soft">
-                  {hasFilters(query) ? 'No cases match this search and these filters.' : 'No cases have been registered yet.'}
-                </td>
-              </tr>
-            ) : null}
-            {isPending ? (
-              <tr>
-                <td colSpan={columns.length} className="px-3 py-10 text-center text-ink-faint">
-                  <span role="status">Loading cases…</span>
-                </td>
-              </tr>
-            ) : null}
-          </tbody>
-        </table>
+        <DataTable
+          table={table}
+          classes={caseTableClasses}
+          canSort={(column) => sortable.has(column.id)}
+          sortIndicator={(sorted) => (
+            <span aria-hidden="true" className={sorted ? 'text-copper-600' : 'text-ink-faint/50'}>
+              {sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '↕'}
+            </span>
+          )}
+        >
+          {!isPending && total === 0 ? (
+            <tr>
+              <td colSpan={columns.length} className="px-3 py-10 text-center text-ink-soft">
+                {hasFilters(query) ? 'No cases match this search and these filters.' : 'No cases have been registered yet.'}
+              </td>
+            </tr>
+          ) : null}
+          {isPending ? (
+            <tr>
+              <td colSpan={columns.length} className="px-3 py-10 text-center text-ink-faint">
+                <span role="status">Loading cases…</span>
+              </td>
+            </tr>
+          ) : null}
+        </DataTable>
       </div>
       <div className="flex flex-wrap items-center justify-between gap-3 text-sm text-ink-soft">
         <p role="status" aria-live="polite">

@@ -7,8 +7,8 @@ import { applyServerError, useUnsavedChangesPrompt, useZodForm } from '@/lib/for
 import { registerCaseInputSchema, type CaseDetail } from '@/schemas/case';
 import { caseQueries } from '../api/case-queries';
 import { useRegisterCase } from '../api/register-case';
-import { toLabInputValue } from '../utils/lab-time';
-import { SpecimenFields } from './specimen-fields';
+import { PriorityField } from './priority-field';
+import { arrivingSpecimenDefaults, SpecimenFields } from './specimen-fields';
 
 const toId = (v: unknown) => (v === '' || v === undefined || v === null ? undefined : Number(v));
 
@@ -35,16 +35,7 @@ export function RegisterCaseForm({
       referringClinicianId: undefined,
       clinicalIndication: '',
       priority: 'routine',
-      specimen: {
-        type: 'skeletal_muscle',
-        source: '',
-        collectedAt: null,
-        receivedAt: toLabInputValue(new Date(), timeZone),
-        transportCondition: 'dry_ice',
-        wetWeightMg: null,
-        accepted: true,
-        rejectionReason: null,
-      },
+      specimen: arrivingSpecimenDefaults(timeZone),
     },
   });
   const { errors, isDirty } = form.formState;
@@ -82,18 +73,7 @@ export function RegisterCaseForm({
             ...(clinicians.data ?? []).map((c) => ({ value: String(c.id), label: c.name })),
           ]}
         />
-        <fieldset className="flex flex-col gap-1">
-          <legend className="mb-1 text-sm font-medium text-ink-soft">Priority</legend>
-          <div className="flex gap-4 pt-1 text-sm">
-            <label className="inline-flex items-center gap-1.5">
-              <input type="radio" value="routine" {...form.register('priority')} /> Routine
-            </label>
-            <label className="inline-flex items-center gap-1.5">
-              <input type="radio" value="urgent" {...form.register('priority')} /> Urgent
-            </label>
-          </div>
-          {errors.priority ? <p className="text-xs font-medium text-below">{errors.priority.message}</p> : null}
-        </fieldset>
+        <PriorityField registration={form.register('priority')} error={errors.priority?.message} />
         <div className="sm:col-span-2">
           <TextArea
             label="Clinical indication"

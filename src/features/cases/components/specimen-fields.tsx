@@ -4,11 +4,25 @@ import { SelectField, TextField } from '@/components/ui/field';
 import { specimenTypeLabels, specimenTypes } from '@/schemas/common';
 import { transportConditionLabels, transportConditions, type ReceiveSpecimenInput } from '@/schemas/case';
 import { caseQueries } from '../api/case-queries';
-import { zoneAbbreviation } from '../utils/lab-time';
+import { toLabInputValue, zoneAbbreviation } from '../utils/lab-time';
 import { ReasonPicker } from './reason-picker';
 
 const emptyToNull = (v: unknown) => (v === '' || v === undefined ? null : v);
 const toWeight = (v: unknown) => (v === '' || v === null || v === undefined ? null : Number(v));
+
+/** A new specimen's starting values: received now (lab time), accepted, nothing else filled in. */
+export function arrivingSpecimenDefaults(timeZone: string): ReceiveSpecimenInput {
+  return {
+    type: 'skeletal_muscle',
+    source: '',
+    collectedAt: null,
+    receivedAt: toLabInputValue(new Date(), timeZone),
+    transportCondition: 'dry_ice',
+    wetWeightMg: null,
+    accepted: true,
+    rejectionReason: null,
+  };
+}
 
 /**
  * The fields of a specimen as it arrives, for any form that holds a ReceiveSpecimenInput at `prefix`

@@ -15,9 +15,9 @@ import {
 import { caseQueries } from '../api/case-queries';
 import { useChangeSpecimen } from '../api/change-specimen';
 import { useReceiveSpecimen } from '../api/receive-specimen';
-import { formatLabDateTime, toLabInputValue } from '../utils/lab-time';
+import { formatLabDateTime } from '../utils/lab-time';
 import { ReasonPicker } from './reason-picker';
-import { SpecimenFields } from './specimen-fields';
+import { arrivingSpecimenDefaults, SpecimenFields } from './specimen-fields';
 import { isStale, StaleNotice } from './stale-notice';
 
 const receivable = new Set(['received', 'in_assay']);
@@ -25,18 +25,7 @@ const receivable = new Set(['received', 'in_assay']);
 function ReceiveSpecimenForm({ caseId, timeZone, onDone }: { caseId: number; timeZone: string; onDone: () => void }) {
   const receive = useReceiveSpecimen(caseId);
   const [message, setMessage] = useState<string | null>(null);
-  const form = useZodForm(receiveSpecimenInputSchema, {
-    defaultValues: {
-      type: 'skeletal_muscle',
-      source: '',
-      collectedAt: null,
-      receivedAt: toLabInputValue(new Date(), timeZone),
-      transportCondition: 'dry_ice',
-      wetWeightMg: null,
-      accepted: true,
-      rejectionReason: null,
-    },
-  });
+  const form = useZodForm(receiveSpecimenInputSchema, { defaultValues: arrivingSpecimenDefaults(timeZone) });
   useUnsavedChangesPrompt(form.formState.isDirty && !receive.isSuccess);
   return (
     <form
