@@ -48,6 +48,8 @@ describe('reference intervals, in Chromium', () => {
 
     const history = page.getByRole('table').last();
     await history.getByRole('link', { name: 'v1' }).waitFor();
+    // The history refetches after the approval: wait for v1's closed period rather than reading it at once.
+    await history.getByText('2025-01-01 until 2026-01-01').waitFor();
     await expect(history.getByText('2025-01-01 until 2026-01-01').count()).resolves.toBe(1);
     await history.getByRole('link', { name: 'v1' }).click();
     await page.getByRole('heading', { name: /All ages · v1/ }).waitFor();
