@@ -13,6 +13,7 @@ export default defineConfig({
   build: { outDir: 'dist/client', emptyOutDir: true, chunkSizeWarningLimit: 600 },
   server: { proxy: { '/api': 'http://localhost:3000' } },
   test: {
+    reporters: ['default', './tests/setup/plain-summary-reporter.ts'],
     projects: [
       {
         resolve: { alias },
