@@ -9,6 +9,7 @@ import type { AppConfig } from './config';
 import { requireSameOrigin } from './auth/origin-check';
 import { createPassport } from './auth/passport';
 import { notFound, toHttpError } from './lib/errors';
+import { cacheSessionReads } from './auth/session-cache';
 import { logError } from './lib/log';
 import { route } from './lib/route';
 import { assayDefinitionsRouter } from './modules/assay-definitions/assay-definitions.router';
@@ -80,6 +81,7 @@ export function createApp(opts: AppOptions): Express {
     expiration: 8 * 60 * 60_000,
   });
   if (!opts.expireSessions) store.stopExpiringSessions();
+  cacheSessionReads(store);
 
   app.use('/api', requireSameOrigin(config.allowedOrigins));
   app.use('/api', express.json({ limit: JSON_BODY_LIMIT }));

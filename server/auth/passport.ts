@@ -2,7 +2,7 @@ import { Passport, type PassportStatic } from 'passport';
 
 export type CristaePassport = InstanceType<PassportStatic['Passport']>;
 import { Strategy as LocalStrategy } from 'passport-local';
-import { findUserById, publicUser } from '../modules/users/users.repository';
+import { findSessionUser } from '../modules/users/users.repository';
 import { checkCredentials } from './sign-in';
 
 /** A passport instance per app, so tests with several apps never share strategies. */
@@ -18,9 +18,9 @@ export function createPassport(): CristaePassport {
   );
   passport.serializeUser((user, done) => done(null, user.id));
   passport.deserializeUser((id: number, done) => {
-    findUserById(id).then(
+    findSessionUser(id).then(
       // A deactivated account loses its sessions at the next request.
-      (u) => done(null, u && u.active ? publicUser(u) : false),
+      (u) => done(null, u ?? false),
       (err: unknown) => done(err),
     );
   });

@@ -120,3 +120,16 @@ describe('assay definitions are versioned', () => {
     expect(res.status).toBe(403);
   });
 });
+
+describe('a definition version that breaks a cross-field rule', () => {
+  it('when the linear range is upside down, then 400 naming definition.linearRangeMax and no new version', async () => {
+    const current = (await director.get('/api/assay-definitions/CII/versions')).body.items[0];
+    const { code: _c, version: _v, ...fields } = current.definition;
+    const res = await director
+      .post('/api/assay-definitions/CII/versions')
+      .send({ definition: { ...fields, linearRangeMin: 2, linearRangeMax: 1 }, changeNote: 'Broken range', basedOnVersion: current.definition.version });
+    expect(res.status).toBe(400);
+    expect(res.body.error.fields).toHaveProperty(['definition.linearRangeMax']);
+    expect((await director.get('/api/assay-definitions/CII/versions')).body.items).toHaveLength(1);
+  });
+});

@@ -59,3 +59,8 @@ export async function insertDefinitionVersion(
 export async function countDefinitions(): Promise<number> {
   return AssayDefinitionModel.count();
 }
+
+/** The database the definitions live in (the key of the service's in-memory cache). */
+export function databaseOfDefinitions(): object {
+  return AssayDefinitionModel.sequelize!;
+}

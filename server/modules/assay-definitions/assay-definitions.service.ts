@@ -10,7 +10,7 @@ import {
 import type { AssayCode } from '@/schemas/common';
 import type { User } from '@/schemas/user';
 import { calculateActivity } from '../../domain/assay-engine/engine';
-import { notFound, staleVersion } from '../../lib/errors';
+import { badInput, notFound, staleVersion, zodFields } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
 import * as repo from './assay-definitions.repository';
 
@@ -18,10 +18,24 @@ export const listCurrentDefinitions = repo.listCurrentDefinitions;
 export const listDefinitionVersions = repo.listDefinitionVersions;
 export const findDefinitionById = repo.findDefinitionById;
 
+// Definitions change rarely and are read on every calculation: the current ones are kept in memory, per
+// database, and forgotten whenever a version is written (after its transaction ends, committed or not).
+const currentCache = new WeakMap<object, Map<AssayCode, StoredAssayDefinition>>();
+
+function cacheFor(sequelize: object): Map<AssayCode, StoredAssayDefinition> {
+  let cache = currentCache.get(sequelize);
+  if (!cache) currentCache.set(sequelize, (cache = new Map()));
+  return cache;
+}
+
 /** The definition in force for an assay; the published defaults are stored at start-up, so one always exists. */
 export async function getCurrentDefinition(code: AssayCode): Promise<StoredAssayDefinition> {
+  const cache = cacheFor(repo.databaseOfDefinitions());
+  const cached = cache.get(code);
+  if (cached) return cached;
   const found = await repo.findCurrentDefinition(code);
   if (!found) throw notFound('Assay definition', code);
+  cache.set(code, found);
   return found;
 }
 
@@ -33,6 +47,7 @@ export async function ensureDefaultDefinitions(sequelize: Sequelize): Promise<vo
       await repo.insertDefinitionVersion(d, 'Published defaults (docs/domain.md §1)', null, transaction);
     }
   });
+  currentCache.delete(sequelize);
 }
 
 /**
@@ -45,19 +60,33 @@ export async function createDefinitionVersion(
   code: AssayCode,
   input: CreateAssayDefinitionVersionInput,
 ): Promise<StoredAssayDefinition> {
-  return sequelize.transaction(async (transaction) => {
-    const current = await repo.findCurrentDefinition(code, transaction);
-    if (!current) throw notFound('Assay definition', code);
-    if (current.definition.version !== input.basedOnVersion) throw staleVersion('assay definition');
-    const next = assayDefinitionSchema.parse({ ...input.definition, code, version: current.definition.version + 1 });
-    const stored = await repo.insertDefinitionVersion(next, input.changeNote, actor.id, transaction);
-    await recordAudit(
-      actor,
-      { action: 'new-version', entity: 'assay-definition', entityId: `${code} v${next.version}`, before: current.definition, after: next, note: input.changeNote },
-      transaction,
-    );
-    return stored;
-  });
+  try {
+    return await sequelize.transaction(async (transaction) => {
+      const current = await repo.findCurrentDefinition(code, transaction);
+      if (!current) throw notFound('Assay definition', code);
+      if (current.definition.version !== input.basedOnVersion) throw staleVersion('assay definition');
+      const parsed = assayDefinitionSchema.safeParse({ ...input.definition, code, version: current.definition.version + 1 });
+      // Cross-field rules (linear range order, first-order only for CIV) name the field as the form shows it.
+      if (!parsed.success) throw badInput(zodFields(parsed.error, 'definition'));
+      const next = parsed.data;
+      const stored = await repo.insertDefinitionVersion(next, input.changeNote, actor.id, transaction);
+      await recordAudit(
+        actor,
+        {
+          action: 'new-version',
+          entity: 'assay-definition',
+          entityId: `${code} v${next.version}`,
+          before: current.definition,
+          after: next,
+          note: input.changeNote,
+        },
+        transaction,
+      );
+      return stored;
+    });
+  } finally {
+    currentCache.delete(sequelize);
+  }
 }
 
 /** One measurement through the engine with the assay's current definition; nothing is stored. */

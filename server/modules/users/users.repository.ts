@@ -34,6 +34,26 @@ export async function findUserByEmail(email: string): Promise<UserWithSecrets | 
   return row ? toAccount(row) : null;
 }
 
+// Every signed-in request looks its user up; the answer is kept briefly in memory and forgotten whenever this
+// repository (the only writer of users) changes that account, so a deactivation still takes effect at once.
+const sessionUserCache = new Map<number, { user: User | null; at: number }>();
+const SESSION_USER_TTL_MS = 30_000;
+
+function forgetUser(id: number): void {
+  sessionUserCache.delete(id);
+}
+
+/** The active account behind a session, or null when it is gone or deactivated. */
+export async function findSessionUser(id: number): Promise<User | null> {
+  const hit = sessionUserCache.get(id);
+  if (hit && Date.now() - hit.at < SESSION_USER_TTL_MS) return hit.user;
+  const row = await UserModel.findByPk(id);
+  const user = row && row.active ? publicUser(row) : null;
+  if (sessionUserCache.size > 5000) sessionUserCache.clear();
+  sessionUserCache.set(id, { user, at: Date.now() });
+  return user;
+}
+
 export async function findUserById(id: number, transaction?: Transaction): Promise<UserWithSecrets | null> {
   const row = await UserModel.findByPk(id, { transaction });
   return row ? toAccount(row) : null;
@@ -65,15 +85,19 @@ export async function updateUserIfVersion(
   changes: Partial<Pick<UserModel, 'name' | 'title' | 'role' | 'active' | 'passwordHash' | 'failedLogins' | 'lockedUntil'>>,
   transaction?: Transaction,
 ): Promise<boolean> {
+  forgetUser(id);
   const [count] = await UserModel.update(
     { ...changes, version: expectedVersion + 1 },
     { where: { id, version: expectedVersion }, transaction },
   );
+  // Forget again once the transaction ends, so a read in between cannot keep the old account.
+  transaction?.afterCommit(() => forgetUser(id));
   return count === 1;
 }
 
 /** Sign-in bookkeeping: counters are not edits of the account, so they do not bump its version. */
 export async function setLoginState(id: number, failedLogins: number, lockedUntil: Date | null): Promise<void> {
+  forgetUser(id);
   await UserModel.update({ failedLogins, lockedUntil }, { where: { id } });
 }
 
