@@ -7,7 +7,7 @@ import {
   type IntervalPosition,
   type ValueBasis,
 } from '@/schemas/assay';
-import { specimenClassOf, type AssayCode, type Measure, type SpecimenType } from '@/schemas/common';
+import { specimenClassOf, specimenTypeLabels, type AssayCode, type Measure, type SpecimenType } from '@/schemas/common';
 import { percentOfMean, zScore } from './normalise';
 import { fmt } from './trace';
 
@@ -131,7 +131,7 @@ export function compareValue(
   if (!interval) {
     flags.push({
       code: 'NO_INTERVAL',
-      message: `${label}: no reference interval for ${context.specimenType}${context.ageYears === null ? '' : ` at ${fmt(context.ageYears, 3)} years`}`,
+      message: `${label}: no reference interval for ${specimenTypeLabels[context.specimenType].toLowerCase()}${context.ageYears === null ? '' : ` at ${fmt(context.ageYears, 3)} years`}`,
     });
     return base;
   }

@@ -100,6 +100,6 @@ describe('pattern summary', () => {
   it('when no interval exists for the specimen type, then the summary says there is not enough to read', () => {
     const s = summarise(control, 'fibroblasts');
     expect(s.findings.map((f) => f.kind)).toEqual(['insufficient_data']);
-    expect(s.notes.some((n) => /no reference interval for fibroblasts/.test(n))).toBe(true);
+    expect(s.notes.some((n) => /no reference interval for cultured skin fibroblasts/.test(n))).toBe(true);
   });
 });
