@@ -19,9 +19,10 @@ async function main(): Promise<void> {
   const applied = await migrate(sequelize);
   if (applied.length) logInfo('migrations applied', { applied });
   await ensureDefaultDefinitions(sequelize);
-  if (await seedDemoIfEmpty(sequelize, config.demoPassword)) logInfo('demo data seeded (invented, fictitious)');
-
   const mail = await startMail(sequelize, config);
+  const notices = { sequelize, mailer: mail.mailer, publicOrigin: config.publicOrigin };
+  if (await seedDemoIfEmpty(sequelize, config.demoPassword, notices)) logInfo('demo data seeded (invented, fictitious)');
+
   const app = createApp({ sequelize, config, clientDir: path.join(root, 'dist', 'client'), expireSessions: true, mailer: mail.mailer });
   const server = app.listen(config.port, () => {
     logInfo(`Cristae is serving on http://localhost:${config.port}`);

@@ -2,6 +2,7 @@ import type { Sequelize } from 'sequelize';
 import type { User } from '@/schemas/user';
 import { findCaseById } from '../../modules/cases/cases.repository';
 import { correctReport, loadReportMaterial, proposalFor, signCase } from '../../modules/reports/report-signing.service';
+import type { NoticeDeps } from '../../modules/mail/notices.service';
 import { findUserByEmail, publicUser } from '../../modules/users/users.repository';
 import type { DemoCaseIds, DemoCaseName } from './demo-cases';
 
@@ -9,7 +10,7 @@ import type { DemoCaseIds, DemoCaseName } from './demo-cases';
  * Signed reports of the fictitious Fernhollow laboratory, signed by its invented director. Runs after the
  * other seeds have brought cases to "awaiting review": it signs most of them (final reports), corrects one
  * (a corrected version 2 and a superseded version 1), and leaves the rest in the director's queue so the
- * demo has something to sign. No e-mail is sent for seeded reports.
+ * demo has something to sign. Notices are e-mailed only when the caller passes a mailer (npm start does).
  */
 
 /**
@@ -27,7 +28,11 @@ async function director(): Promise<User> {
 export type DemoReportIds = Partial<Record<DemoCaseName, number>>;
 
 /** Signs (and corrects) the demo cases that are awaiting review; returns the report id now in force per case. */
-export async function seedDemoReports(sequelize: Sequelize, ids: Partial<DemoCaseIds>): Promise<DemoReportIds> {
+export async function seedDemoReports(
+  sequelize: Sequelize,
+  ids: Partial<DemoCaseIds>,
+  notices: NoticeDeps | null = null,
+): Promise<DemoReportIds> {
   const actor = await director();
   const out: DemoReportIds = {};
   for (const name of SIGN) {
@@ -37,13 +42,13 @@ export async function seedDemoReports(sequelize: Sequelize, ids: Partial<DemoCas
     if (!c || c.state !== 'awaiting_review') continue;
     const signed = await signCase(
       sequelize,
-      null,
+      notices,
       actor,
       caseId,
       { password: '', version: c.version },
       // Signed at the real time of seeding: the other seeds submit the cases just before, and a signature
       // dated before its submission would contradict the audit trail.
-      { checkPassword: false, notify: false },
+      { checkPassword: false, notify: notices !== null },
     );
     out[name] = signed.report.id;
     if (name !== 'corrected') continue;
@@ -51,7 +56,7 @@ export async function seedDemoReports(sequelize: Sequelize, ids: Partial<DemoCas
     const material = await loadReportMaterial(caseId);
     const corrected = await correctReport(
       sequelize,
-      null,
+      notices,
       actor,
       caseId,
       {
@@ -62,7 +67,7 @@ export async function seedDemoReports(sequelize: Sequelize, ids: Partial<DemoCas
         interpretation: `${proposalFor(material)}\n\nThe biopsy was frozen about four hours after collection (reported by the referring team after version 1). Delayed freezing can lower complex I and complex IV activities, so low values in this specimen are read with caution (demo wording).`,
         version: signed.caseVersion,
       },
-      { checkPassword: false, notify: false },
+      { checkPassword: false, notify: notices !== null },
     );
     out[name] = corrected.report.id;
   }

@@ -5,6 +5,7 @@ import { saveLabProfile } from '../../modules/lab-profile/lab-profile.service';
 import { countUsers, insertUser } from '../../modules/users/users.repository';
 import { seedDemoCases } from './demo-cases';
 import { seedDemoIntervals } from './demo-intervals';
+import type { NoticeDeps } from '../../modules/mail/notices.service';
 import { seedDemoReports } from './demo-reports';
 import { seedDemoMeasurements } from './demo-measurements';
 
@@ -26,8 +27,11 @@ export const demoLabProfile = {
   version: 0,
 };
 
-/** Seeds the demo scenario when the database has no accounts. Returns whether it seeded. */
-export async function seedDemoIfEmpty(sequelize: Sequelize, demoPassword: string): Promise<boolean> {
+/**
+ * Seeds the demo scenario when the database has no accounts. Returns whether it seeded. With `notices`, the
+ * seeded reports e-mail their notices like real ones, so the demo's sent-mail page has something to show.
+ */
+export async function seedDemoIfEmpty(sequelize: Sequelize, demoPassword: string, notices: NoticeDeps | null = null): Promise<boolean> {
   if ((await countUsers()) > 0) return false;
   const passwordHash = await hashPassword(demoPassword);
   await sequelize.transaction(async (transaction) => {
@@ -38,6 +42,6 @@ export async function seedDemoIfEmpty(sequelize: Sequelize, demoPassword: string
   const demoCaseIds = await seedDemoCases(sequelize);
   await seedDemoMeasurements(sequelize, demoCaseIds);
   // Last: signs cases the seeds above left awaiting review.
-  await seedDemoReports(sequelize, demoCaseIds);
+  await seedDemoReports(sequelize, demoCaseIds, notices);
   return true;
 }
