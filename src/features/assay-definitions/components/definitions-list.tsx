@@ -6,6 +6,7 @@ import type { StoredAssayDefinition } from '@/schemas/assay';
 import type { AssayCode } from '@/schemas/common';
 import { definitionQueries } from '../api/definition-queries';
 import { DefinitionEditor } from './definition-editor';
+import { formatWhen } from '@/utils/format';
 
 function History({ code }: { code: AssayCode }) {
   const { data, isPending } = useQuery(definitionQueries.versions(code));
@@ -15,7 +16,7 @@ function History({ code }: { code: AssayCode }) {
       {data?.map((v) => (
         <li key={v.id}>
           <span className="font-semibold text-ink">v{v.definition.version}</span> · ε {v.definition.epsilonPerMmPerCm} ·{' '}
-          {v.definition.rateModel} · {new Date(v.createdAt).toLocaleString()} · {v.createdBy ?? 'published defaults'}
+          {v.definition.rateModel} · {formatWhen(v.createdAt)} · {v.createdBy ?? 'published defaults'}
           {v.changeNote ? ` — ${v.changeNote}` : ''}
         </li>
       ))}

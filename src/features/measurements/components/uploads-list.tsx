@@ -1,6 +1,6 @@
 import type { UploadSummary } from '@/schemas/measurement';
+import { formatBytes, formatWhen } from '@/utils/format';
 
-const size = (n: number) => (n < 1024 ? `${n} bytes` : n < 1048576 ? `${(n / 1024).toFixed(1)} KiB` : `${(n / 1048576).toFixed(2)} MiB`);
 
 /** Files kept with the case, byte for byte, each with its SHA-256 and a download link. */
 export function UploadsList({ uploads }: { uploads: UploadSummary[] }) {
@@ -14,7 +14,7 @@ export function UploadsList({ uploads }: { uploads: UploadSummary[] }) {
               {u.filename}
             </a>{' '}
             <span className="text-ink-faint">
-              · {size(u.sizeBytes)} · {u.measurementCount} measurements · {u.uploadedBy ?? 'unknown'} · {new Date(u.createdAt).toLocaleString()}
+              · {formatBytes(u.sizeBytes)} · {u.measurementCount} measurements · {u.uploadedBy ?? 'unknown'} · {formatWhen(u.createdAt)}
             </span>
           </span>
           <span className="font-mono text-xs text-ink-faint" title={u.sha256}>

@@ -5,6 +5,7 @@ import { Loading, Notice } from '@/components/ui/layout';
 import { ApiError } from '@/lib/api-client';
 import { controlFileHref, intervalQueries } from '../api/interval-queries';
 import { useUploadControls } from '../api/upload-controls';
+import { formatBytes, formatWhen } from '@/utils/format';
 
 function FileProblems({ error }: { error: unknown }) {
   if (!(error instanceof ApiError)) return <Notice tone="error">The file could not be uploaded.</Notice>;
@@ -62,7 +63,7 @@ export function ControlFilePicker({ selected, onSelect }: { selected: number | n
                     {f.filename}
                   </label>
                   <span className="block text-xs text-ink-faint">
-                    #{f.id} · {(f.sizeBytes / 1024).toFixed(1)} KB · {f.uploadedByName ?? 'unknown'} · {new Date(f.createdAt).toLocaleDateString()} ·{' '}
+                    #{f.id} · {formatBytes(f.sizeBytes)} · {f.uploadedByName ?? 'unknown'} · {formatWhen(f.createdAt)} ·{' '}
                     <a className="underline" href={controlFileHref(f.id)} download>
                       download
                     </a>

@@ -11,6 +11,7 @@ import { controlFileHref, intervalQueries } from '../api/interval-queries';
 import { ageText, measureText, methodNames, num, outlierNames, periodText } from './interval-text';
 import { StatusTag } from './status-tag';
 import { VersionHistory } from './version-history';
+import { formatWhen } from '@/utils/format';
 
 function Item({ label, children }: { label: string; children: ReactNode }) {
   return (
@@ -127,14 +128,14 @@ export function IntervalDetail({ id, canManage }: { id: number; canManage: boole
           <Item label="Effective">{periodText(i)}</Item>
           <Item label="Set">{i.setName}</Item>
           <Item label="Approved">
-            {i.approvedByName ? `${i.approvedByName}, ${new Date(i.approvedAt!).toLocaleString()}` : 'Not yet'}
+            {i.approvedByName ? `${i.approvedByName}, ${formatWhen(i.approvedAt!)}` : 'Not yet'}
           </Item>
           <Item label="Created">
-            {i.createdByName ?? '—'}, {new Date(i.createdAt).toLocaleString()}
+            {i.createdByName ?? '—'}, {formatWhen(i.createdAt)}
           </Item>
           {i.status === 'retired' ? (
             <Item label="Retired">
-              {i.retiredByName ?? '—'}, {new Date(i.retiredAt!).toLocaleString()}: {i.retireReason}
+              {i.retiredByName ?? '—'}, {formatWhen(i.retiredAt!)}: {i.retireReason}
             </Item>
           ) : null}
         </dl>

@@ -5,6 +5,7 @@ import { paths } from '@/config/paths';
 import { intervalQueries } from '../api/interval-queries';
 import { methodNames, num, periodText } from './interval-text';
 import { StatusTag } from './status-tag';
+import { formatWhen } from '@/utils/format';
 
 /** Every version of one key, newest first; the one on screen is marked. */
 export function VersionHistory({ id }: { id: number }) {
@@ -50,7 +51,7 @@ export function VersionHistory({ id }: { id: number }) {
             <td className="num py-1.5 pr-3 whitespace-nowrap">{periodText(v)}</td>
             <td className="py-1.5 pr-3 text-ink-soft">{v.setName}</td>
             <td className="py-1.5 text-ink-soft">
-              {v.approvedByName ? `${v.approvedByName}, ${new Date(v.approvedAt!).toLocaleDateString()}` : '—'}
+              {v.approvedByName ? `${v.approvedByName}, ${formatWhen(v.approvedAt!)}` : '—'}
             </td>
           </tr>
         ))}

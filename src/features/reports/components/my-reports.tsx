@@ -4,7 +4,7 @@ import { Loading, Notice } from '@/components/ui/layout';
 import { specimenTypeLabels } from '@/schemas/common';
 import type { CaseReports } from '@/schemas/report';
 import { reportPdfHref, reportQueries } from '../api/report-queries';
-import { formatDay, formatWhen } from './format';
+import { formatDay, formatWhen } from '@/utils/format';
 import { ReportStatus } from './report-status';
 
 function matches(group: CaseReports, q: string): boolean {

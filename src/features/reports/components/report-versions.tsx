@@ -1,6 +1,6 @@
 import type { ReportDetail } from '@/schemas/report';
 import { reportPdfHref } from '../api/report-queries';
-import { formatBytes, formatWhen } from './format';
+import { formatBytes, formatWhen } from '@/utils/format';
 import { ReportStatus } from './report-status';
 
 /** Every signed version of one case, newest first, each with its PDF and the trace of its signature. */

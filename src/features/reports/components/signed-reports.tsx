@@ -2,7 +2,7 @@ import { useQuery } from '@tanstack/react-query';
 import { Link } from 'react-router-dom';
 import { Loading, Notice } from '@/components/ui/layout';
 import { reportPdfHref, reportQueries } from '../api/report-queries';
-import { formatWhen } from './format';
+import { formatWhen } from '@/utils/format';
 import { ReportStatus } from './report-status';
 
 /** The latest signed versions, for laboratory staff; `caseHref` links each row to the case's own page. */

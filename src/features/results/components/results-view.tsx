@@ -9,6 +9,7 @@ import {
   type SpecimenResult,
 } from '@/schemas/results';
 import { fmt, measureNames } from '../utils/format';
+import { formatWhen } from '@/utils/format';
 
 const positionTone = { below: 'text-below', within: 'text-within', above: 'text-above' } as const;
 
@@ -186,7 +187,7 @@ export function ResultsView({ results }: { results: CaseResults }) {
     <div className="flex flex-col gap-6">
       <p className="text-sm text-ink-soft" data-testid="results-basis">
         {results.frozen
-          ? `Frozen when the case was submitted for review (${new Date(results.computedAt).toLocaleString()}): these numbers and intervals no longer change.`
+          ? `Frozen when the case was submitted for review (${formatWhen(results.computedAt)}): these numbers and intervals no longer change.`
           : `Computed just now from the saved measurements, against the reference intervals approved and in force on ${results.intervalsAsOf}.`}{' '}
         Definitions: {results.definitions.map((d) => `${d.assay} v${d.version}`).join(', ') || 'none yet'}.
       </p>

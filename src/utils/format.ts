@@ -1,3 +1,4 @@
+/** Dates, times and sizes as every screen shows them. */
 /** "14 Mar 2026, 15:20": date and time in the reader's own zone, day first so no one swaps day and month. */
 export function formatWhen(iso: string): string {
   const d = new Date(iso);
