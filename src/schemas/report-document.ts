@@ -67,6 +67,8 @@ export const reportCaseSchema = z.object({
 });
 
 export const reportSpecimenSchema = z.object({
+  /** The laboratory's label of the specimen within the case, e.g. 'A'; printed in section titles. */
+  label: text.optional(),
   type: specimenTypeSchema,
   /** Source and description, e.g. 'Left vastus lateralis, open biopsy, 48 mg'. */
   description: text,
@@ -90,8 +92,9 @@ export const reportResultSchema = z.object({
   referenceLower: z.number().finite().nullable(),
   referenceUpper: z.number().finite().nullable(),
   referenceMean: z.number().finite().nullable(),
-  intervalLabel: text,
-  intervalVersion: z.number().int().positive(),
+  /** Null (with intervalVersion) when no reference interval exists for the specimen type and age. */
+  intervalLabel: text.nullable(),
+  intervalVersion: z.number().int().positive().nullable(),
   status: resultStatusSchema,
   pctOfMean: z.number().finite().nullable(),
   criterionBand: criterionBandSchema.nullable(),
@@ -153,23 +156,115 @@ export const reportMetaSchema = z.object({
   changesSummary: optionalText,
 });
 
+/**
+ * One specimen of the case as the report prints it: its description and condition, and for an accepted
+ * specimen its results, bar graphic and pattern line. Every result stands under its specimen (CLIA
+ * 493.1291(c)(5),(6)); a rejected specimen carries its reason and disposition (c)(7).
+ */
+export const reportSpecimenSectionSchema = z.object({
+  specimen: reportSpecimenSchema,
+  results: z.array(reportResultSchema),
+  graphic: reportGraphicSchema,
+  /** Null when there is nothing to summarise (e.g. a rejected specimen). */
+  patternSummary: optionalText,
+});
+
+type SpecimenSection = z.infer<typeof reportSpecimenSectionSchema>;
+
+function checkSection(section: SpecimenSection, base: Array<string | number>, ctx: z.RefinementCtx): void {
+  const { specimen } = section;
+  if (specimen.accepted) {
+    for (const key of ['rejectionReason', 'disposition'] as const) {
+      if (specimen[key] !== null) {
+        ctx.addIssue({
+          code: 'custom',
+          path: [...base, 'specimen', key],
+          message: 'Only a rejected specimen has this; use null for an accepted specimen',
+        });
+      }
+    }
+  } else {
+    for (const key of ['rejectionReason', 'disposition'] as const) {
+      if (specimen[key] === null) {
+        ctx.addIssue({
+          code: 'custom',
+          path: [...base, 'specimen', key],
+          message: 'Required for a rejected specimen',
+        });
+      }
+    }
+    if (section.results.length > 0) {
+      ctx.addIssue({ code: 'custom', path: [...base, 'results'], message: 'A rejected specimen has no results' });
+    }
+    if (section.graphic.bars.length > 0) {
+      ctx.addIssue({ code: 'custom', path: [...base, 'graphic', 'bars'], message: 'A rejected specimen has no graphic' });
+    }
+  }
+  const seen = new Set<string>();
+  section.results.forEach((r, i) => {
+    const key = `${r.assay}/${r.measure}`;
+    if (seen.has(key)) {
+      ctx.addIssue({
+        code: 'custom',
+        path: [...base, 'results', i],
+        message: `Duplicate result for ${r.assay} ${r.measure}`,
+      });
+    }
+    seen.add(key);
+    if (r.referenceLower !== null && r.referenceUpper !== null && r.referenceLower > r.referenceUpper) {
+      ctx.addIssue({
+        code: 'custom',
+        path: [...base, 'results', i, 'referenceLower'],
+        message: 'Lower reference limit is above the upper limit',
+      });
+    }
+    if ((r.intervalLabel === null) !== (r.intervalVersion === null)) {
+      ctx.addIssue({
+        code: 'custom',
+        path: [...base, 'results', i, 'intervalVersion'],
+        message: 'Give both the interval label and its version, or neither',
+      });
+    }
+    if (r.intervalLabel === null) {
+      if (r.referenceLower !== null || r.referenceUpper !== null || r.referenceMean !== null) {
+        ctx.addIssue({
+          code: 'custom',
+          path: [...base, 'results', i, 'intervalLabel'],
+          message: 'Reference limits need the interval they come from',
+        });
+      }
+      if (r.status !== 'not_compared') {
+        ctx.addIssue({
+          code: 'custom',
+          path: [...base, 'results', i, 'status'],
+          message: "A result without a reference interval must have status 'not_compared'",
+        });
+      }
+    }
+    if (r.value === null && r.status !== 'not_compared') {
+      ctx.addIssue({
+        code: 'custom',
+        path: [...base, 'results', i, 'status'],
+        message: "A result without a value must have status 'not_compared'",
+      });
+    }
+  });
+}
+
 export const reportDocumentSchema = z
   .object({
     laboratory: reportLaboratorySchema,
     patient: reportPatientSchema,
     case: reportCaseSchema,
-    specimen: reportSpecimenSchema,
-    results: z.array(reportResultSchema),
-    graphic: reportGraphicSchema,
-    /** Null when there is nothing to summarise (e.g. a rejected specimen). */
-    patternSummary: optionalText,
+    /** Every specimen of the case, in the case's order; each prints as its own section. */
+    specimens: z.array(reportSpecimenSectionSchema).min(1, 'At least one specimen'),
     interpretation: text,
     methods: reportMethodsSchema,
     signature: reportSignatureSchema,
     report: reportMetaSchema,
   })
   .superRefine((doc, ctx) => {
-    const { report, specimen } = doc;
+    const { report } = doc;
     if (report.status === 'corrected') {
       if (report.supersedesVersion === null) {
         ctx.addIssue({
@@ -204,63 +299,26 @@ export const reportDocumentSchema = z
         }
       }
     }
-    if (specimen.accepted) {
-      for (const key of ['rejectionReason', 'disposition'] as const) {
-        if (specimen[key] !== null) {
+    const labels = new Set<string>();
+    doc.specimens.forEach((section, i) => {
+      checkSection(section, ['specimens', i], ctx);
+      const label = section.specimen.label;
+      if (label !== undefined) {
+        if (labels.has(label)) {
           ctx.addIssue({
             code: 'custom',
-            path: ['specimen', key],
-            message: 'Only a rejected specimen has this; use null for an accepted specimen',
+            path: ['specimens', i, 'specimen', 'label'],
+            message: `Duplicate specimen label ${label}`,
           });
         }
-      }
-    } else {
-      for (const key of ['rejectionReason', 'disposition'] as const) {
-        if (specimen[key] === null) {
-          ctx.addIssue({
-            code: 'custom',
-            path: ['specimen', key],
-            message: 'Required for a rejected specimen',
-          });
-        }
-      }
-      if (doc.results.length > 0) {
-        ctx.addIssue({
-          code: 'custom',
-          path: ['results'],
-          message: 'A rejected specimen has no results',
-        });
-      }
-    }
-    const seen = new Set<string>();
-    doc.results.forEach((r, i) => {
-      const key = `${r.assay}/${r.measure}`;
-      if (seen.has(key)) {
-        ctx.addIssue({
-          code: 'custom',
-          path: ['results', i],
-          message: `Duplicate result for ${r.assay} ${r.measure}`,
-        });
-      }
-      seen.add(key);
-      if (r.referenceLower !== null && r.referenceUpper !== null && r.referenceLower > r.referenceUpper) {
-        ctx.addIssue({
-          code: 'custom',
-          path: ['results', i, 'referenceLower'],
-          message: 'Lower reference limit is above the upper limit',
-        });
-      }
-      if (r.value === null && r.status !== 'not_compared') {
-        ctx.addIssue({
-          code: 'custom',
-          path: ['results', i, 'status'],
-          message: "A result without a value must have status 'not_compared'",
-        });
+        labels.add(label);
       }
     });
   });
 
 export type ReportDocument = z.infer<typeof reportDocumentSchema>;
+export type ReportSpecimenSection = z.infer<typeof reportSpecimenSectionSchema>;
+export type ReportSpecimen = z.infer<typeof reportSpecimenSchema>;
 export type ReportResult = z.infer<typeof reportResultSchema>;
 export type ReportGraphic = z.infer<typeof reportGraphicSchema>;
 export type ReportGraphicBar = z.infer<typeof reportGraphicBarSchema>;

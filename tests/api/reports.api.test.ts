@@ -2,13 +2,15 @@ import { createHash } from 'node:crypto';
 import { getDocument } from 'pdfjs-dist/legacy/build/pdf.mjs';
 import type request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { CaseDetail } from '@/schemas/case';
+import { storedAssayDefinitionSchema } from '@/schemas/assay';
+import type { CaseDetail, Specimen } from '@/schemas/case';
+import type { AssayCode } from '@/schemas/common';
 import { transportConditionLabels } from '@/schemas/case';
 import { reportCaution } from '@/schemas/report-document';
 import { reportListItemSchema, type ReportDetail } from '@/schemas/report';
 import type { CaseResults } from '@/schemas/results';
 import { buildSpecimenInput, createCase } from '../factories/cases';
-import { accountId, createCaseAwaitingReview } from '../factories/workup';
+import { accountId, createCaseAwaitingReview, isolatedComplexI, nearMeans } from '../factories/workup';
 import { DEMO_PASSWORD, countRows, makeTestApp, type TestApp } from '../setup/test-app';
 
 /*
@@ -415,5 +417,132 @@ describe('a case whose only specimen was rejected on receipt', () => {
     const res = await tech.post(`/api/cases/${c.id}/submit`).send({ version: c.version });
     expect(res.status).toBe(409);
     expect(res.body.error.code).toBe('INVALID_STATE');
+  });
+});
+
+/*
+ * A case with several specimens: the report prints every specimen, each result under its own specimen with the
+ * specimen's source, and the condition and disposition of a rejected one (US CLIA 42 CFR 493.1291(c)(5), (6),
+ * (7) [confirmed], docs/domain.md §5).
+ */
+
+/**
+ * Records the protein and one rate per assay for one specimen, worked back from the wanted activity with the
+ * Beer–Lambert relation of docs/domain.md §1 [derived], as tests/factories/workup.ts does for the first specimen.
+ */
+async function enterAssays(caseId: number, specimen: Specimen, activities: Record<AssayCode, number>): Promise<void> {
+  const conditions = { pathlengthCm: 1, reactionVolumeUl: 1000, sampleVolumeUl: 20 };
+  const protein = 2;
+  const p = await tech
+    .put(`/api/specimens/${specimen.id}/protein`)
+    .send({ kind: 'direct', proteinMgPerMl: protein, proteinSource: 'BCA assay (fixture)', version: specimen.version });
+  expect(p.status).toBe(200);
+  const defs = ((await tech.get('/api/assay-definitions')).body.items as unknown[]).map(
+    (d) => storedAssayDefinitionSchema.parse(d).definition,
+  );
+  for (const def of defs) {
+    const slope =
+      (activities[def.code] * def.epsilonPerMmPerCm * conditions.pathlengthCm * conditions.sampleVolumeUl * protein) /
+      (conditions.reactionVolumeUl * 1000);
+    const res = await tech.post(`/api/cases/${caseId}/measurements`).send({
+      specimenId: specimen.id,
+      assay: def.code,
+      replicate: 1,
+      mode: 'rates',
+      ...conditions,
+      totalRatePerMin: def.direction === 'rises' ? slope : -slope,
+      backgroundRatePerMin: def.background === 'none' ? null : 0,
+    });
+    expect(res.status, `measurement ${def.code}`).toBe(201);
+  }
+}
+
+async function addSpecimen(caseId: number, input: Parameters<typeof buildSpecimenInput>[0]): Promise<Specimen> {
+  const res = await tech.post(`/api/cases/${caseId}/specimens`).send(buildSpecimenInput(input));
+  expect(res.status).toBe(201);
+  return res.body as Specimen;
+}
+
+async function submitAndSign(caseId: number): Promise<{ report: ReportDetail; text: string }> {
+  const current = await tech.get(`/api/cases/${caseId}`);
+  expect((await tech.post(`/api/cases/${caseId}/submit`).send({ version: current.body.version })).status).toBe(200);
+  expect((await sign(caseId)).status).toBe(201);
+  const [report] = await reportOf(caseId);
+  const text = await pdfText((await binary(tech.get(`/api/reports/${report!.id}/pdf`))).body as Buffer);
+  return { report: report!, text };
+}
+
+/** The text from `from` up to `to` (exclusive); fails when either is missing or out of order. */
+function between(text: string, from: string, to: string): string {
+  const start = text.indexOf(from);
+  const end = text.indexOf(to, start + from.length);
+  expect(start, from).toBeGreaterThanOrEqual(0);
+  expect(end, to).toBeGreaterThan(start);
+  return text.slice(start, end);
+}
+
+describe('a case with several specimens', () => {
+  it('when muscle and liver both have results, then the signed PDF prints each specimen with its own source and results (CLIA 493.1291(c)(5),(6) [confirmed])', async () => {
+    const c = await createCase(tech, {
+      referringClinicianId: clinicianId,
+      specimen: buildSpecimenInput({ source: 'Vastus lateralis, fixture muscle MX-7' }),
+    });
+    const liver = await addSpecimen(c.id, { type: 'liver', source: 'Liver, fixture wedge LV-3', transportCondition: 'liquid_nitrogen', wetWeightMg: 30 });
+    await enterAssays(c.id, c.specimens[0]!, isolatedComplexI);
+    await enterAssays(c.id, liver, nearMeans);
+    const results = (await tech.get(`/api/cases/${c.id}/results`)).body as CaseResults;
+    const { report, text } = await submitAndSign(c.id);
+
+    expect(report.specimenType).toBe('skeletal_muscle');
+    expect(text).not.toContain('not part of this report');
+    const a = between(text, 'Specimen A \u2014 Skeletal muscle', 'Specimen B \u2014 Liver');
+    const b = between(text, 'Specimen B \u2014 Liver', 'Interpretation');
+    expect(a).toContain('Vastus lateralis, fixture muscle MX-7');
+    expect(a).toContain(transportConditionLabels.dry_ice);
+    expect(b).toContain('Liver, fixture wedge LV-3');
+    expect(b).toContain(transportConditionLabels.liquid_nitrogen);
+    // Each section has its own results table and graphic: every assay of that specimen, with its units.
+    for (const [section, specimenResults] of [
+      [a, results.specimens.find((s) => s.specimenId === c.specimens[0]!.id)],
+      [b, results.specimens.find((s) => s.specimenId === liver.id)],
+    ] as const) {
+      const assays = specimenResults?.assays ?? [];
+      expect(assays.length).toBeGreaterThan(0);
+      // One activity row per assay, each printed with its unit (the unit comes from the results API).
+      const units = section.split(assays[0]!.unit).length - 1;
+      expect(units).toBe(assays.filter((x) => x.activity.value !== null).length);
+      for (const assay of assays) expect(section).toContain(assay.assay);
+    }
+    // The CI activity typed for each specimen (6 in muscle, 37 in liver; invented fixtures, rates worked back with
+    // Beer–Lambert [derived]) is printed in its own specimen's section only.
+    const ciMuscle = /Activity 6(\.0+)? nmol\/min\/mg protein/;
+    const ciLiver = /Activity 37(\.0+)? nmol\/min\/mg protein/;
+    expect(isolatedComplexI.CI).toBe(6);
+    expect(nearMeans.CI).toBe(37);
+    expect(a).toMatch(ciMuscle);
+    expect(a).not.toMatch(ciLiver);
+    expect(b).toMatch(ciLiver);
+    expect(b).not.toMatch(ciMuscle);
+  });
+
+  it('when specimen A was rejected and B accepted, then the PDF states A\u2019s rejection reason and disposition and B\u2019s results (CLIA 493.1291(c)(5),(6),(7) [confirmed])', async () => {
+    const c = await createCase(tech, {
+      referringClinicianId: clinicianId,
+      specimen: buildSpecimenInput({ accepted: false, rejectionReason: 'Fixture reason RJ-22: container cracked', transportCondition: 'thawed' }),
+    });
+    const b = await addSpecimen(c.id, { source: 'Vastus lateralis, fixture repeat biopsy RB-9' });
+    await enterAssays(c.id, b, isolatedComplexI);
+    const { report, text } = await submitAndSign(c.id);
+
+    expect(report.specimenType).toBe('skeletal_muscle');
+    const aText = between(text, 'Specimen A \u2014 Skeletal muscle', 'Specimen B \u2014 Skeletal muscle');
+    expect(aText).toContain('Fixture reason RJ-22: container cracked');
+    expect(aText).toMatch(/Disposition\s*Not analysed/);
+    expect(aText).toMatch(/not performed/i);
+    expect(aText).not.toContain('Ratio to CS');
+    const bText = between(text, 'Specimen B \u2014 Skeletal muscle', 'Interpretation');
+    expect(bText).toContain('Vastus lateralis, fixture repeat biopsy RB-9');
+    expect(bText).toContain('Ratio to CS');
+    expect(bText).toContain('nmol/min/mg protein');
   });
 });

@@ -1,7 +1,9 @@
 import {
   reportDocumentSchema,
   type ReportDocument,
+  type ReportGraphic,
   type ReportResult,
+  type ReportSpecimenSection,
 } from '@/schemas/report-document';
 import type { AssayCode, Measure } from '@/schemas/common';
 
@@ -35,6 +37,7 @@ function result(
   [lower, upper, mean]: [number, number, number],
   decimals: number,
   flags: string[] = [],
+  intervalLabel = 'Muscle, 1\u201316 y (demo)',
 ): ReportResult {
   const pct = (value / mean) * 100;
   return {
@@ -46,8 +49,8 @@ function result(
     referenceLower: lower,
     referenceUpper: upper,
     referenceMean: mean,
-    intervalLabel: 'Muscle, 1\u201316 y (demo)',
-    intervalVersion: 3,
+    intervalLabel,
+    intervalVersion: intervalLabel.startsWith('Liver') ? 1 : 3,
     status: value < lower ? 'below' : value > upper ? 'above' : 'within',
     pctOfMean: pct,
     criterionBand: pct < BANDS.majorBelowPct ? 'major' : pct < BANDS.minorBelowPct ? 'minor' : null,
@@ -80,12 +83,27 @@ function demoResults(): ReportResult[] {
   ];
 }
 
-function graphicFrom(results: ReportResult[]): ReportDocument['graphic'] {
+/** A demo isolated complex IV pattern in liver (invented values and intervals). */
+function demoLiverResults(): ReportResult[] {
+  const liver = 'Liver, all ages (demo)';
+  return [
+    result('CI', 'activity', 21.4, [12, 40, 24], 1, [], liver),
+    result('CI', 'ratio_cs', 0.158, [0.09, 0.3, 0.18], 3, [], liver),
+    result('CII', 'activity', 63.5, [35, 95, 60], 1, [], liver),
+    result('CII', 'ratio_cs', 0.47, [0.28, 0.7, 0.45], 2, [], liver),
+    result('CIV', 'activity', 17.9, [55, 150, 96], 1, [], liver),
+    result('CIV', 'ratio_cs', 0.132, [0.42, 1.1, 0.72], 3, [], liver),
+    result('CIV', 'ratio_cii', 0.28, [0.9, 2.4, 1.55], 2, [], liver),
+    result('CS', 'activity', 135.6, [70, 210, 133], 1, [], liver),
+  ];
+}
+
+function graphicFrom(results: ReportResult[]): ReportGraphic {
   const pct = (assay: AssayCode, measure: Measure): number | null =>
     results.find((r) => r.assay === assay && r.measure === measure)?.pctOfMean ?? null;
   const complexes: AssayCode[] = ['CI', 'CII', 'CIII', 'CIV', 'CI+III', 'CII+III'];
   return {
-    bars: complexes.map((assay) => ({
+    bars: complexes.filter((a) => results.some((r) => r.assay === a)).map((assay) => ({
       assay,
       pctOfMeanRatioCs: pct(assay, 'ratio_cs'),
       pctOfMeanRatioCii: pct(assay, 'ratio_cii'),
@@ -94,8 +112,64 @@ function graphicFrom(results: ReportResult[]): ReportDocument['graphic'] {
   };
 }
 
-function baseDocument(): ReportDocument {
+/** Specimen A of the demo case: skeletal muscle with the isolated complex I pattern. */
+export function muscleSection(): ReportSpecimenSection {
   const results = demoResults();
+  return {
+    specimen: {
+      type: 'skeletal_muscle',
+      description: 'Left vastus lateralis, open biopsy, 48 mg wet weight',
+      conditionOnReceipt: 'Frozen on dry ice, intact, labelled with two identifiers',
+      accepted: true,
+      rejectionReason: null,
+      disposition: null,
+    },
+    results,
+    graphic: graphicFrom(results),
+    patternSummary:
+      'Complex I and linked complex I+III activities are low relative to citrate synthase and to complex II, ' +
+      'with complex II, III and IV ratios within their intervals and citrate synthase within its interval: ' +
+      'the pattern of an isolated complex I deficiency.',
+  };
+}
+
+/** A liver specimen with a demo isolated complex IV pattern. */
+export function liverSection(): ReportSpecimenSection {
+  const results = demoLiverResults();
+  return {
+    specimen: {
+      label: 'B',
+      type: 'liver',
+      description: 'Specimen B, right lobe, needle biopsy, 9.5 mg wet weight',
+      conditionOnReceipt: 'Frozen in liquid nitrogen, shipped on dry ice, intact',
+      accepted: true,
+      rejectionReason: null,
+      disposition: null,
+    },
+    results,
+    graphic: graphicFrom(results),
+    patternSummary: 'Complex IV activity is low relative to citrate synthase and to complex II in liver (demo pattern).',
+  };
+}
+
+/** A muscle specimen rejected on receipt: no results, rejection reason and disposition. */
+export function rejectedMuscleSection(): ReportSpecimenSection {
+  return {
+    specimen: {
+      type: 'skeletal_muscle',
+      description: 'Right vastus lateralis, needle biopsy, 12 mg wet weight',
+      conditionOnReceipt: 'Arrived thawed (no dry ice left in the shipper), 12 mg',
+      accepted: false,
+      rejectionReason: 'Thawed in transit; enzyme activities in a thawed specimen are unreliable.',
+      disposition: 'Discarded after 7 days; the referring clinician was asked for a new frozen biopsy.',
+    },
+    results: [],
+    graphic: { bars: [], criterionBands: null },
+    patternSummary: null,
+  };
+}
+
+function baseDocument(): ReportDocument {
   return {
     laboratory: {
       name: 'Example Metabolic Laboratory (demo)',
@@ -117,20 +191,7 @@ function baseDocument(): ReportDocument {
       receivedAt: '2025-03-04T08:15:00Z',
       collectedAt: '2025-03-03',
     },
-    specimen: {
-      type: 'skeletal_muscle',
-      description: 'Left vastus lateralis, open biopsy, 48 mg wet weight',
-      conditionOnReceipt: 'Frozen on dry ice, intact, labelled with two identifiers',
-      accepted: true,
-      rejectionReason: null,
-      disposition: null,
-    },
-    results,
-    graphic: graphicFrom(results),
-    patternSummary:
-      'Complex I and linked complex I+III activities are low relative to citrate synthase and to complex II, ' +
-      'with complex II, III and IV ratios within their intervals and citrate synthase within its interval: ' +
-      'the pattern of an isolated complex I deficiency.',
+    specimens: [muscleSection()],
     interpretation: [
       'Complex I activity in this muscle specimen is reduced to about one third of the reference mean when expressed relative to citrate synthase, and to about one quarter relative to complex II. The linked NADH:cytochrome c reductase (complex I+III) activity is reduced to a similar degree, while succinate:cytochrome c reductase (complex II+III), complex III and complex IV are within their reference intervals. Citrate synthase is within its interval, so the reduction is not explained by low mitochondrial content.',
       'These findings are consistent with an isolated complex I deficiency. The complex I to complex II ratio falls in the minor-criterion band of the demo rule set. Taken together with the clinical picture described on the request, they support genetic testing of the nuclear and mitochondrial genes that encode complex I subunits and assembly factors.',
@@ -204,18 +265,24 @@ export function buildCorrectedReportDocument(overrides: ReportDocumentOverrides 
 /** A specimen rejected on receipt: no results, rejection reason and disposition on the report. */
 export function buildRejectedReportDocument(overrides: ReportDocumentOverrides = {}): ReportDocument {
   return buildReportDocument({
-    specimen: {
-      description: 'Right vastus lateralis, needle biopsy, 12 mg wet weight',
-      conditionOnReceipt: 'Arrived thawed (no dry ice left in the shipper), 12 mg',
-      accepted: false,
-      rejectionReason: 'Thawed in transit; enzyme activities in a thawed specimen are unreliable.',
-      disposition: 'Discarded after 7 days; the referring clinician was asked for a new frozen biopsy.',
-    },
-    results: [],
-    graphic: { bars: [], criterionBands: null },
-    patternSummary: null,
+    specimens: [rejectedMuscleSection()],
     interpretation: 'No enzyme analysis was possible. Please send a new biopsy frozen in liquid nitrogen and shipped on dry ice.',
     methods: { summary: 'No assays were performed on this specimen.', definitions: [] },
+    ...overrides,
+  });
+}
+
+/** A case with two specimens: A, skeletal muscle, and B, liver, both accepted with results. */
+export function buildTwoSpecimenReportDocument(overrides: ReportDocumentOverrides = {}): ReportDocument {
+  const muscle = muscleSection();
+  return buildReportDocument({
+    specimens: [
+      { ...muscle, specimen: { ...muscle.specimen, label: 'A', description: `Specimen A, ${muscle.specimen.description}` } },
+      liverSection(),
+    ],
+    interpretation:
+      'Muscle (specimen A) shows an isolated complex I pattern and liver (specimen B) a low complex IV activity. ' +
+      'Demonstration text with invented values.',
     ...overrides,
   });
 }

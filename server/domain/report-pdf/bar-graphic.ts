@@ -27,7 +27,7 @@ export function axisMaximum(graphic: ReportGraphic): number {
   return Math.min(MAX_SCALE, Math.ceil(max / 50) * 50);
 }
 
-export function drawBarGraphic(c: Composer, graphic: ReportGraphic): void {
+export function drawBarGraphic(c: Composer, graphic: ReportGraphic, title = 'Activity as % of reference mean'): void {
   if (graphic.bars.length === 0) return;
   const bands = graphic.criterionBands;
   const axisMax = axisMaximum(graphic);
@@ -62,7 +62,7 @@ export function drawBarGraphic(c: Composer, graphic: ReportGraphic): void {
   const axisLabels = 13;
   const total = legendRows * legendLine + 6 + plotHeight + axisLabels + caption.height + 4;
 
-  c.heading('Activity as % of reference mean', total);
+  c.heading(title, total);
   const doc = c.doc;
 
   // Legend, two entries a row.

@@ -15,6 +15,7 @@ import {
   drawResults,
   drawRunningHeader,
   drawSignature,
+  drawSpecimenSection,
 } from './sections';
 import { registerFonts } from './text';
 
@@ -79,10 +80,18 @@ export async function renderReportPdf(input: ReportDocument): Promise<Buffer> {
   const c = new Composer(pdf, (composer) => drawRunningHeader(composer, doc), 0);
   drawFirstPageHeader(c, doc);
   drawCorrectionNotice(c, doc);
-  drawRejectionNotice(c, doc);
-  drawIdentification(c, doc);
-  drawResults(c, doc);
-  if (doc.specimen.accepted) drawBarGraphic(c, doc.graphic);
+  const [first, ...rest] = doc.specimens;
+  if (first && rest.length === 0) {
+    // One specimen: the compact layout, results straight under the identification block.
+    drawRejectionNotice(c, first.specimen);
+    drawIdentification(c, doc);
+    drawResults(c, first);
+    if (first.specimen.accepted) drawBarGraphic(c, first.graphic);
+  } else {
+    // Several: every specimen gets its own section, rejected ones included (CLIA 493.1291(c)(5)-(7)).
+    drawIdentification(c, doc);
+    doc.specimens.forEach((section, i) => drawSpecimenSection(c, section, i));
+  }
   drawPatternAndInterpretation(c, doc);
   drawMethods(c, doc);
   drawSignature(c, doc);

@@ -3,10 +3,13 @@ import {
   reportSexLabels,
   type ReportDocument,
   type ReportResult,
+  type ReportSpecimen,
+  type ReportSpecimenSection,
   type ResultStatus,
 } from '@/schemas/report-document';
 import { specimenTypeLabels, type Measure } from '@/schemas/common';
 import { formatDate, formatDateOrDateTime, formatDateTime, formatNumber, formatPercent } from './format';
+import { drawBarGraphic } from './bar-graphic';
 import { COLORS, Composer, PAGE, STYLES, type Block } from './layout';
 import type { Segment, TextStyle } from './text';
 
@@ -162,24 +165,65 @@ export function drawCorrectionNotice(c: Composer, doc: ReportDocument): void {
   );
 }
 
-export function drawRejectionNotice(c: Composer, doc: ReportDocument): void {
-  const { specimen } = doc;
+/** The notice of a rejected specimen (CLIA 493.1291(c)(7)); nothing for an accepted one. */
+export function drawRejectionNotice(
+  c: Composer,
+  specimen: ReportSpecimen,
+  opts: { title?: string; withSource?: boolean } = {},
+): void {
   if (specimen.accepted) return;
-  drawNotice(
-    c,
-    'SPECIMEN REJECTED \u2014 assays not performed',
-    [
-      ['Reason for rejection', specimen.rejectionReason ?? ''],
-      ['Condition on receipt', specimen.conditionOnReceipt],
-      ['Disposition', specimen.disposition ?? ''],
-    ],
-    { ink: COLORS.rejectedInk, fill: COLORS.rejectedFill, stripe: COLORS.rejectedStripe },
-  );
+  const rows: Array<[string, string]> = [
+    ['Reason for rejection', specimen.rejectionReason ?? ''],
+    ['Condition on receipt', specimen.conditionOnReceipt],
+    ['Disposition', specimen.disposition ?? ''],
+  ];
+  if (opts.withSource) rows.unshift(['Source', specimen.description]);
+  drawNotice(c, opts.title ?? 'SPECIMEN REJECTED \u2014 assays not performed', rows, {
+    ink: COLORS.rejectedInk,
+    fill: COLORS.rejectedFill,
+    stripe: COLORS.rejectedStripe,
+  });
+}
+
+/** 'Specimen A' when the specimen has a label, else 'Specimen 2' by its place in the report. */
+export function specimenName(specimen: ReportSpecimen, index: number): string {
+  return `Specimen ${specimen.label ?? String(index + 1)}`;
+}
+
+function acceptanceValue(specimen: ReportSpecimen): string | Segment[] {
+  return specimen.accepted ? 'Accepted' : [seg('Rejected', { ...STYLES.valueStrong, color: COLORS.rejectedInk })];
+}
+
+/** The identification column of the specimens: one specimen in full, several as one line each. */
+function specimenColumn(doc: ReportDocument): { title: string; rows: Array<[string, string | Segment[]]> } {
+  const only = doc.specimens.length === 1 ? doc.specimens[0] : undefined;
+  if (only) {
+    const { specimen } = only;
+    return {
+      title: 'Specimen',
+      rows: [
+        ['Type', specimenTypeLabels[specimen.type]],
+        ['Source', specimen.description],
+        ['On receipt', specimen.conditionOnReceipt],
+        ['Acceptance', acceptanceValue(specimen)],
+      ],
+    };
+  }
+  return {
+    title: 'Specimens',
+    rows: doc.specimens.map(({ specimen, results }, i): [string, string | Segment[]] => {
+      const type = seg(`${specimenTypeLabels[specimen.type]}, `, STYLES.value);
+      const state = !specimen.accepted
+        ? seg('rejected', { ...STYLES.valueStrong, color: COLORS.rejectedInk })
+        : seg(results.length > 0 ? 'accepted' : 'accepted, no results', STYLES.value);
+      return [specimenName(specimen, i), [type, state]];
+    }),
+  };
 }
 
 /** Patient, case and specimen side by side, clinical indication below. */
 export function drawIdentification(c: Composer, doc: ReportDocument): void {
-  const { patient, case: kase, specimen, laboratory } = doc;
+  const { patient, case: kase, laboratory } = doc;
   const zone = laboratory.timeZone;
   const gap = 14;
   const colWidth = (c.width - 2 * gap) / 3;
@@ -203,20 +247,7 @@ export function drawIdentification(c: Composer, doc: ReportDocument): void {
         ['Received', formatDateTime(kase.receivedAt, zone)],
       ],
     },
-    {
-      title: 'Specimen',
-      rows: [
-        ['Type', specimenTypeLabels[specimen.type]],
-        ['Source', specimen.description],
-        ['On receipt', specimen.conditionOnReceipt],
-        [
-          'Acceptance',
-          specimen.accepted
-            ? 'Accepted'
-            : [seg('Rejected', { ...STYLES.valueStrong, color: COLORS.rejectedInk })],
-        ],
-      ],
-    },
+    specimenColumn(doc),
   ];
   const titleHeight = 13;
   const heights = columns.map((col) => labelledRows(c, col.rows, 0, 0, colWidth, labelWidth, false));
@@ -313,9 +344,13 @@ function groupResults(results: ReportResult[]): ReportResult[][] {
   );
 }
 
-export function drawResults(c: Composer, doc: ReportDocument): void {
-  c.heading('Results', 60);
-  if (!doc.specimen.accepted) {
+/**
+ * The results table of one specimen. `heading` is the section title printed above it (null: none, when the
+ * specimen's own section title already stands there).
+ */
+export function drawResults(c: Composer, section: ReportSpecimenSection, heading: string | null = 'Results'): void {
+  if (heading !== null) c.heading(heading, 60);
+  if (!section.specimen.accepted) {
     c.paragraph(
       [
         seg('Not performed. ', STYLES.bodyStrong),
@@ -329,12 +364,12 @@ export function drawResults(c: Composer, doc: ReportDocument): void {
     c.space(12);
     return;
   }
-  if (doc.results.length === 0) {
+  if (section.results.length === 0) {
     c.paragraph('No results are reported for this specimen.', STYLES.body);
     c.space(12);
     return;
   }
-  const bands = doc.graphic.criterionBands;
+  const bands = section.graphic.criterionBands;
   const note = c.measure(
     '% of ref. mean: the result as a percentage of the mean of its reference interval.' +
       (bands
@@ -344,7 +379,7 @@ export function drawResults(c: Composer, doc: ReportDocument): void {
     c.width,
   );
   drawTableHeader(c);
-  const groups = groupResults(doc.results);
+  const groups = groupResults(section.results);
   const assayX = c.left;
   const restX = c.left + (COLUMNS[0]?.width ?? 0);
   groups.forEach((group, gi) => {
@@ -406,9 +441,54 @@ function narrative(c: Composer, title: string, text: string): void {
   c.space(12);
 }
 
+/** Pattern summary (of a report with one specimen) and the interpretation. */
 export function drawPatternAndInterpretation(c: Composer, doc: ReportDocument): void {
-  if (doc.patternSummary) narrative(c, 'Pattern summary', doc.patternSummary);
+  const only = doc.specimens.length === 1 ? doc.specimens[0] : undefined;
+  if (only?.patternSummary) narrative(c, 'Pattern summary', only.patternSummary);
   narrative(c, 'Interpretation', doc.interpretation);
+}
+
+/**
+ * One specimen of a report with several: a titled section with its source and condition on receipt, then
+ * its results table, bar graphic and pattern line; a rejected specimen gets its reason and disposition
+ * instead (CLIA 493.1291(c)(5)-(7)).
+ */
+export function drawSpecimenSection(c: Composer, section: ReportSpecimenSection, index: number): void {
+  const { specimen } = section;
+  const name = specimenName(specimen, index);
+  c.heading(`${name} \u2014 ${specimenTypeLabels[specimen.type]}`, specimen.accepted ? 110 : 70);
+  if (!specimen.accepted) {
+    drawRejectionNotice(c, specimen, { title: `${name} rejected on receipt \u2014 not performed`, withSource: true });
+    c.paragraph(
+      [
+        seg('Not performed. ', STYLES.bodyStrong),
+        seg('No assay was run on this specimen and no result is reported for it.', STYLES.body),
+      ],
+      STYLES.body,
+    );
+    c.space(14);
+    return;
+  }
+  const rows: Array<[string, string | Segment[]]> = [
+    ['Source', specimen.description],
+    ['On receipt', specimen.conditionOnReceipt],
+    ['Acceptance', acceptanceValue(specimen)],
+  ];
+  const height = labelledRows(c, rows, 0, 0, c.width, 86, false);
+  c.ensure(height);
+  labelledRows(c, rows, c.left, c.y, c.width, 86, true);
+  c.y += height + 6;
+  drawResults(c, section, null);
+  if (section.results.length === 0) return;
+  drawBarGraphic(c, section.graphic, `${name}: activity as % of reference mean`);
+  if (section.patternSummary) {
+    c.paragraph(
+      [seg('Pattern summary: ', STYLES.bodyStrong), seg(section.patternSummary, STYLES.body)],
+      STYLES.body,
+    );
+    c.space(8);
+  }
+  c.space(6);
 }
 
 export function drawMethods(c: Composer, doc: ReportDocument): void {
@@ -426,7 +506,8 @@ export function drawMethods(c: Composer, doc: ReportDocument): void {
     }
   }
   const intervals = new Map<string, { label: string; version: number; assays: string[] }>();
-  for (const r of doc.results) {
+  for (const r of doc.specimens.flatMap((s) => s.results)) {
+    if (r.intervalLabel === null || r.intervalVersion === null) continue;
     const key = `${r.intervalLabel}\u0000${r.intervalVersion}`;
     const entry = intervals.get(key) ?? { label: r.intervalLabel, version: r.intervalVersion, assays: [] };
     const name = `${r.assay} ${MEASURE_PHRASES[r.measure]}`;

@@ -2,13 +2,13 @@ import type { AssayDefinition } from '@/schemas/assay';
 import { transportConditionLabels, type CaseDetail, type Specimen } from '@/schemas/case';
 import { specimenTypeLabels, type AssayCode } from '@/schemas/common';
 import type { LabProfile } from '@/schemas/lab-profile';
-import type { ReportDocument, ReportResult } from '@/schemas/report-document';
+import type { ReportDocument, ReportGraphic, ReportResult, ReportSpecimenSection } from '@/schemas/report-document';
 import { wallClock } from '../cases/lab-time';
 import type { DraftFinding } from '../review/draft-interpretation';
 
 /*
- * Assembles the ReportDocument that renderReportPdf prints, from the case, the reported specimen, the frozen
- * results and the laboratory profile. Pure: every value arrives as an argument, so the same inputs always
+ * Assembles the ReportDocument that renderReportPdf prints, from the case with every one of its specimens, the
+ * frozen results of each specimen and the laboratory profile. Pure: every value arrives as an argument, so the same inputs always
  * give the same document (and so the same PDF bytes).
  */
 
@@ -34,8 +34,10 @@ export type ReportInputs = {
   laboratory: LabProfile;
   caseDetail: CaseDetail;
   clinician: { name: string; title: string | null };
-  specimen: Specimen;
-  results: ReportableResults | null;
+  /** The specimen whose collection and receipt times head the report (see chooseReportedSpecimen). */
+  primarySpecimen: Specimen;
+  /** Results by specimen id; every specimen of caseDetail gets a section, with or without results. */
+  resultsBySpecimen: ReadonlyMap<number, ReportableResults>;
   interpretation: string;
   signature: SignatureInput;
   version: VersionInput;
@@ -44,8 +46,9 @@ export type ReportInputs = {
 const COMPLEXES: AssayCode[] = ['CI', 'CII', 'CIII', 'CIV', 'CI+III', 'CII+III'];
 
 /**
- * The specimen a report is about: the first accepted specimen with results, else the first accepted one,
- * else the first specimen (a rejected specimen still gets a report that says so).
+ * The specimen that heads the report (its collection and receipt times, the stored report row): the first
+ * accepted specimen with results, else the first accepted one, else the first specimen. Every specimen of the
+ * case is printed in its own section regardless.
  */
 export function chooseReportedSpecimen(
   specimens: readonly Specimen[],
@@ -71,16 +74,6 @@ function describeSpecimen(s: Specimen): string {
   return parts.join(', ');
 }
 
-/** Other specimens of the case, one line each, so the report accounts for every specimen received. */
-function otherSpecimensLine(all: readonly Specimen[], reported: Specimen): string | null {
-  const others = all.filter((s) => s.id !== reported.id);
-  if (others.length === 0) return null;
-  const lines = others.map((s) => {
-    const what = `${s.label} (${specimenTypeLabels[s.type].toLowerCase()})`;
-    return s.accepted ? `${what}: accepted; not part of this report` : `${what}: rejected on receipt, ${s.rejectionReason ?? 'reason not recorded'}`;
-  });
-  return `Other specimens of this case: ${lines.join('; ')}.`;
-}
 
 export function describeDefinition(d: AssayDefinition): string {
   const background =
@@ -93,37 +86,83 @@ export function describeDefinition(d: AssayDefinition): string {
   return `${d.name}: ${d.chromophore} at ${d.wavelengthNm} nm, ε ${d.epsilonPerMmPerCm} mM⁻¹cm⁻¹; ${background}${model}.`;
 }
 
-function methodsSummary(specimen: Specimen, results: ReportableResults | null): string {
-  if (!specimen.accepted || !results || results.results.length === 0) return 'No assays were performed on this specimen.';
-  const tissue = specimenTypeLabels[specimen.type].toLowerCase();
+type Measured = { specimen: Specimen; results: ReportableResults };
+
+function joinWords(words: string[]): string {
+  return words.length <= 1 ? (words[0] ?? '') : `${words.slice(0, -1).join(', ')} and ${words.at(-1) ?? ''}`;
+}
+
+function methodsSummary(measured: Measured[], specimenCount: number): string {
+  if (measured.length === 0) {
+    return specimenCount === 1 ? 'No assays were performed on this specimen.' : 'No assays were performed on any specimen of this case.';
+  }
+  const tissues = joinWords([...new Set(measured.map((m) => specimenTypeLabels[m.specimen.type].toLowerCase()))]);
+  const notes = [...new Set(measured.flatMap((m) => m.results.notes))];
   return [
-    `Spectrophotometric kinetic assays of respiratory-chain complexes and citrate synthase (CS) in ${tissue} homogenate.`,
+    `Spectrophotometric kinetic assays of respiratory-chain complexes and citrate synthase (CS) in ${tissues} homogenate.`,
     'Each specific activity is the background-corrected rate converted with the Beer–Lambert law (A = ε·c·l) and expressed in nmol/min/mg protein,',
     'then relative to CS and to complex II (CII).',
     'Results are compared with this laboratory’s reference intervals for the specimen type and age; “% of ref. mean” is the result as a percentage of the interval’s mean.',
-    ...results.notes,
+    ...notes,
   ].join(' ');
 }
 
-function graphicOf(results: ReportableResults | null): ReportDocument['graphic'] {
+function graphicOf(results: ReportableResults | null): ReportGraphic {
   if (!results || results.results.length === 0) return { bars: [], criterionBands: null };
   const pct = (assay: AssayCode, measure: ReportResult['measure']) =>
     results.results.find((r) => r.assay === assay && r.measure === measure)?.pctOfMean ?? null;
   const nonNegative = (v: number | null) => (v === null ? null : Math.max(0, v));
-  const bars = COMPLEXES.filter((a) => results.results.some((r) => r.assay === a)).map((assay) => ({
-    assay,
-    pctOfMeanRatioCs: nonNegative(pct(assay, 'ratio_cs')),
-    pctOfMeanRatioCii: assay === 'CII' ? null : nonNegative(pct(assay, 'ratio_cii')),
-  }));
+  const bars = COMPLEXES.filter((a) => results.results.some((r) => r.assay === a))
+    .map((assay) => ({
+      assay,
+      pctOfMeanRatioCs: nonNegative(pct(assay, 'ratio_cs')),
+      pctOfMeanRatioCii: assay === 'CII' ? null : nonNegative(pct(assay, 'ratio_cii')),
+    }))
+    // A complex with neither ratio compared (no interval) has no bar to draw.
+    .filter((b) => b.pctOfMeanRatioCs !== null || b.pctOfMeanRatioCii !== null);
   return { bars, criterionBands: results.criteria };
 }
 
-export function buildReportDocument(inputs: ReportInputs): ReportDocument {
-  const { laboratory, caseDetail, specimen, results, signature, version } = inputs;
-  const p = caseDetail.patient;
+/** One specimen's section: accepted with its results (or none), or rejected with reason and disposition. */
+function sectionOf(specimen: Specimen, found: ReportableResults | null): ReportSpecimenSection {
   const accepted = specimen.accepted;
-  const others = otherSpecimensLine(caseDetail.specimens, specimen);
-  const condition = [transportConditionLabels[specimen.transportCondition], others].filter(Boolean).join('. ');
+  const results = accepted ? found : null;
+  return {
+    specimen: {
+      label: specimen.label.trim() || undefined,
+      type: specimen.type,
+      description: describeSpecimen(specimen),
+      conditionOnReceipt: transportConditionLabels[specimen.transportCondition],
+      accepted,
+      rejectionReason: accepted ? null : specimen.rejectionReason?.trim() || 'Reason not recorded',
+      disposition: accepted ? null : 'Not analysed; no enzyme activities were measured on this specimen.',
+    },
+    results: results ? results.results : [],
+    graphic: accepted ? graphicOf(results) : { bars: [], criterionBands: null },
+    patternSummary: results?.patternSummary || null,
+  };
+}
+
+/** The pattern line stored with the report row: the one summary, or each labelled by its specimen. */
+export function reportPatternSummary(document: ReportDocument): string | null {
+  const withSummary = document.specimens.filter((s) => s.patternSummary);
+  if (withSummary.length <= 1) return withSummary[0]?.patternSummary ?? null;
+  return withSummary
+    .map((s, i) => `Specimen ${s.specimen.label ?? String(i + 1)} (${specimenTypeLabels[s.specimen.type].toLowerCase()}): ${s.patternSummary ?? ''}`)
+    .join(' ');
+}
+
+export function buildReportDocument(inputs: ReportInputs): ReportDocument {
+  const { laboratory, caseDetail, primarySpecimen: specimen, resultsBySpecimen, signature, version } = inputs;
+  const p = caseDetail.patient;
+  const all = caseDetail.specimens.some((s) => s.id === specimen.id) ? caseDetail.specimens : [specimen, ...caseDetail.specimens];
+  const sections = all.map((s) => sectionOf(s, resultsBySpecimen.get(s.id) ?? null));
+  const measured = all.flatMap((s): Measured[] => {
+    const r = resultsBySpecimen.get(s.id);
+    return s.accepted && r && r.results.length > 0 ? [{ specimen: s, results: r }] : [];
+  });
+  const definitions = new Map<string, ReportableResults['definitions'][number]>();
+  for (const d of measured.flatMap((m) => m.results.definitions)) definitions.set(`${d.assay}/${d.version}`, d);
   const clinician = inputs.clinician.title ? `${inputs.clinician.name}, ${inputs.clinician.title}` : inputs.clinician.name;
   return {
     laboratory: {
@@ -145,21 +184,11 @@ export function buildReportDocument(inputs: ReportInputs): ReportDocument {
       receivedAt: new Date(specimen.receivedAt).toISOString(),
       collectedAt: specimen.collectedAt ? new Date(specimen.collectedAt).toISOString() : null,
     },
-    specimen: {
-      type: specimen.type,
-      description: describeSpecimen(specimen),
-      conditionOnReceipt: condition,
-      accepted,
-      rejectionReason: accepted ? null : specimen.rejectionReason?.trim() || 'Reason not recorded',
-      disposition: accepted ? null : 'Not analysed; no enzyme activities were measured on this specimen.',
-    },
-    results: accepted && results ? results.results : [],
-    graphic: accepted ? graphicOf(results) : { bars: [], criterionBands: null },
-    patternSummary: accepted && results?.patternSummary ? results.patternSummary : null,
+    specimens: sections,
     interpretation: inputs.interpretation.trim(),
     methods: {
-      summary: methodsSummary(specimen, results),
-      definitions: accepted && results ? results.definitions : [],
+      summary: methodsSummary(measured, sections.length),
+      definitions: [...definitions.values()],
     },
     signature: {
       signerName: signature.signerName,

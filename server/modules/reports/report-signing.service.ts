@@ -21,7 +21,13 @@ import { sendReportNotice, type NoticeDeps } from '../mail/notices.service';
 import { getCaseResults } from '../results/results.service';
 import { findUserById } from '../users/users.repository';
 import { proposeInterpretation } from '../review/draft-interpretation';
-import { buildReportDocument, chooseReportedSpecimen, type ReportableResults, type VersionInput } from './build-report-document';
+import {
+  buildReportDocument,
+  chooseReportedSpecimen,
+  reportPatternSummary,
+  type ReportableResults,
+  type VersionInput,
+} from './build-report-document';
 import * as repo from './reports.repository';
 import { toReportableResults } from './results-adapter';
 
@@ -78,15 +84,15 @@ async function renderSigned(
   signedAt: Date,
   version: VersionInput,
 ) {
-  const { detail, specimen, results } = material;
+  const { detail, specimen, resultsBySpecimen } = material;
   if (!specimen) throw invalidState('The case has no specimen, so there is nothing to report.');
   const [laboratory, clinician] = await Promise.all([getLabProfile(), findUserById(detail.referringClinician.id)]);
   const document = buildReportDocument({
     laboratory,
     caseDetail: detail,
     clinician: { name: clinician?.name ?? detail.referringClinician.name, title: clinician?.title ?? null },
-    specimen,
-    results,
+    primarySpecimen: specimen,
+    resultsBySpecimen,
     interpretation,
     signature: { signerName: signer.name, signerTitle: signer.title?.trim() || 'Laboratory director', signedAt, meaning },
     version,
@@ -166,7 +172,7 @@ export async function signCase(
         version: 1,
         kind: 'final',
         specimenId: r.specimen.id,
-        patternSummary: r.document.patternSummary,
+        patternSummary: reportPatternSummary(r.document),
         interpretation: r.document.interpretation,
         meaning,
         signedById: signer.id,
@@ -244,7 +250,7 @@ export async function correctReport(
         version,
         kind: 'corrected',
         specimenId: r.specimen.id,
-        patternSummary: r.document.patternSummary,
+        patternSummary: reportPatternSummary(r.document),
         interpretation: r.document.interpretation,
         meaning,
         signedById: signer.id,

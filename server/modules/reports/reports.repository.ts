@@ -190,6 +190,16 @@ export function toListItem(r: StoredReport): ReportListItem {
   };
 }
 
+/**
+ * The first specimen's type from a stored signed document. Documents signed before reports carried every
+ * specimen have one top-level `specimen` instead of `specimens`; both shapes are read (stored rows are never
+ * rewritten). Only patient and case fields are read otherwise, and those are the same in both shapes.
+ */
+export function documentSpecimenType(doc: ReportDocument): SpecimenType | null {
+  const legacy = doc as unknown as { specimen?: { type?: SpecimenType } };
+  return doc.specimens?.[0]?.specimen.type ?? legacy.specimen?.type ?? null;
+}
+
 export function toDetail(r: StoredReport, versions: Map<number, number>): ReportDetail {
   const doc = r.document;
   return {
@@ -197,7 +207,7 @@ export function toDetail(r: StoredReport, versions: Map<number, number>): Report
     patientName: doc.patient.name,
     labPatientId: doc.patient.labPatientId,
     dateOfBirth: doc.patient.dateOfBirth,
-    specimenType: r.specimenType ?? doc.specimen.type,
+    specimenType: r.specimenType ?? documentSpecimenType(doc),
     specimenLabel: r.specimenLabel,
     referringClinicianName: doc.case.referringClinicianName,
     patternSummary: r.patternSummary,

@@ -29,21 +29,31 @@ export function criteriaFor(specimen: Pick<SpecimenResult, 'type'>, citation: st
   };
 }
 
-function fmt(v: number): string {
-  return Number(v.toPrecision(3)).toString();
-}
-
-function row(a: AssayResult, c: ResultComparison, flags: string[], notes: string[]): ReportResult | null {
+function row(a: AssayResult, c: ResultComparison, flags: string[], notes: string[], noInterval: string[]): ReportResult | null {
   const what = `${a.assay} ${MEASURE_WORDS[c.measure]}`;
   if (!c.interval) {
-    // The report schema requires an interval version on every row; a value with no interval is stated in the
-    // methods instead of being printed against an interval version that does not exist.
-    notes.push(
-      c.value === null
-        ? `${what}: no value.`
-        : `${what} ${fmt(c.value)}${c.measure === 'activity' ? ` ${a.unit}` : ''} was measured with no reference interval for this specimen type and age.`,
-    );
-    return null;
+    if (c.value === null) {
+      notes.push(`${what}: no value.`);
+      return null;
+    }
+    // Still reported (CLIA 493.1291(c)(6)): the value with its unit, printed as not compared.
+    noInterval.push(what);
+    return {
+      assay: a.assay,
+      assayName: a.name,
+      measure: c.measure,
+      value: c.value,
+      unit: c.measure === 'activity' ? a.unit : 'ratio',
+      referenceLower: null,
+      referenceUpper: null,
+      referenceMean: null,
+      intervalLabel: null,
+      intervalVersion: null,
+      status: 'not_compared',
+      pctOfMean: null,
+      criterionBand: null,
+      flags: [...new Set(flags.map((f) => f.trim()).filter((f) => f.length > 0))],
+    };
   }
   const status = c.value === null || c.position === null ? 'not_compared' : c.position;
   return {
@@ -66,17 +76,23 @@ function row(a: AssayResult, c: ResultComparison, flags: string[], notes: string
 
 function specimenRows(s: SpecimenResult, notes: string[]): ReportResult[] {
   const rows: ReportResult[] = [];
+  const noInterval: string[] = [];
   for (const a of s.assays) {
     const ratioMessages = new Set([...(a.ratioCs?.flags ?? []), ...(a.ratioCii?.flags ?? [])].map((f) => f.message));
     // Replicate and activity flags go with the activity row; each ratio row carries its own.
     const activityFlags = a.flags.map((f) => f.message).filter((m) => !ratioMessages.has(m));
-    const activity = row(a, a.activity, activityFlags, notes);
+    const activity = row(a, a.activity, activityFlags, notes, noInterval);
     if (activity) rows.push(activity);
     for (const c of [a.ratioCs, a.ratioCii]) {
       if (!c) continue;
-      const r = row(a, c, c.flags.map((f) => f.message), notes);
+      const r = row(a, c, c.flags.map((f) => f.message), notes, noInterval);
       if (r) rows.push(r);
     }
+  }
+  if (noInterval.length > 0) {
+    notes.push(
+      `No reference interval exists for this specimen type and age for ${noInterval.join(', ')}; these results are reported without comparison.`,
+    );
   }
   return rows;
 }

@@ -1,7 +1,6 @@
 import type { Sequelize } from 'sequelize';
 import type { CaseDetail, ReasonInput } from '@/schemas/case';
 import type { InterpretationDraft, ReviewCase, ReviewQueueItem, SaveDraftInput } from '@/schemas/report';
-import { specimenTypeLabels } from '@/schemas/common';
 import type { User } from '@/schemas/user';
 import { invalidState, notFound, staleVersion } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
@@ -61,15 +60,12 @@ export async function reviewCase(caseId: number): Promise<ReviewCase> {
     lastSubmissions([caseId]),
   ]);
   const notes: string[] = [];
-  const withResults = detail.specimens.filter((s) => s.accepted && (resultsBySpecimen.get(s.id)?.results.length ?? 0) > 0);
-  if (specimen && withResults.length > 1) {
-    const others = withResults.filter((s) => s.id !== specimen.id).map((s) => `${s.label} (${specimenTypeLabels[s.type].toLowerCase()})`);
-    notes.push(
-      `The report prints the results of specimen ${specimen.label} only; ${others.join(', ')} also ${others.length > 1 ? 'have' : 'has'} results, which the report lists by name but does not print. Mention them in the interpretation if they matter.`,
-    );
-  }
+  // Every specimen is printed in its own section; the notes about results come from each specimen that has any.
   if (specimen && !specimen.accepted) notes.push(`Specimen ${specimen.label} was rejected on receipt; the report will say so and carry no results.`);
-  if (specimen && material.results) notes.push(...material.results.notes);
+  for (const s of detail.specimens) {
+    const r = s.accepted ? resultsBySpecimen.get(s.id) : undefined;
+    for (const note of r?.notes ?? []) if (!notes.includes(note)) notes.push(note);
+  }
   if (detail.returnReason && detail.state === 'awaiting_review') notes.push(`Returned earlier with this reason: ${detail.returnReason}`);
   const submitted = submissions.get(caseId) ?? null;
   return {

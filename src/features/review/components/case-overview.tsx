@@ -42,7 +42,6 @@ export function CaseOverview({ review }: { review: ReviewCase }) {
                 <span className="font-medium">
                   {s.label} · {specimenTypeLabels[s.type]}
                 </span>
-                {s.id === review.reportedSpecimenId ? <span className="ml-2 text-xs text-matrix-700">(on the report)</span> : null}
               </p>
               <p className="text-ink-soft">
                 {s.source || 'Source not stated'}

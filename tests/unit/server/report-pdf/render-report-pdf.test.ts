@@ -4,12 +4,20 @@ import path from 'node:path';
 import { getDocument, PDFDateString } from 'pdfjs-dist/legacy/build/pdf.mjs';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { specimenTypeLabels } from '@/schemas/common';
-import { reportCaution, type ReportDocument, type ReportResult } from '@/schemas/report-document';
+import {
+  reportCaution,
+  type ReportDocument,
+  type ReportResult,
+  type ReportSpecimenSection,
+} from '@/schemas/report-document';
 import { renderReportPdf, ReportDocumentError } from '../../../../server/domain/report-pdf/render-report-pdf';
 import {
   buildCorrectedReportDocument,
   buildRejectedReportDocument,
   buildReportDocument,
+  buildTwoSpecimenReportDocument,
+  liverSection,
+  rejectedMuscleSection,
 } from '../../../factories/report-document';
 
 /**
@@ -127,11 +135,13 @@ const MEASURE_WORDS = { activity: 'Activity', ratio_cs: 'Ratio to CS', ratio_cii
 
 describe('renderReportPdf: final report of an accepted specimen', () => {
   let doc: ReportDocument;
+  let section: ReportSpecimenSection;
   let bytes: Buffer;
   let pdf: ReadPdf;
 
   beforeAll(async () => {
     doc = buildReportDocument();
+    section = doc.specimens[0]!;
     bytes = await renderReportPdf(doc);
     save('final.pdf', bytes);
     pdf = await readPdf(bytes);
@@ -157,11 +167,11 @@ describe('renderReportPdf: final report of an accepted specimen', () => {
   it('when read back, then it names the test performed and the specimen source (CLIA 493.1291(c)(4)-(5) [confirmed])', () => {
     expect(pdf.pages[0]?.flat).toContain('Respiratory-chain enzyme report');
     const assayColumn = columnText(pdf.pages[0]!, 'Assay', 'Measure');
-    for (const r of doc.results) expect(assayColumn).toContain(`${r.assay} ${r.assayName}`);
+    for (const r of section.results) expect(assayColumn).toContain(`${r.assay} ${r.assayName}`);
     const specimenColumn = columnText(pdf.pages[0]!, 'SPECIMEN');
-    expect(specimenColumn).toContain(`Type ${specimenTypeLabels[doc.specimen.type]}`);
-    expect(specimenColumn).toContain(`Source ${doc.specimen.description}`);
-    expect(specimenColumn).toContain(`On receipt ${doc.specimen.conditionOnReceipt}`);
+    expect(specimenColumn).toContain(`Type ${specimenTypeLabels[section.specimen.type]}`);
+    expect(specimenColumn).toContain(`Source ${section.specimen.description}`);
+    expect(specimenColumn).toContain(`On receipt ${section.specimen.conditionOnReceipt}`);
   });
 
   it('when read back, then every result stands on one line with its measure, value, unit and reference interval (CLIA 493.1291(c)(6), (d) [confirmed])', () => {
@@ -177,23 +187,23 @@ describe('renderReportPdf: final report of an accepted specimen', () => {
       );
       if (!found) missing.push(`${r.assay} ${r.measure}`);
     };
-    doc.results.forEach(check);
+    section.results.forEach(check);
     expect(missing).toEqual([]);
   });
 
   it('when a result lies outside its interval, then the table says so in words, not only colour', () => {
-    const below = doc.results.filter((r) => r.status === 'below').length;
-    const within = doc.results.filter((r) => r.status === 'within').length;
+    const below = section.results.filter((r) => r.status === 'below').length;
+    const within = section.results.filter((r) => r.status === 'within').length;
     const count = (word: string): number => pdf.pages.flatMap((p) => p.lines).filter((l) => l.includes(word)).length;
     expect(below).toBeGreaterThan(0);
     expect(count('Below interval')).toBe(below);
     expect(count('Within interval')).toBe(within);
-    const minorBands = doc.results.filter((r) => r.criterionBand === 'minor').length;
+    const minorBands = section.results.filter((r) => r.criterionBand === 'minor').length;
     expect(pdf.flat.split('minor-criterion band').length - 1).toBeGreaterThanOrEqual(minorBands);
   });
 
   it('when a result carries a flag, then the flag is printed', () => {
-    const flagged = doc.results.filter((r) => r.flags.length > 0);
+    const flagged = section.results.filter((r) => r.flags.length > 0);
     expect(flagged.length).toBeGreaterThan(0);
     for (const r of flagged) for (const f of r.flags) expect(pdf.flat).toContain(f);
   });
@@ -228,24 +238,24 @@ describe('renderReportPdf: final report of an accepted specimen', () => {
   });
 
   it('when read back, then pattern, interpretation, methods and interval versions are printed', () => {
-    expect(pdf.flat).toContain(collapse(doc.patternSummary!));
+    expect(pdf.flat).toContain(collapse(section.patternSummary!));
     for (const para of doc.interpretation.split('\n\n')) expect(pdf.flat).toContain(collapse(para));
     expect(pdf.flat).toContain(asExtracted(doc.methods.summary));
     for (const d of doc.methods.definitions) expect(pdf.flat).toContain(`${d.assay}, definition version ${d.version}:`);
-    for (const r of doc.results) expect(pdf.flat).toContain(`${r.intervalLabel}, interval version ${r.intervalVersion}`);
+    for (const r of section.results) expect(pdf.flat).toContain(`${r.intervalLabel}, interval version ${r.intervalVersion}`);
   });
 
   it('when read back, then the bar graphic labels each complex ratio with its % of mean', () => {
     const page = pdf.pages.find((p) => p.flat.includes('Activity as % of reference mean'));
     expect(page).toBeDefined();
-    for (const bar of doc.graphic.bars) {
+    for (const bar of section.graphic.bars) {
       for (const v of [bar.pctOfMeanRatioCs, bar.pctOfMeanRatioCii]) {
         if (v !== null) expect(page?.flat).toContain(`${Math.round(v)}%`);
       }
     }
     expect(page?.flat).toContain('Ratio to citrate synthase (CS)');
     expect(page?.flat).toContain('Ratio to complex II (CII)');
-    expect(page?.flat).toContain(doc.graphic.criterionBands!.ruleSetLabel);
+    expect(page?.flat).toContain(section.graphic.criterionBands!.ruleSetLabel);
   });
 
   it('when read back, then special characters survive: ε, µ, ±, °, –, superscript one', () => {
@@ -299,14 +309,15 @@ describe('renderReportPdf: corrected report', () => {
 describe('renderReportPdf: rejected specimen', () => {
   it('when the specimen was rejected, then the reason, condition and disposition are printed and no results table (CLIA 493.1291(c)(7) [confirmed])', async () => {
     const doc = buildRejectedReportDocument();
+    const section = doc.specimens[0]!;
     const bytes = await renderReportPdf(doc);
     save('rejected.pdf', bytes);
     const pdf = await readPdf(bytes);
 
     expect(pdf.pages[0]?.flat).toContain('SPECIMEN REJECTED');
-    expect(pdf.pages[0]?.flat).toContain(`Reason for rejection ${doc.specimen.rejectionReason}`);
-    expect(pdf.pages[0]?.flat).toContain(`Condition on receipt ${doc.specimen.conditionOnReceipt}`);
-    expect(pdf.pages[0]?.flat).toContain(`Disposition ${doc.specimen.disposition}`);
+    expect(pdf.pages[0]?.flat).toContain(`Reason for rejection ${section.specimen.rejectionReason}`);
+    expect(pdf.pages[0]?.flat).toContain(`Condition on receipt ${section.specimen.conditionOnReceipt}`);
+    expect(pdf.pages[0]?.flat).toContain(`Disposition ${section.specimen.disposition}`);
     expect(pdf.flat).toContain('Not performed.');
     expect(pdf.flat).not.toContain('Reference interval');
     expect(pdf.flat).not.toContain('Activity as % of reference mean');
@@ -316,6 +327,150 @@ describe('renderReportPdf: rejected specimen', () => {
     expect(pdf.flat).toContain(`Released by ${doc.signature.signerName}`);
     expect(pdf.flat).toContain(collapse(reportCaution));
     expect(pdf.pages.at(-1)?.flat).toContain(`Page ${pdf.pages.length} of ${pdf.pages.length}`);
+  });
+});
+
+/** The lines from the first one containing `from` up to (not including) the first after it containing `to`. */
+function linesBetween(pdf: ReadPdf, from: string, to: string | null): string[] {
+  const all = pdf.pages.flatMap((p) => p.lines);
+  const start = all.findIndex((l) => l.includes(from));
+  if (start < 0) throw new Error(`No line with '${from}'`);
+  const rel = to === null ? -1 : all.slice(start + 1).findIndex((l) => l.includes(to));
+  return all.slice(start, rel < 0 ? undefined : start + 1 + rel);
+}
+
+/** True when one of `lines` prints result `r` with its measure, value, unit and interval in one row. */
+function printsResult(lines: string[], r: ReportResult): boolean {
+  const value = r.value === null ? 'No value' : fixed(r.value, r.decimals);
+  const interval = `${fixed(r.referenceLower!, r.decimals)}\u2013${fixed(r.referenceUpper!, r.decimals)}`;
+  return lines.some((l) => l.includes(`${MEASURE_WORDS[r.measure]} ${value} ${r.unit} ${interval}`));
+}
+
+/*
+ * A case with several specimens: every result is printed under its own specimen, with that specimen's type
+ * and source, and a rejected specimen's condition and disposition are stated (US CLIA 42 CFR
+ * 493.1291(c)(5), (6), (7) [confirmed], domain.md section 5).
+ */
+describe('renderReportPdf: several specimens', () => {
+  it('when muscle and liver both have results, then each specimen section shows its type, source, condition, results and graphic (CLIA 493.1291(c)(5),(6) [confirmed])', async () => {
+    const doc = buildTwoSpecimenReportDocument();
+    const [muscle, liver] = doc.specimens;
+    const bytes = await renderReportPdf(doc);
+    save('two-specimens.pdf', bytes);
+    const pdf = await readPdf(bytes);
+
+    // The identification block lists both specimens.
+    expect(pdf.pages[0]?.flat).toContain('Specimen A Skeletal muscle, accepted');
+    expect(pdf.pages[0]?.flat).toContain('Specimen B Liver, accepted');
+
+    const muscleLines = linesBetween(pdf, 'Specimen A \u2014 Skeletal muscle', 'Specimen B \u2014 Liver');
+    const liverLines = linesBetween(pdf, 'Specimen B \u2014 Liver', 'Interpretation');
+    const muscleText = collapse(muscleLines.join(' '));
+    const liverText = collapse(liverLines.join(' '));
+    expect(muscleText).toContain(`Source ${muscle!.specimen.description}`);
+    expect(muscleText).toContain(`On receipt ${muscle!.specimen.conditionOnReceipt}`);
+    expect(liverText).toContain(`Source ${liver!.specimen.description}`);
+    expect(liverText).toContain(`On receipt ${liver!.specimen.conditionOnReceipt}`);
+
+    // Each result stands in its own specimen's section, not in the other's: the CI activity differs
+    // between the two (9.5 in muscle, 21.4 in liver, invented demo values).
+    const missing = [
+      ...muscle!.results.filter((r) => !printsResult(muscleLines, r)).map((r) => `muscle ${r.assay} ${r.measure}`),
+      ...liver!.results.filter((r) => !printsResult(liverLines, r)).map((r) => `liver ${r.assay} ${r.measure}`),
+    ];
+    expect(missing).toEqual([]);
+    const liverCiActivity = liver!.results.find((r) => r.assay === 'CI' && r.measure === 'activity')!;
+    const muscleCiActivity = muscle!.results.find((r) => r.assay === 'CI' && r.measure === 'activity')!;
+    expect(printsResult(muscleLines, liverCiActivity)).toBe(false);
+    expect(printsResult(liverLines, muscleCiActivity)).toBe(false);
+    // Assays measured only in muscle do not appear in the liver table.
+    expect(liverText).not.toContain('CIII Ubiquinol:cytochrome c reductase');
+
+    // Each specimen has its own bar graphic and pattern line.
+    expect(muscleText).toContain('Specimen A: activity as % of reference mean');
+    expect(liverText).toContain('Specimen B: activity as % of reference mean');
+    expect(muscleText).toContain(`Pattern summary: ${collapse(muscle!.patternSummary!)}`);
+    expect(liverText).toContain(`Pattern summary: ${collapse(liver!.patternSummary!)}`);
+
+    // Both interval sets are traceable, and the report stays complete and numbered.
+    for (const r of [...muscle!.results, ...liver!.results]) {
+      expect(pdf.flat).toContain(`${r.intervalLabel}, interval version ${r.intervalVersion}`);
+    }
+    expect(pdf.flat).toContain(`Released by ${doc.signature.signerName}`);
+    pdf.pages.forEach((page, i) => expect(page.flat).toContain(`Page ${i + 1} of ${pdf.pages.length}`));
+    // Nothing runs into the footer band.
+    for (const page of pdf.pages) {
+      page.lines.forEach((line, i) => {
+        if ((page.baselines[i] ?? 0) < 48) expect(['Patient ID', 'Version '].some((st) => line.startsWith(st)), line).toBe(true);
+      });
+    }
+  });
+
+  it('when specimen A was rejected and B accepted, then A states its rejection reason and disposition and B its results (CLIA 493.1291(c)(5),(6),(7) [confirmed])', async () => {
+    const rejected = rejectedMuscleSection();
+    const doc = buildReportDocument({
+      specimens: [{ ...rejected, specimen: { ...rejected.specimen, label: 'A' } }, liverSection()],
+      interpretation: 'Specimen A could not be analysed; liver (specimen B) shows a low complex IV activity (demo).',
+    });
+    const [a, b] = doc.specimens;
+    const bytes = await renderReportPdf(doc);
+    save('rejected-and-accepted.pdf', bytes);
+    const pdf = await readPdf(bytes);
+
+    expect(pdf.pages[0]?.flat).toContain('Specimen A Skeletal muscle, rejected');
+    const aText = collapse(linesBetween(pdf, 'Specimen A \u2014 Skeletal muscle', 'Specimen B \u2014 Liver').join(' '));
+    expect(aText).toContain('Specimen A rejected on receipt \u2014 not performed');
+    expect(aText).toContain(`Source ${a!.specimen.description}`);
+    expect(aText).toContain(`Reason for rejection ${a!.specimen.rejectionReason}`);
+    expect(aText).toContain(`Condition on receipt ${a!.specimen.conditionOnReceipt}`);
+    expect(aText).toContain(`Disposition ${a!.specimen.disposition}`);
+    expect(aText).toContain('Not performed.');
+    expect(aText).not.toContain('Reference interval');
+
+    const bLines = linesBetween(pdf, 'Specimen B \u2014 Liver', 'Interpretation');
+    expect(b!.results.filter((r) => !printsResult(bLines, r)).map((r) => `${r.assay} ${r.measure}`)).toEqual([]);
+    expect(collapse(bLines.join(' '))).toContain('Specimen B: activity as % of reference mean');
+  });
+
+  it('when a specimen was accepted but has no results, then its section says so', async () => {
+    const liver = liverSection();
+    const empty = { ...liver, results: [], graphic: { bars: [], criterionBands: null }, patternSummary: null };
+    const doc = buildTwoSpecimenReportDocument();
+    const pdf = await readPdf(await renderReportPdf({ ...doc, specimens: [doc.specimens[0]!, empty] }));
+    expect(pdf.pages[0]?.flat).toContain('Specimen B Liver, accepted, no results');
+    const bText = collapse(linesBetween(pdf, 'Specimen B \u2014 Liver', 'Interpretation').join(' '));
+    expect(bText).toContain('Acceptance Accepted');
+    expect(bText).toContain('No results are reported for this specimen.');
+    expect(bText).not.toMatch(/activity as % of reference mean/i);
+  });
+});
+
+describe('renderReportPdf: a result with no reference interval', () => {
+  it('when a specimen type has no interval, then the value is still printed with its unit, as not compared (CLIA 493.1291(c)(6) [confirmed])', async () => {
+    const liver = liverSection();
+    const results = liver.results.map((r) => ({
+      ...r,
+      referenceLower: null,
+      referenceUpper: null,
+      referenceMean: null,
+      intervalLabel: null,
+      intervalVersion: null,
+      status: 'not_compared' as const,
+      pctOfMean: null,
+      criterionBand: null,
+    }));
+    const doc = buildTwoSpecimenReportDocument();
+    const bytes = await renderReportPdf({
+      ...doc,
+      specimens: [doc.specimens[0]!, { ...liver, results, graphic: { bars: [], criterionBands: null }, patternSummary: null }],
+    });
+    const pdf = await readPdf(bytes);
+    const lines = linesBetween(pdf, 'Specimen B \u2014 Liver', 'Interpretation');
+    const missing = results.filter(
+      (r) => !lines.some((l) => l.includes(`${MEASURE_WORDS[r.measure]} ${fixed(r.value!, r.decimals)} ${r.unit} No interval`) && l.includes('Not compared')),
+    );
+    expect(missing.map((r) => `${r.assay} ${r.measure}`)).toEqual([]);
+    expect(pdf.flat).not.toContain('Liver, all ages (demo), interval version');
   });
 });
 
@@ -395,23 +550,59 @@ describe('renderReportPdf: invalid input', () => {
     await expect(renderReportPdf(bad)).rejects.toThrow(/report\.supersedesVersion/);
   });
 
-  it('when a rejected specimen has no disposition, then the error names specimen.disposition', async () => {
+  it('when a rejected specimen has no disposition, then the error names specimens.0.specimen.disposition', async () => {
     const doc = buildRejectedReportDocument();
-    const bad = { ...doc, specimen: { ...doc.specimen, disposition: null } };
-    await expect(renderReportPdf(bad)).rejects.toThrow(/specimen\.disposition/);
+    const section = doc.specimens[0]!;
+    const bad = { ...doc, specimens: [{ ...section, specimen: { ...section.specimen, disposition: null } }] };
+    await expect(renderReportPdf(bad)).rejects.toThrow(/specimens\.0\.specimen\.disposition/);
   });
 
-  it('when a result row has no unit, then the error names the row and the field', async () => {
-    const doc = buildReportDocument();
-    const results = doc.results.map((r, i) => (i === 2 ? { ...r, unit: '' } : r));
-    await expect(renderReportPdf({ ...doc, results })).rejects.toThrow(/results\.2\.unit/);
+  it('when a result row has no unit, then the error names the specimen, the row and the field', async () => {
+    const doc = buildTwoSpecimenReportDocument();
+    const liver = doc.specimens[1]!;
+    const results = liver.results.map((r, i) => (i === 2 ? { ...r, unit: '' } : r));
+    const bad = { ...doc, specimens: [doc.specimens[0]!, { ...liver, results }] };
+    await expect(renderReportPdf(bad)).rejects.toThrow(/specimens\.1\.results\.2\.unit/);
   });
 
-  it('when the same assay and measure appear twice, then the error names the second row', async () => {
+  it('when the same assay and measure appear twice in one specimen, then the error names the second row', async () => {
     const doc = buildReportDocument();
-    const results = [...doc.results, { ...doc.results[0]!, value: 1 }];
-    await expect(renderReportPdf({ ...doc, results })).rejects.toThrow(
-      new RegExp(`results\\.${results.length - 1}: Duplicate result for CI activity`),
+    const section = doc.specimens[0]!;
+    const results = [...section.results, { ...section.results[0]!, value: 1 }];
+    await expect(renderReportPdf({ ...doc, specimens: [{ ...section, results }] })).rejects.toThrow(
+      new RegExp(`specimens\\.0\\.results\\.${results.length - 1}: Duplicate result for CI activity`),
+    );
+  });
+
+  it('when two specimens carry the same assay and measure, then the document is valid (each result belongs to its specimen)', async () => {
+    const doc = buildTwoSpecimenReportDocument();
+    expect(doc.specimens[0]!.results.some((r) => r.assay === 'CI' && r.measure === 'activity')).toBe(true);
+    expect(doc.specimens[1]!.results.some((r) => r.assay === 'CI' && r.measure === 'activity')).toBe(true);
+    await expect(renderReportPdf(doc)).resolves.toBeInstanceOf(Buffer);
+  });
+
+  it('when a result has no interval but carries reference limits, then the error names its intervalLabel', async () => {
+    const doc = buildReportDocument();
+    const section = doc.specimens[0]!;
+    const results = section.results.map((r, i) =>
+      i === 1 ? { ...r, intervalLabel: null, intervalVersion: null, status: 'not_compared' as const } : r,
+    );
+    await expect(renderReportPdf({ ...doc, specimens: [{ ...section, results }] })).rejects.toThrow(
+      /specimens\.0\.results\.1\.intervalLabel: Reference limits need the interval/,
+    );
+  });
+
+  it('when the report has no specimen, then the error names specimens', async () => {
+    const doc = buildReportDocument();
+    await expect(renderReportPdf({ ...doc, specimens: [] })).rejects.toThrow(/specimens: At least one specimen/);
+  });
+
+  it('when a rejected specimen carries results, then the error names its results', async () => {
+    const doc = buildTwoSpecimenReportDocument();
+    const [a, b] = doc.specimens;
+    const rejected = { ...a!, specimen: { ...rejectedMuscleSection().specimen, label: 'A' } };
+    await expect(renderReportPdf({ ...doc, specimens: [rejected, b!] })).rejects.toThrow(
+      /specimens\.0\.results: A rejected specimen has no results/,
     );
   });
 
