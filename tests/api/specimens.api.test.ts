@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { specimenLabel } from '../../server/modules/specimens/specimens.service';
 import { buildSpecimenInput, createCase } from '../factories/cases';
+import { cuvette, recordDirectProtein } from '../factories/measurements';
 import { countRows, makeTestApp, type TestApp } from '../setup/test-app';
 
 let t: TestApp;
@@ -154,6 +155,25 @@ describe('PATCH /api/specimens/:id', () => {
     const res = await tech.patch(`/api/specimens/${c.specimens[0]!.id}`).send({ wetWeightMg: 3, version: 0 });
     expect(res.status).toBe(409);
     expect(res.body.error.code).toBe('INVALID_STATE');
+  });
+
+  it('when a specimen already has assay results, then it cannot be rejected (409 naming accepted) and the results stay', async () => {
+    const c = await createCase(tech);
+    const specimen = c.specimens[0]!;
+    expect((await recordDirectProtein(tech, specimen, 4, 'Typed from the BCA sheet')).status).toBe(200);
+    const saved = await tech
+      .post(`/api/cases/${c.id}/measurements`)
+      .send({ mode: 'rates', specimenId: specimen.id, assay: 'CS', replicate: 1, ...cuvette, totalRatePerMin: 0.05, backgroundRatePerMin: 0.001 });
+    expect(saved.status).toBe(201);
+    const current = (await tech.get(`/api/cases/${c.id}`)).body.specimens[0];
+    const before = await countRows(t.sequelize, 'measurements');
+    const res = await tech
+      .patch(`/api/specimens/${specimen.id}`)
+      .send({ accepted: false, rejectionReason: 'Thawed in transit', version: current.version });
+    expect(res.status).toBe(409);
+    expect(res.body.error.fields).toHaveProperty('accepted');
+    expect(await countRows(t.sequelize, 'measurements')).toBe(before);
+    expect((await tech.get(`/api/cases/${c.id}`)).body.specimens[0].accepted).toBe(true);
   });
 });
 

@@ -14,6 +14,7 @@ import { findCaseById, setSpecimenColumns } from '../cases/cases.repository';
 import { parseLabDateTime } from '../cases/lab-time';
 import { labTimeZone } from '../cases/lab-zone';
 import { writeTransaction } from '../cases/write-transaction';
+import { listMeasurementsOfSpecimen } from '../measurements/measurements.repository';
 import * as repo from './specimens.repository';
 
 /** Specimens can be received or corrected until the case goes for review. */
@@ -143,6 +144,13 @@ export async function changeSpecimen(
     if (!accepted && !reason) throw badInput({ rejectionReason: 'Give the reason the specimen is rejected' });
     if (accepted && fields.rejectionReason) {
       throw badInput({ rejectionReason: 'Only a rejected specimen has a rejection reason' });
+    }
+    // Rejection is a decision on receipt: a specimen that already has assay results cannot be rejected
+    // afterwards without deleting them first, so no result is ever silently dropped from the report.
+    if (current.accepted && !accepted && (await listMeasurementsOfSpecimen(id, t)).length > 0) {
+      throw new AppError('INVALID_STATE', `Specimen ${current.label} already has assay results; delete them on the assay bench before rejecting it.`, {
+        fields: { accepted: 'This specimen already has assay results' },
+      });
     }
     changes.accepted = accepted;
     changes.rejectionReason = reason;
