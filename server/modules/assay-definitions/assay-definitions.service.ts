@@ -13,6 +13,7 @@ import { calculateActivity } from '../../domain/assay-engine/engine';
 import { badInput, notFound, staleVersion, zodFields } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
 import * as repo from './assay-definitions.repository';
+import { writeTransaction } from '../../db/write-transaction';
 
 export const listCurrentDefinitions = repo.listCurrentDefinitions;
 export const listDefinitionVersions = repo.listDefinitionVersions;
@@ -42,7 +43,7 @@ export async function getCurrentDefinition(code: AssayCode): Promise<StoredAssay
 /** Stores the published defaults as version 1 of each assay, once, on an empty table. */
 export async function ensureDefaultDefinitions(sequelize: Sequelize): Promise<void> {
   if ((await repo.countDefinitions()) > 0) return;
-  await sequelize.transaction(async (transaction) => {
+  await writeTransaction(sequelize, async (transaction) => {
     for (const d of defaultAssayDefinitions) {
       await repo.insertDefinitionVersion(d, 'Published defaults (docs/domain.md §1)', null, transaction);
     }
@@ -61,7 +62,7 @@ export async function createDefinitionVersion(
   input: CreateAssayDefinitionVersionInput,
 ): Promise<StoredAssayDefinition> {
   try {
-    return await sequelize.transaction(async (transaction) => {
+    return await writeTransaction(sequelize, async (transaction) => {
       const current = await repo.findCurrentDefinition(code, transaction);
       if (!current) throw notFound('Assay definition', code);
       if (current.definition.version !== input.basedOnVersion) throw staleVersion('assay definition');

@@ -4,7 +4,7 @@ import type { User } from '@/schemas/user';
 import { badInput, forbidden, invalidState, notFound, staleVersion } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
 import { findCaseById, loadCaseDetail, updateCaseIfVersion } from './cases.repository';
-import { withWriteTransaction } from './write-transaction';
+import { withWriteTransaction } from '../../db/write-transaction';
 
 type Rule = { reason: boolean; directorOnly: boolean };
 

@@ -19,7 +19,7 @@ import { transitionCase } from './case-state';
 import * as repo from './cases.repository';
 import { endOfLabDay, labYear, startOfLabDay } from './lab-time';
 import { labTimeZone } from './lab-zone';
-import { writeTransaction } from './write-transaction';
+import { writeTransaction } from '../../db/write-transaction';
 
 export const DEFAULT_PAGE_SIZE = 25;
 

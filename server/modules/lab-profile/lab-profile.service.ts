@@ -4,6 +4,7 @@ import type { User } from '@/schemas/user';
 import { notFound, staleVersion } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
 import { LabProfileModel } from './lab-profile.model';
+import { writeTransaction } from '../../db/write-transaction';
 
 const PROFILE_ID = 1;
 
@@ -29,7 +30,7 @@ export async function saveLabProfile(
   actor: User | null,
   input: UpdateLabProfileInput,
 ): Promise<LabProfile> {
-  return sequelize.transaction(async (transaction) => {
+  return writeTransaction(sequelize, async (transaction) => {
     const row = await LabProfileModel.findByPk(PROFILE_ID, { transaction });
     const values = {
       name: input.name,

@@ -1,7 +1,7 @@
 import type { Sequelize, Transaction } from 'sequelize';
 import type { MailDelivery, OutboxMessage } from '@/schemas/report';
 import { CaseModel } from '../cases/case.model';
-import { writeTransaction } from '../cases/write-transaction';
+import { writeTransaction } from '../../db/write-transaction';
 import { MailDeliveryModel, OutboxMessageModel } from './outbox.model';
 
 /** Queued with the registry's other writes: an in-memory database has one connection, shared by all. */

@@ -1,6 +1,6 @@
 import type { Sequelize } from 'sequelize';
 import { logError, logInfo } from '../../lib/log';
-import { writeTransaction } from '../cases/write-transaction';
+import { writeTransaction } from '../../db/write-transaction';
 import { getLabProfile } from '../lab-profile/lab-profile.service';
 import { insertDelivery, listDeliveries, listOutboxMessages } from './mail.repository';
 import type { Mailer } from './mailer';

@@ -16,7 +16,7 @@ import { findDefinitionById, getCurrentDefinition } from '../assay-definitions/a
 import { recordAudit } from '../audit/audit.service';
 import { transitionCase } from '../cases/case-state';
 import { findCaseById, type CaseRecord } from '../cases/cases.repository';
-import { writeTransaction } from '../cases/write-transaction';
+import { writeTransaction } from '../../db/write-transaction';
 import { listUploadsOfCase } from '../uploads/uploads.repository';
 import { auditSummary, computeFromInputs } from './compute';
 import * as repo from './measurements.repository';

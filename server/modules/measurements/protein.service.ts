@@ -5,7 +5,7 @@ import { fitProteinCurve, interpolateProtein } from '../../domain/assay-engine/p
 import { fmt } from '../../domain/assay-engine/trace';
 import { badInput, notFound, staleVersion } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
-import { writeTransaction } from '../cases/write-transaction';
+import { writeTransaction } from '../../db/write-transaction';
 import * as repo from './measurements.repository';
 import { loadEditableCase, recomputeForProtein } from './measurements.service';
 

@@ -9,7 +9,7 @@ import type { User } from '@/schemas/user';
 import { AppError, notFound, staleVersion } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
 import { refreshPatientOnCases } from '../cases/cases.repository';
-import { writeTransaction } from '../cases/write-transaction';
+import { writeTransaction } from '../../db/write-transaction';
 import { displayName, nameKeyOf, searchTokens } from './patient-names';
 import * as repo from './patients.repository';
 

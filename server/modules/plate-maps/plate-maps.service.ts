@@ -4,7 +4,7 @@ import type { CreatePlateMapInput } from '@/schemas/plate';
 import type { User } from '@/schemas/user';
 import { AppError, notFound, staleVersion } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
-import { writeTransaction } from '../cases/write-transaction';
+import { writeTransaction } from '../../db/write-transaction';
 import * as repo from './plate-maps.repository';
 
 export const listPlateMaps = repo.listPlateMaps;

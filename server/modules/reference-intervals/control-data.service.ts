@@ -32,6 +32,7 @@ import { recordAudit } from '../audit/audit.service';
 import { ageBandText, methodDescriptions, outlierDescriptions } from './interval-labels';
 import * as repo from './reference-intervals.repository';
 import { insertDraft } from './reference-intervals.service';
+import { writeTransaction } from '../../db/write-transaction';
 
 /** Largest control file accepted (multer limit): about 20 000 subjects with every assay. */
 export const MAX_CONTROL_FILE_BYTES = 2 * 1024 * 1024;
@@ -96,7 +97,7 @@ export async function storeControlFile(
   const existing = await repo.findControlUploadBySha(sha256);
   if (existing) return { ...existing, data, alreadyStored: true };
   const filename = cleanFilename(file.originalname);
-  const id = await sequelize.transaction(async (transaction) => {
+  const id = await writeTransaction(sequelize, async (transaction) => {
     const newId = await repo.insertControlUpload(
       { filename, mimeType: 'text/csv', content: file.buffer, sha256, uploadedById: actor.id },
       transaction,
@@ -293,7 +294,7 @@ export async function createDraftFromControls(
   ]
     .filter(Boolean)
     .join(' ');
-  return sequelize.transaction((transaction) =>
+  return writeTransaction(sequelize, (transaction) =>
     insertDraft(
       actor,
       {

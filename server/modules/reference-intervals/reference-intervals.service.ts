@@ -7,6 +7,7 @@ import { AppError, invalidState, notFound, staleVersion } from '../../lib/errors
 import { recordAudit } from '../audit/audit.service';
 import { ageBandText, intervalKeyOf } from './interval-labels';
 import * as repo from './reference-intervals.repository';
+import { writeTransaction } from '../../db/write-transaction';
 
 const AUDIT_ENTITY = 'reference-interval';
 
@@ -246,7 +247,7 @@ export async function createDraft(sequelize: Sequelize, actor: User, body: Creat
       fields: { mean: 'Must be above 0' },
     });
   }
-  return sequelize.transaction((transaction) =>
+  return writeTransaction(sequelize, (transaction) =>
     insertDraft(
       actor,
       {
@@ -272,7 +273,7 @@ export async function approveInterval(
   revision: number,
   now: Date = new Date(),
 ): Promise<StoredInterval> {
-  return sequelize.transaction(async (transaction) => {
+  return writeTransaction(sequelize, async (transaction) => {
     const current = await repo.findIntervalById(id, transaction);
     if (!current) throw notFound('Reference interval', id);
     if (current.status !== 'draft') {
@@ -340,7 +341,7 @@ export async function retireInterval(
   body: RetireBody,
   now: Date = new Date(),
 ): Promise<StoredInterval> {
-  return sequelize.transaction(async (transaction) => {
+  return writeTransaction(sequelize, async (transaction) => {
     const current = await repo.findIntervalById(id, transaction);
     if (!current) throw notFound('Reference interval', id);
     if (current.status === 'retired') throw invalidState(`Version ${current.version} is already retired`);

@@ -15,7 +15,7 @@ import { AppError, conflict, forbidden, invalidState, notFound, staleVersion } f
 import { recordAudit } from '../audit/audit.service';
 import { transitionCase } from '../cases/case-state';
 import { loadCaseDetail } from '../cases/cases.repository';
-import { writeTransaction } from '../cases/write-transaction';
+import { writeTransaction } from '../../db/write-transaction';
 import { getLabProfile } from '../lab-profile/lab-profile.service';
 import { sendReportNotice, type NoticeDeps } from '../mail/notices.service';
 import { getCaseResults } from '../results/results.service';

@@ -22,7 +22,7 @@ import { invalidState, notFound } from '../../lib/errors';
 import { findDefinitionById } from '../assay-definitions/assay-definitions.service';
 import { transitionCase } from '../cases/case-state';
 import { findCaseById, type CaseRecord } from '../cases/cases.repository';
-import { writeTransaction } from '../cases/write-transaction';
+import { writeTransaction } from '../../db/write-transaction';
 import { listMeasurementsOfCase } from '../measurements/measurements.repository';
 import { findPatientById } from '../patients/patients.repository';
 import { findApplicableInterval, toComparisonInterval } from '../reference-intervals/reference-intervals.service';

@@ -6,7 +6,7 @@ import { invalidState, notFound, staleVersion } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
 import { transitionCase } from '../cases/case-state';
 import { findCaseById } from '../cases/cases.repository';
-import { writeTransaction } from '../cases/write-transaction';
+import { writeTransaction } from '../../db/write-transaction';
 import { loadReportMaterial, proposalFor } from '../reports/report-signing.service';
 import * as reportsRepo from '../reports/reports.repository';
 import { listReportsOfCase } from '../reports/reports.service';

@@ -13,7 +13,7 @@ import { recordAudit } from '../audit/audit.service';
 import { findCaseById, setSpecimenColumns } from '../cases/cases.repository';
 import { parseLabDateTime } from '../cases/lab-time';
 import { labTimeZone } from '../cases/lab-zone';
-import { writeTransaction } from '../cases/write-transaction';
+import { writeTransaction } from '../../db/write-transaction';
 import { listMeasurementsOfSpecimen } from '../measurements/measurements.repository';
 import * as repo from './specimens.repository';
 

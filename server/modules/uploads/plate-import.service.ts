@@ -19,7 +19,7 @@ import { importPlateFile } from '../../domain/plate-import/apply-map';
 import { badInput, notFound } from '../../lib/errors';
 import { getCurrentDefinition } from '../assay-definitions/assay-definitions.service';
 import { recordAudit } from '../audit/audit.service';
-import { writeTransaction } from '../cases/write-transaction';
+import { writeTransaction } from '../../db/write-transaction';
 import { auditSummary, computeFromInputs } from '../measurements/compute';
 import * as measurementsRepo from '../measurements/measurements.repository';
 import { alreadySaved, loadEditableCase, startAssayIfReceived } from '../measurements/measurements.service';

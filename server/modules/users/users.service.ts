@@ -4,6 +4,7 @@ import { hashPassword } from '../../auth/password';
 import { AppError, notFound, staleVersion } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
 import * as repo from './users.repository';
+import { writeTransaction } from '../../db/write-transaction';
 
 export async function listAccounts(): Promise<UserAccount[]> {
   return (await repo.listUsers()).map(repo.withoutSecrets);
@@ -20,7 +21,7 @@ export async function createAccount(sequelize: Sequelize, actor: User, input: Cr
     });
   }
   const passwordHash = await hashPassword(input.password);
-  return sequelize.transaction(async (transaction) => {
+  return writeTransaction(sequelize, async (transaction) => {
     const created = await repo.insertUser(
       { email: input.email, name: input.name, title: input.title ?? null, role: input.role, passwordHash },
       transaction,
@@ -37,7 +38,7 @@ export async function updateAccount(
   id: number,
   input: UpdateUserInput,
 ): Promise<UserAccount> {
-  return sequelize.transaction(async (transaction) => {
+  return writeTransaction(sequelize, async (transaction) => {
     const current = await repo.findUserById(id, transaction);
     if (!current) throw notFound('User', id);
     if (actor.id === id && (input.active === false || (input.role && input.role !== current.role))) {
@@ -72,7 +73,7 @@ export async function resetPassword(
   input: ResetPasswordInput,
 ): Promise<void> {
   const passwordHash = await hashPassword(input.password);
-  await sequelize.transaction(async (transaction) => {
+  await writeTransaction(sequelize, async (transaction) => {
     const current = await repo.findUserById(id, transaction);
     if (!current) throw notFound('User', id);
     await repo.updateUserIfVersion(id, current.version, { passwordHash, failedLogins: 0, lockedUntil: null }, transaction);

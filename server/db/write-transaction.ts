@@ -1,7 +1,8 @@
 import { Transaction, type Sequelize } from 'sequelize';
 
 /*
- * Registry writes run one at a time per database handle, each in an IMMEDIATE transaction.
+ * Every service write runs through here: one at a time per database handle, each in an IMMEDIATE transaction.
+ * Never call it from inside another write transaction (it would wait for itself): pass the open transaction on.
  * - SQLite allows one writer. BEGIN IMMEDIATE takes the write lock up front, so two writers queue on the
  *   busy timeout instead of failing when a read lock cannot be upgraded (a DEFERRED transaction's failure mode).
  * - Sequelize shares a single connection for an in-memory database, where a second BEGIN on the same connection
