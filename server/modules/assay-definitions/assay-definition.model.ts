@@ -6,6 +6,7 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import { idColumn } from '../../db/columns';
 
 /** One version of one assay definition. Rows are never updated: a change is a new version. */
 export class AssayDefinitionModel extends Model<InferAttributes<AssayDefinitionModel>, InferCreationAttributes<AssayDefinitionModel>> {
@@ -21,7 +22,7 @@ export class AssayDefinitionModel extends Model<InferAttributes<AssayDefinitionM
 export function initAssayDefinitionModel(sequelize: Sequelize): void {
   AssayDefinitionModel.init(
     {
-      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      id: idColumn,
       code: { type: DataTypes.STRING(10), allowNull: false },
       version: { type: DataTypes.INTEGER, allowNull: false },
       data: { type: DataTypes.TEXT, allowNull: false },

@@ -6,6 +6,7 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import { idColumn } from '../../db/columns';
 
 export class AuditEventModel extends Model<InferAttributes<AuditEventModel>, InferCreationAttributes<AuditEventModel>> {
   declare id: CreationOptional<number>;
@@ -24,7 +25,7 @@ export class AuditEventModel extends Model<InferAttributes<AuditEventModel>, Inf
 export function initAuditEventModel(sequelize: Sequelize): void {
   AuditEventModel.init(
     {
-      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      id: idColumn,
       at: { type: DataTypes.DATE, allowNull: false },
       actorId: { type: DataTypes.INTEGER, allowNull: true },
       actorEmail: { type: DataTypes.STRING(254), allowNull: true },

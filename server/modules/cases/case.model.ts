@@ -6,6 +6,7 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import { editVersionColumn, idColumn, timestampColumns } from '../../db/columns';
 
 export class CaseModel extends Model<InferAttributes<CaseModel>, InferCreationAttributes<CaseModel>> {
   declare id: CreationOptional<number>;
@@ -37,7 +38,7 @@ export class AccessionCounterModel extends Model<InferAttributes<AccessionCounte
 export function initCaseModels(sequelize: Sequelize): void {
   CaseModel.init(
     {
-      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      id: idColumn,
       accession: { type: DataTypes.STRING(20), allowNull: false, unique: true },
       patientId: { type: DataTypes.INTEGER, allowNull: false },
       referringClinicianId: { type: DataTypes.INTEGER, allowNull: false },
@@ -53,9 +54,8 @@ export function initCaseModels(sequelize: Sequelize): void {
       patternCode: { type: DataTypes.STRING(40), allowNull: true },
       resultsSnapshot: { type: DataTypes.TEXT, allowNull: true },
       createdById: { type: DataTypes.INTEGER, allowNull: true },
-      version: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
-      createdAt: DataTypes.DATE,
-      updatedAt: DataTypes.DATE,
+      version: editVersionColumn,
+      ...timestampColumns,
     },
     { sequelize, tableName: 'cases', modelName: 'Case' },
   );

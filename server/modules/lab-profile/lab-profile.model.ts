@@ -6,6 +6,7 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import { editVersionColumn, timestampColumns } from '../../db/columns';
 
 /** The single row (id 1) describing the performing laboratory, as reports print it. */
 export class LabProfileModel extends Model<InferAttributes<LabProfileModel>, InferCreationAttributes<LabProfileModel>> {
@@ -30,9 +31,8 @@ export function initLabProfileModel(sequelize: Sequelize): void {
       accreditationNumber: { type: DataTypes.STRING(80), allowNull: false },
       phone: { type: DataTypes.STRING(40), allowNull: true },
       timeZone: { type: DataTypes.STRING(60), allowNull: false },
-      version: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
-      createdAt: DataTypes.DATE,
-      updatedAt: DataTypes.DATE,
+      version: editVersionColumn,
+      ...timestampColumns,
     },
     { sequelize, tableName: 'lab_profiles', modelName: 'LabProfile' },
   );

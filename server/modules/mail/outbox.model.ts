@@ -6,6 +6,7 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import { idColumn } from '../../db/columns';
 
 /** A message the local SMTP stand-in received (development and tests only). */
 export class OutboxMessageModel extends Model<InferAttributes<OutboxMessageModel>, InferCreationAttributes<OutboxMessageModel>> {
@@ -36,7 +37,7 @@ export class MailDeliveryModel extends Model<InferAttributes<MailDeliveryModel>,
 export function initMailModels(sequelize: Sequelize): void {
   OutboxMessageModel.init(
     {
-      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      id: idColumn,
       messageId: { type: DataTypes.STRING(255), allowNull: true },
       fromAddress: { type: DataTypes.STRING(320), allowNull: true },
       toAddress: { type: DataTypes.TEXT, allowNull: false },
@@ -48,7 +49,7 @@ export function initMailModels(sequelize: Sequelize): void {
   );
   MailDeliveryModel.init(
     {
-      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      id: idColumn,
       kind: { type: DataTypes.STRING(30), allowNull: false },
       reportId: { type: DataTypes.INTEGER, allowNull: true },
       caseId: { type: DataTypes.INTEGER, allowNull: true },

@@ -6,6 +6,7 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import { editVersionColumn, idColumn, timestampColumns } from '../../db/columns';
 
 /** One assay replicate on one specimen: its inputs as entered and the engine's result, with the definition version. */
 export class MeasurementModel extends Model<InferAttributes<MeasurementModel>, InferCreationAttributes<MeasurementModel>> {
@@ -31,7 +32,7 @@ export class MeasurementModel extends Model<InferAttributes<MeasurementModel>, I
 export function initMeasurementModel(sequelize: Sequelize): void {
   MeasurementModel.init(
     {
-      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      id: idColumn,
       caseId: { type: DataTypes.INTEGER, allowNull: false },
       specimenId: { type: DataTypes.INTEGER, allowNull: false },
       assay: { type: DataTypes.STRING(10), allowNull: false },
@@ -45,9 +46,8 @@ export function initMeasurementModel(sequelize: Sequelize): void {
       flags: { type: DataTypes.TEXT, allowNull: false, defaultValue: '[]' },
       uploadId: { type: DataTypes.INTEGER, allowNull: true },
       createdById: { type: DataTypes.INTEGER, allowNull: true },
-      version: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
-      createdAt: DataTypes.DATE,
-      updatedAt: DataTypes.DATE,
+      version: editVersionColumn,
+      ...timestampColumns,
     },
     { sequelize, tableName: 'measurements', modelName: 'Measurement' },
   );

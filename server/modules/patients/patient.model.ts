@@ -6,6 +6,7 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import { editVersionColumn, idColumn, timestampColumns } from '../../db/columns';
 
 export class PatientModel extends Model<InferAttributes<PatientModel>, InferCreationAttributes<PatientModel>> {
   declare id: CreationOptional<number>;
@@ -23,16 +24,15 @@ export class PatientModel extends Model<InferAttributes<PatientModel>, InferCrea
 export function initPatientModel(sequelize: Sequelize): void {
   PatientModel.init(
     {
-      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      id: idColumn,
       labPatientId: { type: DataTypes.STRING(40), allowNull: false, unique: true },
       familyName: { type: DataTypes.STRING(80), allowNull: false },
       givenName: { type: DataTypes.STRING(80), allowNull: false },
       dateOfBirth: { type: DataTypes.STRING(10), allowNull: false },
       sex: { type: DataTypes.STRING(10), allowNull: false },
       nameKey: { type: DataTypes.STRING(170), allowNull: false },
-      version: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
-      createdAt: DataTypes.DATE,
-      updatedAt: DataTypes.DATE,
+      version: editVersionColumn,
+      ...timestampColumns,
     },
     { sequelize, tableName: 'patients', modelName: 'Patient' },
   );

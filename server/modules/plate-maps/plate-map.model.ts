@@ -6,6 +6,7 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import { editVersionColumn, idColumn, timestampColumns } from '../../db/columns';
 
 /** A reusable plate layout: which well holds which specimen, assay, trace role and replicate. */
 export class PlateMapModel extends Model<InferAttributes<PlateMapModel>, InferCreationAttributes<PlateMapModel>> {
@@ -22,14 +23,13 @@ export class PlateMapModel extends Model<InferAttributes<PlateMapModel>, InferCr
 export function initPlateMapModel(sequelize: Sequelize): void {
   PlateMapModel.init(
     {
-      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      id: idColumn,
       name: { type: DataTypes.STRING(120), allowNull: false, unique: true },
       wells: { type: DataTypes.TEXT, allowNull: false },
       description: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
       createdById: { type: DataTypes.INTEGER, allowNull: true },
-      version: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
-      createdAt: DataTypes.DATE,
-      updatedAt: DataTypes.DATE,
+      version: editVersionColumn,
+      ...timestampColumns,
     },
     { sequelize, tableName: 'plate_maps', modelName: 'PlateMap' },
   );

@@ -9,6 +9,7 @@ import {
 import type { ValueBasis } from '@/schemas/assay';
 import type { AssayCode, Measure, SpecimenType } from '@/schemas/common';
 import type { IntervalMethod, ReferenceIntervalStatus } from '@/schemas/reference-interval';
+import { idColumn, timestampColumns } from '../../db/columns';
 
 /** One version of one reference interval key; see migration 0004 for the meaning of each column. */
 export class ReferenceIntervalModel extends Model<
@@ -53,7 +54,7 @@ export class ReferenceIntervalModel extends Model<
 export function initReferenceIntervalModel(sequelize: Sequelize): void {
   ReferenceIntervalModel.init(
     {
-      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      id: idColumn,
       intervalKey: { type: DataTypes.STRING(120), allowNull: false },
       version: { type: DataTypes.INTEGER, allowNull: false },
       status: { type: DataTypes.STRING(10), allowNull: false },
@@ -84,8 +85,7 @@ export function initReferenceIntervalModel(sequelize: Sequelize): void {
       retiredAt: { type: DataTypes.DATE, allowNull: true },
       retireReason: { type: DataTypes.TEXT, allowNull: true },
       revision: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
-      createdAt: DataTypes.DATE,
-      updatedAt: DataTypes.DATE,
+      ...timestampColumns,
     },
     { sequelize, tableName: 'reference_intervals', modelName: 'ReferenceInterval' },
   );

@@ -6,6 +6,7 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import { editVersionColumn, idColumn, timestampColumns } from '../../db/columns';
 
 /** One signed version of a case's report, with the PDF rendered at signing. */
 export class ReportModel extends Model<InferAttributes<ReportModel>, InferCreationAttributes<ReportModel>> {
@@ -50,7 +51,7 @@ export class InterpretationDraftModel extends Model<
 export function initReportModels(sequelize: Sequelize): void {
   ReportModel.init(
     {
-      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      id: idColumn,
       caseId: { type: DataTypes.INTEGER, allowNull: false },
       version: { type: DataTypes.INTEGER, allowNull: false },
       kind: { type: DataTypes.STRING(12), allowNull: false },
@@ -81,9 +82,8 @@ export function initReportModels(sequelize: Sequelize): void {
       caseId: { type: DataTypes.INTEGER, primaryKey: true },
       text: { type: DataTypes.TEXT, allowNull: false },
       updatedById: { type: DataTypes.INTEGER, allowNull: true },
-      version: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
-      createdAt: DataTypes.DATE,
-      updatedAt: DataTypes.DATE,
+      version: editVersionColumn,
+      ...timestampColumns,
     },
     { sequelize, tableName: 'interpretation_drafts', modelName: 'InterpretationDraft' },
   );

@@ -6,6 +6,7 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import { editVersionColumn, idColumn, timestampColumns } from '../../db/columns';
 
 export class SpecimenModel extends Model<InferAttributes<SpecimenModel>, InferCreationAttributes<SpecimenModel>> {
   declare id: CreationOptional<number>;
@@ -38,7 +39,7 @@ export class RejectionReasonModel extends Model<InferAttributes<RejectionReasonM
 export function initSpecimenModels(sequelize: Sequelize): void {
   SpecimenModel.init(
     {
-      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      id: idColumn,
       caseId: { type: DataTypes.INTEGER, allowNull: false },
       label: { type: DataTypes.STRING(20), allowNull: false },
       type: { type: DataTypes.STRING(30), allowNull: false },
@@ -52,19 +53,17 @@ export function initSpecimenModels(sequelize: Sequelize): void {
       proteinMgPerMl: { type: DataTypes.FLOAT, allowNull: true },
       proteinSource: { type: DataTypes.STRING(200), allowNull: true },
       proteinDetails: { type: DataTypes.TEXT, allowNull: true },
-      version: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
-      createdAt: DataTypes.DATE,
-      updatedAt: DataTypes.DATE,
+      version: editVersionColumn,
+      ...timestampColumns,
     },
     { sequelize, tableName: 'specimens', modelName: 'Specimen' },
   );
   RejectionReasonModel.init(
     {
-      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      id: idColumn,
       text: { type: DataTypes.STRING(200), allowNull: false, unique: true },
       active: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
-      createdAt: DataTypes.DATE,
-      updatedAt: DataTypes.DATE,
+      ...timestampColumns,
     },
     { sequelize, tableName: 'rejection_reasons', modelName: 'RejectionReason' },
   );

@@ -6,6 +6,7 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import { idColumn } from '../../db/columns';
 
 /** An uploaded file, kept byte for byte with its SHA-256, downloadable from its case. */
 export class UploadModel extends Model<InferAttributes<UploadModel>, InferCreationAttributes<UploadModel>> {
@@ -24,7 +25,7 @@ export class UploadModel extends Model<InferAttributes<UploadModel>, InferCreati
 export function initUploadModel(sequelize: Sequelize): void {
   UploadModel.init(
     {
-      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      id: idColumn,
       caseId: { type: DataTypes.INTEGER, allowNull: true },
       kind: { type: DataTypes.STRING(20), allowNull: false },
       filename: { type: DataTypes.STRING(255), allowNull: false },

@@ -7,6 +7,7 @@ import {
   type Sequelize,
 } from 'sequelize';
 import type { Role } from '@/schemas/common';
+import { editVersionColumn, idColumn, timestampColumns } from '../../db/columns';
 
 export class UserModel extends Model<InferAttributes<UserModel>, InferCreationAttributes<UserModel>> {
   declare id: CreationOptional<number>;
@@ -26,7 +27,7 @@ export class UserModel extends Model<InferAttributes<UserModel>, InferCreationAt
 export function initUserModel(sequelize: Sequelize): void {
   UserModel.init(
     {
-      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      id: idColumn,
       email: { type: DataTypes.STRING(254), allowNull: false, unique: true },
       name: { type: DataTypes.STRING(120), allowNull: false },
       title: { type: DataTypes.STRING(120), allowNull: true },
@@ -35,9 +36,8 @@ export function initUserModel(sequelize: Sequelize): void {
       active: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
       failedLogins: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
       lockedUntil: { type: DataTypes.DATE, allowNull: true },
-      version: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
-      createdAt: DataTypes.DATE,
-      updatedAt: DataTypes.DATE,
+      version: editVersionColumn,
+      ...timestampColumns,
     },
     { sequelize, tableName: 'users', modelName: 'User' },
   );
