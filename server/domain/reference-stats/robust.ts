@@ -11,13 +11,14 @@ import { medianSorted, sortAscending } from './quantiles';
 export const ROBUST_MIN_N = 20;
 
 /**
- * Tuning constants as recalled [from memory] from the Horn 1998 / EP28-A3c description: c = 3.7 for the
- * biweight location (and for the standard error of that location), c = 205.6 for the spread, which
- * makes the spread nearly the SD about the median. Lab-configurable through the options.
+ * Tuning constants of CLSI EP28-A3c's robust procedure (after Horn, Pesce & Copeland 1998): c = 3.7 for
+ * the biweight location and for the standard error of that location, c = 205.6 for the spread, which
+ * makes the spread nearly the SD about the median. [confirmed against a public implementation that
+ * reproduces the EP28-A3c appendix example, see robustInterval.] Lab-configurable through the options.
  */
 export const ROBUST_DEFAULTS = { cLocation: 3.7, cSpread: 205.6, confidence: 0.95 } as const;
 
-/** Normal-consistency factor for the MAD: MAD / 0.6745 estimates σ for Gaussian data [from memory]. */
+/** Normal-consistency factor for the MAD: MAD / 0.6745 estimates σ for Gaussian data [confirmed: EP28-A3c]. */
 const MAD_TO_SIGMA = 0.6745;
 
 export interface RobustOptions {
@@ -64,28 +65,55 @@ export function biweightLocation(
   return t;
 }
 
-/**
- * Biweight scale about `centre` with tuning constant c (Mosteller–Tukey form):
- * s = sqrt( n Σ (x − M)² (1 − u²)⁴ / [ D · max(1, D − 1) ] ), D = Σ (1 − u²)(1 − 5u²), over |u| < 1,
- * u = (x − M)/(c · MAD/0.6745), M the centre.
- */
-export function biweightScale(values: readonly number[], c: number, centre?: number): number {
-  const sorted = sortAscending(values);
-  const median = medianSorted(sorted);
-  const m = centre ?? median;
-  const s = scaledMad(sorted, median);
-  if (s === 0) return 0;
-  let numerator = 0;
+interface BiweightSums {
+  /** Σ (x − M)² (1 − u²)⁴ over |u| < 1. */
+  weightedSquares: number;
+  /** D = Σ (1 − u²)(1 − 5u²) over |u| < 1. */
+  d: number;
+}
+
+/** The two sums the biweight scale is built from, with u = (x − centre) / unit. */
+function biweightSums(values: readonly number[], centre: number, unit: number): BiweightSums {
+  let weightedSquares = 0;
   let d = 0;
-  for (const x of sorted) {
-    const u = (x - m) / (c * s);
+  for (const x of values) {
+    const u = (x - centre) / unit;
     if (Math.abs(u) < 1) {
       const u2 = u * u;
-      numerator += (x - m) ** 2 * (1 - u2) ** 4;
+      weightedSquares += (x - centre) ** 2 * (1 - u2) ** 4;
       d += (1 - u2) * (1 - 5 * u2);
     }
   }
-  return Math.sqrt((sorted.length * numerator) / (d * Math.max(1, d - 1)));
+  return { weightedSquares, d };
+}
+
+/** √( Σ (x − M)² (1 − u²)⁴ / [ D · max(1, D − 1) ] ): the biweight scale without its factor √n. */
+function biweightRoot({ weightedSquares, d }: BiweightSums): number {
+  return Math.sqrt(weightedSquares / (d * Math.max(1, d - 1)));
+}
+
+/**
+ * Biweight scale about the median with tuning constant c (Mosteller–Tukey form, as in EP28-A3c):
+ * s_bi = sqrt( n Σ (x − M)² (1 − u²)⁴ / [ D · max(1, D − 1) ] ), D = Σ (1 − u²)(1 − 5u²), over |u| < 1,
+ * u = (x − M)/(c · MAD/0.6745), M the median.
+ */
+export function biweightScale(values: readonly number[], c: number): number {
+  const sorted = sortAscending(values);
+  const median = medianSorted(sorted);
+  const s = scaledMad(sorted, median);
+  if (s === 0) return 0;
+  return Math.sqrt(sorted.length) * biweightRoot(biweightSums(sorted, median, c * s));
+}
+
+/**
+ * Standard error of the biweight location T_bi, as EP28-A3c computes it: the same biweight form
+ * without √n, now about T_bi and scaled by the biweight scale itself,
+ * u = (x − T_bi)/(c · s_bi(c)), s_bi(c) the biweight scale about the median with the same c.
+ */
+export function biweightLocationSe(values: readonly number[], c: number, location: number): number {
+  const scale = biweightScale(values, c);
+  if (scale === 0) return 0;
+  return biweightRoot(biweightSums(values, location, c * scale));
 }
 
 export interface RobustInterval {
@@ -99,11 +127,13 @@ export interface RobustInterval {
 }
 
 /**
- * Robust reference interval after Horn, Pesce & Copeland, Clin Chem 1998 [confirmed as the source;
- * formulation from memory]:
- *   limits = T_bi ± t(0.975, n − 1) · sqrt( S_bi(205.6)² + S_bi(3.7)² / n )
- * with T_bi the biweight location (c = 3.7) and both scales taken about the median. The second term
- * is the variance of the location estimate, so this is a prediction interval for a new value.
+ * Robust reference interval of CLSI EP28-A3c (after Horn, Pesce & Copeland, Clin Chem 1998;44:622–631):
+ *   limits = T_bi ± t(0.975, n − 1) · sqrt( s_bi(205.6)² + SE(T_bi)² )
+ * with T_bi the biweight location (c = 3.7), s_bi(205.6) the spread about the median and SE(T_bi) from
+ * biweightLocationSe (c = 3.7, u about T_bi scaled by s_bi(3.7)). The second term is the variance of
+ * the location estimate, so this is a prediction interval for a new value.
+ * [confirmed] On the 20 calcium values of the EP28-A3c appendix this gives 9.049545–10.199396, the figures
+ * the public R package mcradds (kaigu1990/mcradds, tests/testthat/test-referenceInterval.R) reproduces.
  * It assumes a symmetric distribution: transform skewed data first.
  */
 export function robustInterval(values: readonly number[], options: RobustOptions = {}): RobustInterval {
@@ -126,7 +156,7 @@ export function robustInterval(values: readonly number[], options: RobustOptions
   }
   const location = biweightLocation(sorted, cLocation);
   const spread = biweightScale(sorted, cSpread);
-  const locationSe = biweightScale(sorted, cLocation) / Math.sqrt(n);
+  const locationSe = biweightLocationSe(sorted, cLocation, location);
   const t = studentTQuantile(1 - (1 - confidence) / 2, n - 1);
   const halfWidth = t * Math.sqrt(spread ** 2 + locationSe ** 2);
   return { n, lower: location - halfWidth, upper: location + halfWidth, location, spread, locationSe, t };

@@ -8,29 +8,20 @@ import {
   robustInterval,
 } from '../../../../server/domain/reference-stats/robust';
 
-// The robust method follows Horn PS, Pesce AJ, Copeland BE, Clin Chem 1998;44:622–631 [confirmed as the
-// source]; the tuning constants 3.7 and 205.6, the MAD/0.6745 start and the limit formula are
-// [from memory], as is everything these tests assume about them.
+// The robust method is CLSI EP28-A3c's (after Horn PS, Pesce AJ, Copeland BE, Clin Chem 1998;44:622–631).
+// Expected figures come from the EP28-A3c appendix example as reproduced by the public R package mcradds
+// (kaigu1990/mcradds, tests/testthat/test-referenceInterval.R) [confirmed]; the rest are properties that
+// follow from the definitions [derived], checked with simple-statistics.
 
 /** Symmetric, Gaussian-shaped values: 100 + 15 · Φ⁻¹((i − 0.5)/n), by simple-statistics' probit. */
 function gaussianScores(n: number, centre = 100, sd = 15): number[] {
   return Array.from({ length: n }, (_, i) => centre + sd * ss.probit((i + 0.5) / n));
 }
 
-/** Independent biweight location: fixed 200 reweighting rounds from the median, simple-statistics helpers. */
-function directBiweightLocation(values: number[], c: number): number {
-  const median = ss.median(values);
-  const s = ss.medianAbsoluteDeviation(values) / 0.6745;
-  let t = median;
-  for (let round = 0; round < 200; round++) {
-    const weights = values.map((x) => {
-      const u = (x - t) / (c * s);
-      return Math.abs(u) < 1 ? (1 - u * u) ** 2 : 0;
-    });
-    t = ss.sum(values.map((x, i) => x * (weights[i] ?? 0))) / ss.sum(weights);
-  }
-  return t;
-}
+/** CLSI EP28-A3c appendix example: 20 serum calcium values (mg/dL). */
+const ep28Calcium = [
+  8.9, 9.2, 9.4, 9.4, 9.5, 9.5, 9.5, 9.6, 9.6, 9.6, 9.6, 9.7, 9.7, 9.7, 9.7, 9.7, 9.8, 9.9, 9.9, 10.2,
+];
 
 // Invented, right-skewed and contaminated control values (no real subjects).
 const skewed = [
@@ -39,8 +30,14 @@ const skewed = [
 ];
 
 describe('biweightLocation', () => {
-  it('matches a direct, independently written biweight computation on skewed data [from memory: c = 3.7]', () => {
-    expect(biweightLocation(skewed, 3.7)).toBeCloseTo(directBiweightLocation(skewed, 3.7), 9);
+  it('is equivariant: shifting and scaling the values shifts and scales the location [derived]', () => {
+    const transformed = skewed.map((x) => 2.5 * x - 40);
+    expect(biweightLocation(transformed, 3.7)).toBeCloseTo(2.5 * biweightLocation(skewed, 3.7) - 40, 9);
+  });
+
+  it('ignores a value beyond c scaled MADs entirely: moving it further changes nothing [derived: zero weight]', () => {
+    const further = skewed.map((x) => (x === 72 ? 720 : x));
+    expect(biweightLocation(further, 3.7)).toBeCloseTo(biweightLocation(skewed, 3.7), 12);
   });
 
   it('when the data are symmetric, then it equals the sample mean (simple-statistics mean)', () => {
@@ -69,31 +66,20 @@ describe('biweightScale', () => {
 });
 
 describe('robustInterval', () => {
-  it('computes T ± t(0.975, n − 1)·√(S(205.6)² + S(3.7)²/n) as written out directly here [from memory: Horn 1998]', () => {
-    const n = skewed.length;
-    const median = ss.median(skewed);
-    const s = ss.medianAbsoluteDeviation(skewed) / 0.6745;
-    const scale = (c: number) => {
-      let num = 0;
-      let d = 0;
-      for (const x of skewed) {
-        const u = (x - median) / (c * s);
-        if (Math.abs(u) >= 1) continue;
-        num += (x - median) ** 2 * (1 - u * u) ** 4;
-        d += (1 - u * u) * (1 - 5 * u * u);
-      }
-      return Math.sqrt((n * num) / (d * Math.max(1, d - 1)));
-    };
-    const location = directBiweightLocation(skewed, 3.7);
+  it('on the EP28-A3c appendix calcium example gives 9.049545–10.199396 [confirmed: mcradds reproduction of the appendix]', () => {
+    const r = robustInterval(ep28Calcium);
+    expect(Math.abs(r.lower - 9.049545)).toBeLessThan(1e-5);
+    expect(Math.abs(r.upper - 10.199396)).toBeLessThan(1e-5);
+    // t(0.975, 19) = 2.093 [confirmed: standard Student t table].
+    expect(r.t).toBeCloseTo(2.093, 3);
+    expect(r.n).toBe(20);
+  });
 
-    const r = robustInterval(skewed);
-    // t(0.975, 21) = 2.080 [from memory: standard Student t table]; the multiplier is checked here and
-    // then reused so the limits can be compared to full precision.
-    expect(r.t).toBeCloseTo(2.08, 3);
-    const half = r.t * Math.sqrt(scale(205.6) ** 2 + scale(3.7) ** 2 / n);
-    expect(r.location).toBeCloseTo(location, 8);
-    expect(r.lower).toBeCloseTo(location - half, 8);
-    expect(r.upper).toBeCloseTo(location + half, 8);
+  it('on the appendix example the limits are symmetric about the biweight location [derived]', () => {
+    const r = robustInterval(ep28Calcium);
+    expect((r.lower + r.upper) / 2).toBeCloseTo(r.location, 12);
+    expect(r.location).toBeGreaterThan(ss.min(ep28Calcium));
+    expect(r.location).toBeLessThan(ss.max(ep28Calcium));
   });
 
   it('for Gaussian-shaped data comes close to the parametric prediction interval x̄ ± t·s·√(1 + 1/n) (simple-statistics)', () => {
