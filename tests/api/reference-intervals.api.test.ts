@@ -104,6 +104,18 @@ describe('POST /api/reference-intervals/derive (contract)', () => {
     expect(res.body.warnings.join(' ')).toMatch(/below the 120/);
   });
 
+  it('when the robust method gets the EP28-A3c appendix calcium values, then the limits match the published 9.049545–10.199396 to 1e-4', async () => {
+    const values = [8.9, 9.2, 9.4, 9.4, 9.5, 9.5, 9.5, 9.6, 9.6, 9.6, 9.6, 9.7, 9.7, 9.7, 9.7, 9.7, 9.8, 9.9, 9.9, 10.2];
+    const res = await director.post('/api/reference-intervals/derive').send({ method: 'robust', outliers: 'none', values });
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    const body = deriveResultSchema.parse(res.body);
+    // CLSI EP28-A3c appendix example as reproduced by the R package mcradds
+    // (kaigu1990/mcradds, tests/testthat/test-referenceInterval.R) [confirmed].
+    expect(body.n).toBe(20);
+    expect(Math.abs(body.lower - 9.049545)).toBeLessThan(1e-4);
+    expect(Math.abs(body.upper - 10.199396)).toBeLessThan(1e-4);
+  });
+
   it('when Tukey screening meets a far value, then it is listed as excluded and n counts what is kept', async () => {
     const values = [...range(1, 30).map((v) => 100 + v), 900];
     const res = await director.post('/api/reference-intervals/derive').send({ method: 'mean2sd', outliers: 'tukey', values });
