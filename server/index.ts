@@ -1,10 +1,9 @@
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { createApp } from './app';
-import { loadConfig } from './config';
 import { initModels } from './db/models';
 import { migrate } from './db/migrate';
-import { seedDemoIfEmpty } from './db/seed/demo';
+import { loadConfigOrExit, prepareAccounts, warnAboutDeployment } from './ops/start-up';
 import { ensureDefaultDefinitions } from './modules/assay-definitions/assay-definitions.service';
 import { openDatabase } from './db/sequelize';
 import { logError, logInfo } from './lib/log';
@@ -13,7 +12,8 @@ import { startMail } from './modules/mail/mail-setup';
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 
 async function main(): Promise<void> {
-  const config = loadConfig();
+  const config = loadConfigOrExit();
+  warnAboutDeployment(config);
   const sequelize = await openDatabase(config.databasePath);
   initModels(sequelize);
   const applied = await migrate(sequelize);
@@ -21,7 +21,7 @@ async function main(): Promise<void> {
   await ensureDefaultDefinitions(sequelize);
   const mail = await startMail(sequelize, config);
   const notices = { sequelize, mailer: mail.mailer, publicOrigin: config.publicOrigin };
-  if (await seedDemoIfEmpty(sequelize, config.demoPassword, notices)) logInfo('demo data seeded (invented, fictitious)');
+  await prepareAccounts(sequelize, config, notices);
 
   const app = createApp({ sequelize, config, clientDir: path.join(root, 'dist', 'client'), expireSessions: true, mailer: mail.mailer });
   const server = app.listen(config.port, () => {
