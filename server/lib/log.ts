@@ -11,11 +11,6 @@ export function logWarn(message: string, extra: Record<string, unknown> = {}): v
   console.warn(JSON.stringify({ level: 'warn', at: new Date().toISOString(), message, ...extra }));
 }
 
-export function logWarning(message: string, extra: Record<string, unknown> = {}): void {
-  if (quiet()) return;
-  console.warn(JSON.stringify({ level: 'warn', at: new Date().toISOString(), message, ...extra }));
-}
-
 export function logError(err: unknown, context: string): void {
   const detail = err instanceof Error ? { name: err.name, message: err.message, stack: err.stack } : { value: String(err) };
   console.error(JSON.stringify({ level: 'error', at: new Date().toISOString(), context, ...detail }));

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { specimenTypeSchema } from './common';
+import { birthDateSchema, calendarDateSchema, dateTimeSchema, plainText, specimenTypeSchema } from './common';
 
 /** The workflow states, trade terms kept as the brief names them. */
 export const caseStates = ['received', 'in_assay', 'awaiting_review', 'final', 'corrected', 'cancelled'] as const;
@@ -32,13 +32,6 @@ export const transportConditionLabels: Record<z.infer<typeof transportConditionS
   unknown: 'Not stated',
 };
 
-const isoDate = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use the date format YYYY-MM-DD');
-/** A date-time as the browser's datetime-local control gives it, or a full ISO string with zone. */
-const dateTime = z
-  .string()
-  .min(1, 'Date and time are required')
-  .refine((s) => !Number.isNaN(Date.parse(s)), 'Not a valid date and time');
-
 /* ---------------------------------------------------------------- patients */
 
 export const patientSchema = z.object({
@@ -60,9 +53,9 @@ export const createPatientInputSchema = z
       .min(1, 'Lab patient ID is required')
       .max(40, 'Use at most 40 characters')
       .regex(/^[A-Za-z0-9][A-Za-z0-9._-]*$/, 'Use letters, digits, dot, dash or underscore'),
-    familyName: z.string().trim().min(1, 'Family name is required').max(80),
-    givenName: z.string().trim().min(1, 'Given name is required').max(80),
-    dateOfBirth: isoDate.refine((s) => s <= new Date().toISOString().slice(0, 10), 'Date of birth cannot be in the future'),
+    familyName: z.string().trim().min(1, 'Family name is required').max(80).superRefine(plainText('Family name')),
+    givenName: z.string().trim().min(1, 'Given name is required').max(80).superRefine(plainText('Given name')),
+    dateOfBirth: birthDateSchema,
     sex: sexSchema,
   })
   .strict();
@@ -107,9 +100,9 @@ export type Specimen = z.infer<typeof specimenSchema>;
 /** The fields of a specimen as received; the input schemas below add their rules to this one shape. */
 export const specimenFieldsSchema = z.object({
   type: specimenTypeSchema,
-  source: z.string().trim().max(160, 'Use at most 160 characters'),
-  collectedAt: dateTime.nullable(),
-  receivedAt: dateTime,
+  source: z.string().trim().max(160, 'Use at most 160 characters').superRefine(plainText('Source')),
+  collectedAt: dateTimeSchema('Collection date and time').nullable(),
+  receivedAt: dateTimeSchema('Receipt date and time'),
   transportCondition: transportConditionSchema,
   wetWeightMg: z
     .number({ error: 'Give the wet weight in mg, or leave it empty' })
@@ -117,7 +110,7 @@ export const specimenFieldsSchema = z.object({
     .max(100000, 'Wet weight is at most 100 000 mg')
     .nullable(),
   accepted: z.boolean(),
-  rejectionReason: z.string().trim().max(200, 'Use at most 200 characters').nullable(),
+  rejectionReason: z.string().trim().max(200, 'Use at most 200 characters').superRefine(plainText('Rejection reason')).nullable(),
 });
 
 export const receiveSpecimenInputSchema = specimenFieldsSchema
@@ -154,7 +147,7 @@ export type UpdateSpecimenInput = z.infer<typeof updateSpecimenInputSchema>;
 export const setProteinInputSchema = z
   .object({
     proteinMgPerMl: z.number().positive('Protein must be above 0').max(1000),
-    proteinSource: z.string().trim().min(1).max(200),
+    proteinSource: z.string().trim().min(1).max(200).superRefine(plainText('Protein source')),
     version: z.number().int().min(0),
   })
   .strict();
@@ -163,7 +156,7 @@ export type SetProteinInput = z.infer<typeof setProteinInputSchema>;
 export const rejectionReasonSchema = z.object({ id: z.number().int(), text: z.string(), active: z.boolean() });
 export type RejectionReason = z.infer<typeof rejectionReasonSchema>;
 export const createRejectionReasonInputSchema = z
-  .object({ text: z.string().trim().min(3, 'Give a reason of at least 3 characters').max(200) })
+  .object({ text: z.string().trim().min(3, 'Give a reason of at least 3 characters').max(200).superRefine(plainText('Reason')) })
   .strict();
 export type CreateRejectionReasonInput = z.infer<typeof createRejectionReasonInputSchema>;
 
@@ -204,7 +197,12 @@ export const createCaseInputSchema = z
   .object({
     patientId: z.number({ error: 'Choose or register the patient' }).int().positive('Choose or register the patient'),
     referringClinicianId: z.number({ error: 'Choose the referring clinician' }).int().positive('Choose the referring clinician'),
-    clinicalIndication: z.string().trim().min(3, 'Describe the clinical indication').max(2000),
+    clinicalIndication: z
+      .string()
+      .trim()
+      .min(3, 'Describe the clinical indication')
+      .max(2000)
+      .superRefine(plainText('Clinical indication', true)),
     priority: prioritySchema,
   })
   .strict();
@@ -222,7 +220,10 @@ export const updateCaseInputSchema = createCaseInputSchema
 export type UpdateCaseInput = z.infer<typeof updateCaseInputSchema>;
 
 export const reasonInputSchema = z
-  .object({ reason: z.string().trim().min(3, 'Give a reason').max(1000), version: z.number().int().min(0) })
+  .object({
+    reason: z.string().trim().min(3, 'Give a reason').max(1000).superRefine(plainText('Reason', true)),
+    version: z.number().int().min(0),
+  })
   .strict();
 export type ReasonInput = z.infer<typeof reasonInputSchema>;
 
@@ -239,8 +240,8 @@ export const caseListQuerySchema = z
     state: caseStateSchema.optional(),
     specimenType: specimenTypeSchema.optional(),
     pattern: z.string().trim().max(40).optional(),
-    from: isoDate.optional(),
-    to: isoDate.optional(),
+    from: calendarDateSchema({ label: 'From date' }).optional(),
+    to: calendarDateSchema({ label: 'To date' }).optional(),
     sort: z.enum(caseSortFields).optional(),
     dir: z.enum(['asc', 'desc']).optional(),
   })

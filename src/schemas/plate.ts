@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { tracePointSchema, type TracePoint } from './assay';
-import { assayCodeSchema } from './common';
+import { assayCodeSchema, plainText } from './common';
 
 /*
  * Kinetic plate files and plate maps, shared by the upload screen and the server.
@@ -59,14 +59,6 @@ export const wellRoleLabels: Record<WellRole, string> = {
   blank: 'Blank (no sample)',
 };
 
-function hasNoControlCharacters(s: string): boolean {
-  for (let i = 0; i < s.length; i += 1) {
-    const c = s.charCodeAt(i);
-    if (c < 0x20 || c === 0x7f) return false;
-  }
-  return true;
-}
-
 export const plateMapEntrySchema = z.object({
   well: wellIdSchema,
   /** A short label the upload screen links to a specimen of the case, e.g. "S1". */
@@ -75,7 +67,7 @@ export const plateMapEntrySchema = z.object({
     .trim()
     .min(1, 'Specimen label is required')
     .max(40, 'Specimen label is at most 40 characters')
-    .refine(hasNoControlCharacters, 'Specimen label cannot contain control characters'),
+    .superRefine(plainText('Specimen label')),
   assay: assayCodeSchema,
   role: wellRoleSchema,
   replicate: z.number().int('Replicate must be a whole number').min(1, 'Replicate starts at 1'),

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { valueBasisSchema } from './assay';
-import { assayCodeSchema, measureSchema, specimenTypeSchema } from './common';
+import { assayCodeSchema, calendarDateSchema, EARLIEST_DATE, measureSchema, plainText, specimenTypeSchema } from './common';
 import {
   ageBandSchema,
   controlDataUploadResultSchema,
@@ -24,9 +24,8 @@ const setNameSchema = (example: string) =>
     .string()
     .trim()
     .min(1, `Name the interval set, e.g. "${example}"`)
-    .max(160, 'At most 160 characters');
-
-const isoDate = (what: string) => z.iso.date(`Use a date such as ${what}`);
+    .max(160, 'At most 160 characters')
+    .superRefine(plainText('Set name'));
 
 // ---------------------------------------------------------------------------------------------
 // Requests
@@ -86,10 +85,10 @@ export const draftFromControlsBodySchema = z.intersection(
   z
     .object({
       setName: setNameSchema('Muscle 2026'),
-      effectiveFrom: isoDate('2026-01-31'),
-      effectiveTo: isoDate('2026-12-31').nullable(),
+      effectiveFrom: calendarDateSchema({ label: 'Effective from', notBefore: EARLIEST_DATE }),
+      effectiveTo: calendarDateSchema({ label: 'Effective to', notBefore: EARLIEST_DATE }).nullable(),
       /** Added to the generated source note. */
-      note: z.string().trim().max(1000, 'At most 1000 characters').optional(),
+      note: z.string().trim().max(1000, 'At most 1000 characters').superRefine(plainText('Note', true)).optional(),
     })
     .superRefine((v, ctx) => {
       for (const p of findIntervalOrderingProblems(v)) ctx.addIssue({ code: 'custom', path: [p.path], message: p.message });
@@ -106,13 +105,18 @@ export const revisionBodySchema = z.object({ revision: revisionSchema }).strict(
 export const retireBodySchema = z
   .object({
     revision: revisionSchema,
-    reason: z.string().trim().min(1, 'Say why the interval is withdrawn').max(500, 'At most 500 characters'),
+    reason: z
+      .string()
+      .trim()
+      .min(1, 'Say why the interval is withdrawn')
+      .max(500, 'At most 500 characters')
+      .superRefine(plainText('Reason', true)),
   })
   .strict();
 export type RetireBody = z.infer<typeof retireBodySchema>;
 
 const groupSchema = z.object({
-  label: z.string().trim().min(1, 'Name the group').max(60),
+  label: z.string().trim().min(1, 'Name the group').max(60).superRefine(plainText('Group name')),
   values: z.array(z.number({ error: 'Every value must be a finite number' })).max(20_000),
 });
 /** POST /api/reference-intervals/partition: Harris & Boyd check between two groups. */

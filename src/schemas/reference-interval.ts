@@ -1,5 +1,6 @@
 import { z } from 'zod';
-import { assayCodeSchema, measureSchema, specimenTypeSchema } from './common';
+import { readPastedNumbers } from './pasted-numbers';
+import { assayCodeSchema, calendarDateSchema, EARLIEST_DATE, measureSchema, plainText, specimenTypeSchema } from './common';
 
 /**
  * How an interval's limits were obtained. Recorded with every stored interval (domain.md §3: "record the
@@ -88,7 +89,7 @@ export type ReferenceIntervalStatus = z.infer<typeof referenceIntervalStatusSche
 /** An age band: minYears inclusive, maxYears exclusive, maxYears null meaning "and older". */
 export const ageBandSchema = z
   .object({
-    label: z.string().trim().min(1, 'Name the age band').max(60, 'At most 60 characters'),
+    label: z.string().trim().min(1, 'Name the age band').max(60, 'At most 60 characters').superRefine(plainText('Age band')),
     minYears: z.number().min(0, 'Age cannot be negative').max(130, 'At most 130 years'),
     maxYears: z.number().min(0, 'Age cannot be negative').max(130, 'At most 130 years').nullable(),
   })
@@ -118,9 +119,10 @@ const referenceIntervalInputObject = z.object({
     .string()
     .trim()
     .min(1, 'Say where the interval comes from')
-    .max(2000, 'At most 2000 characters'),
-  effectiveFrom: z.iso.date('Use a date such as 2025-01-31'),
-  effectiveTo: z.iso.date('Use a date such as 2025-12-31').nullable(),
+    .max(2000, 'At most 2000 characters')
+    .superRefine(plainText('Source note', true)),
+  effectiveFrom: calendarDateSchema({ label: 'Effective from', notBefore: EARLIEST_DATE }),
+  effectiveTo: calendarDateSchema({ label: 'Effective to', notBefore: EARLIEST_DATE }).nullable(),
 });
 
 type IntervalOrderingFields = Partial<
@@ -180,10 +182,32 @@ export type ReferenceInterval = z.infer<typeof referenceIntervalSchema>;
 
 export const minVerificationValues = 20;
 
-const verificationValuesSchema = z
-  .array(z.number({ error: 'Every value must be a finite number' }))
-  .min(minVerificationValues, `Verification needs at least ${minVerificationValues} local values`)
-  .max(maxReferenceValues, `At most ${maxReferenceValues} values`);
+/** Longest pasted text accepted for one set of values (far more than the 20 000 values allowed need). */
+const MAX_PASTED_CHARACTERS = 400_000;
+
+/**
+ * One set of local values: an array of numbers, or the text as pasted, read by the shared convention of
+ * ./pasted-numbers (a point for decimals; an ambiguous comma between digits is refused naming its line).
+ */
+const verificationValuesSchema = z.preprocess(
+  (input, ctx) => {
+    if (typeof input !== 'string') return input;
+    if (input.length > MAX_PASTED_CHARACTERS) {
+      ctx.addIssue({ code: 'custom', message: `Paste at most ${MAX_PASTED_CHARACTERS} characters` });
+      return z.NEVER;
+    }
+    const { values, problem } = readPastedNumbers(input);
+    if (problem) {
+      ctx.addIssue({ code: 'custom', message: problem });
+      return z.NEVER;
+    }
+    return values;
+  },
+  z
+    .array(z.number({ error: 'Every value must be a finite number' }))
+    .min(minVerificationValues, `Verification needs at least ${minVerificationValues} local values`)
+    .max(maxReferenceValues, `At most ${maxReferenceValues} values`),
+);
 
 export const verificationRequestSchema = z
   .object({
@@ -197,6 +221,11 @@ export const verificationRequestSchema = z
   .strict()
   .superRefine(refineOrdering);
 export type VerificationRequest = z.infer<typeof verificationRequestSchema>;
+/** What a caller may send: each set as numbers or as the pasted text. */
+export type VerificationRequestBody = Omit<VerificationRequest, 'values' | 'additionalValues'> & {
+  values: number[] | string;
+  additionalValues?: number[] | string;
+};
 
 export const verificationDecisionSchema = z.enum(['verified', 'test_more', 'not_verified']);
 export type VerificationDecision = z.infer<typeof verificationDecisionSchema>;

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { assayCodeSchema, measureSchema, specimenTypeSchema } from './common';
+import { assayCodeSchema, isIanaTimeZone, measureSchema, specimenTypeSchema } from './common';
 
 /**
  * Everything the signed interpretive report prints, as one plain object. The PDF renderer reads only
@@ -22,15 +22,6 @@ const isoDateTime = z.iso.datetime({
   message: 'Expected an ISO 8601 date-time with Z or an offset, e.g. 2025-03-14T09:30:00Z',
 });
 
-function isValidTimeZone(zone: string): boolean {
-  try {
-    new Intl.DateTimeFormat('en', { timeZone: zone });
-    return true;
-  } catch {
-    return false;
-  }
-}
-
 export const reportLaboratorySchema = z.object({
   name: text,
   addressLines: z.array(text).min(1, 'At least one address line').max(6, 'At most 6 address lines'),
@@ -38,7 +29,7 @@ export const reportLaboratorySchema = z.object({
   /** IANA zone used to print date-times (receipt, signature); UTC when absent. */
   timeZone: z
     .string()
-    .refine(isValidTimeZone, { message: 'Unknown IANA time zone, e.g. Europe/Amsterdam' })
+    .refine(isIanaTimeZone, { message: 'Unknown IANA time zone, e.g. Europe/Amsterdam' })
     .optional(),
 });
 

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { caseDetailSchema, caseStateSchema, prioritySchema } from './case';
-import { specimenTypeSchema } from './common';
+import { plainText, specimenTypeSchema } from './common';
 
 /*
  * Signed reports, the director's review and the e-mail notices. The shapes of GET /api/reports and of the
@@ -82,13 +82,15 @@ const meaning = z
   .string()
   .trim()
   .min(3, 'Say what the signature means, e.g. "Reviewed and approved for release"')
-  .max(200, 'Use at most 200 characters');
+  .max(200, 'Use at most 200 characters')
+  .superRefine(plainText('Meaning'));
 export const INTERPRETATION_MAX = 8000;
 const interpretation = z
   .string()
   .trim()
   .min(10, 'Write the interpretation (at least 10 characters)')
-  .max(INTERPRETATION_MAX, `Use at most ${INTERPRETATION_MAX} characters`);
+  .max(INTERPRETATION_MAX, `Use at most ${INTERPRETATION_MAX} characters`)
+  .superRefine(plainText('Interpretation', true));
 const caseVersion = z.number().int().min(0);
 
 /**
@@ -105,8 +107,18 @@ export type SignCaseInput = z.infer<typeof signCaseInputSchema>;
 export const correctReportInputSchema = z
   .object({
     password,
-    reason: z.string().trim().min(3, 'Say why the report is corrected').max(1000, 'Use at most 1000 characters'),
-    changesSummary: z.string().trim().min(3, 'Say what changed').max(2000, 'Use at most 2000 characters'),
+    reason: z
+      .string()
+      .trim()
+      .min(3, 'Say why the report is corrected')
+      .max(1000, 'Use at most 1000 characters')
+      .superRefine(plainText('Reason', true)),
+    changesSummary: z
+      .string()
+      .trim()
+      .min(3, 'Say what changed')
+      .max(2000, 'Use at most 2000 characters')
+      .superRefine(plainText('Summary of changes', true)),
     interpretation: interpretation.optional(),
     meaning: meaning.optional(),
     version: caseVersion.optional(),
@@ -129,7 +141,10 @@ export type CorrectFormValues = z.infer<typeof correctFormSchema>;
 /** PUT /api/review/:id/draft: the director's working text, with the draft version they started from. */
 export const saveDraftInputSchema = z
   .object({
-    interpretation: z.string().max(INTERPRETATION_MAX, `Use at most ${INTERPRETATION_MAX} characters`),
+    interpretation: z
+      .string()
+      .max(INTERPRETATION_MAX, `Use at most ${INTERPRETATION_MAX} characters`)
+      .superRefine(plainText('Interpretation', true)),
     version: z.number().int().min(0).nullable(),
   })
   .strict();

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { roleSchema } from './common';
+import { plainText, roleSchema } from './common';
 
 export const passwordSchema = z
   .string()
@@ -34,8 +34,8 @@ export type LoginInput = z.infer<typeof loginInputSchema>;
 export const createUserInputSchema = z
   .object({
     email: z.email('Enter a valid e-mail address').max(254),
-    name: z.string().trim().min(1, 'Name is required').max(120),
-    title: z.string().trim().max(120).optional(),
+    name: z.string().trim().min(1, 'Name is required').max(120).superRefine(plainText('Name')),
+    title: z.string().trim().max(120).superRefine(plainText('Title')).optional(),
     role: roleSchema,
     password: passwordSchema,
   })

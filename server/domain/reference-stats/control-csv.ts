@@ -193,12 +193,20 @@ interface ParsedRow {
   unit: string | null;
 }
 
+/** True when a row has extra cells and two neighbours read like the halves of a decimal comma ("37", "5"). */
+function looksLikeDecimalCommas(cells: readonly string[], width: number): boolean {
+  return cells.length > width && cells.some((c, i) => i > 0 && /^\s*[+-]?\d+$/.test(cells[i - 1]!) && /^\d+\s*$/.test(c));
+}
+
 function readRow(record: CsvRecord, columns: Column[], width: number, issues: IssueList): ParsedRow | null {
   if (record.cells.length !== width) {
+    const hint = looksLikeDecimalCommas(record.cells, width)
+      ? '; a decimal comma such as 37,5 splits a value in two: use a point (37.5)'
+      : '';
     issues.add(
       record.row,
       null,
-      `Has ${record.cells.length} cells but the header has ${width}; check for a stray or missing comma`,
+      `Has ${record.cells.length} cells but the header has ${width}; check for a stray or missing comma${hint}`,
     );
     return null;
   }

@@ -1,12 +1,38 @@
 import type { Sequelize } from 'sequelize';
+import { isIanaTimeZone } from '@/schemas/common';
 import type { LabProfile, UpdateLabProfileInput } from '@/schemas/lab-profile';
 import type { User } from '@/schemas/user';
 import { notFound, staleVersion } from '../../lib/errors';
+import { logWarn } from '../../lib/log';
 import { recordAudit } from '../audit/audit.service';
 import { LabProfileModel } from './lab-profile.model';
 import { writeTransaction } from '../../db/write-transaction';
 
 const PROFILE_ID = 1;
+/** Used when the stored zone is not a real one, so that no screen or signature fails on it. */
+export const FALLBACK_TIME_ZONE = 'UTC';
+
+/** Bad zones already reported in the log, so a stored mistake is logged once per process, not per request. */
+const reportedBadZones = new Set<string>();
+
+/**
+ * The zone to work in: the stored one when the runtime knows it, otherwise UTC with a notice (and one logged
+ * warning). A zone written before validation existed, or straight into the database, cannot then take case
+ * lists, registration or signing down.
+ */
+function effectiveTimeZone(stored: string): { timeZone: string; timeZoneNotice: string | null } {
+  if (isIanaTimeZone(stored)) return { timeZone: stored, timeZoneNotice: null };
+  if (!reportedBadZones.has(stored)) {
+    reportedBadZones.add(stored);
+    logWarn('The laboratory time zone is not a known IANA zone; using UTC', { stored, fallback: FALLBACK_TIME_ZONE });
+  }
+  return {
+    timeZone: FALLBACK_TIME_ZONE,
+    timeZoneNotice:
+      `The saved time zone "${stored}" is not a known IANA zone, so Cristae reads and prints times in UTC. ` +
+      'An administrator should enter the right zone (e.g. Europe/London) and save the profile.',
+  };
+}
 
 function toProfile(row: LabProfileModel): LabProfile {
   return {
@@ -14,7 +40,7 @@ function toProfile(row: LabProfileModel): LabProfile {
     addressLines: JSON.parse(row.addressLines) as string[],
     accreditationNumber: row.accreditationNumber,
     phone: row.phone,
-    timeZone: row.timeZone,
+    ...effectiveTimeZone(row.timeZone),
     version: row.version,
   };
 }

@@ -1,11 +1,11 @@
 import { Link } from 'react-router-dom';
-import { Loading, PageHeader } from '@/components/ui/layout';
+import { Loading, Notice, PageHeader } from '@/components/ui/layout';
 import { paths } from '@/config/paths';
 import { CasesTable } from '@/features/cases/components/cases-table';
 import { useLabTimeZone } from './use-lab-time-zone';
 
 export default function CaseListPage() {
-  const { timeZone } = useLabTimeZone();
+  const { timeZone, notice } = useLabTimeZone();
   return (
     <>
       <PageHeader
@@ -17,6 +17,7 @@ export default function CaseListPage() {
           </Link>
         }
       />
+      {notice ? <Notice tone="info">{notice}</Notice> : null}
       {timeZone ? <CasesTable timeZone={timeZone} /> : <Loading />}
     </>
   );

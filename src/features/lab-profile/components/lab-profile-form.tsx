@@ -55,7 +55,11 @@ export function LabProfileForm({ profile }: { profile: LabProfile }) {
       <div className="grid gap-4 sm:grid-cols-3">
         <TextField label="Accreditation number" registration={form.register('accreditationNumber')} error={errors.accreditationNumber?.message} />
         <TextField label="Telephone" registration={form.register('phone', { setValueAs: (v: string) => (v === '' ? null : v) })} error={errors.phone?.message} />
-        <TextField label="Time zone (IANA)" registration={form.register('timeZone')} error={errors.timeZone?.message} />
+        <TextField
+          label="Time zone (IANA)"
+          registration={form.register('timeZone')}
+          error={errors.timeZone?.message ?? (isDirty ? undefined : (profile.timeZoneNotice ?? undefined))}
+        />
       </div>
       {message ? <Notice tone={message.tone}>{message.text}</Notice> : null}
       <div>

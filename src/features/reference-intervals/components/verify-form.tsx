@@ -3,9 +3,9 @@ import { Button } from '@/components/ui/button';
 import { TextArea, TextField } from '@/components/ui/field';
 import { Card, Notice } from '@/components/ui/layout';
 import { ApiError } from '@/lib/api-client';
-import { minVerificationValues, type VerificationRequest, type VerificationRound } from '@/schemas/reference-interval';
+import { readPastedNumbers } from '@/schemas/pasted-numbers';
+import { minVerificationValues, type VerificationRequestBody, type VerificationRound } from '@/schemas/reference-interval';
 import { useVerifyInterval } from '../api/verify-interval';
-import { readPastedNumbers } from './pasted-numbers';
 
 const decisionText = {
   verified: { title: 'Accept: the interval transfers', tone: 'success' },
@@ -55,7 +55,8 @@ export function VerifyForm() {
     }
     setErrors(found);
     if (Object.keys(found).length > 0) return;
-    const input: VerificationRequest = { lower: lo, upper: hi, values: a.values, ...(b ? { additionalValues: b.values } : {}) };
+    // The text goes as pasted: the server reads it by the same shared convention and names any bad line.
+    const input: VerificationRequestBody = { lower: lo, upper: hi, values: first, ...(b ? { additionalValues: second } : {}) };
     verify.mutate(input, {
       onError: (err) => {
         if (err instanceof ApiError) setErrors(err.fields);
@@ -81,7 +82,7 @@ export function VerifyForm() {
           </div>
           <TextArea
             label="Local reference values"
-            hint="At least 20, from healthy local subjects, measured here. Paste a column or separate with spaces; use a point for decimals."
+            hint="At least 20, from healthy local subjects, measured here. Paste a column or separate with spaces; use a point for decimals (37.5, not 37,5)."
             value={first}
             onChange={(e) => setFirst(e.target.value)}
             error={errors.values}
