@@ -50,7 +50,9 @@ export function createApp(opts: AppOptions): Express {
   const { sequelize, config } = opts;
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', false);
+  // Behind a TLS proxy (TRUST_PROXY), req.secure and req.ip come from X-Forwarded-Proto/-For, so the Secure
+  // session cookie is set and per-address limits see the real client.
+  app.set('trust proxy', config.trustProxy);
 
   app.use(
     helmet({

@@ -36,10 +36,17 @@ export function parseTrustProxy(raw: string | undefined): { value: TrustProxy } 
   return { value: v };
 }
 
+const DEFAULT_DATABASE_PATH = path.join('data', 'cristae.sqlite');
+
+/** The database file alone, for the operations commands (backup, restore, create-admin) that need nothing else. */
+export function databasePathFrom(env: NodeJS.ProcessEnv = process.env): string {
+  return env.DATABASE_PATH || DEFAULT_DATABASE_PATH;
+}
+
 const envSchema = z.object({
   NODE_ENV: z.enum(['development', 'test', 'production']).default('development'),
   PORT: z.coerce.number().int().min(1).max(65535).default(3000),
-  DATABASE_PATH: z.string().min(1).default(path.join('data', 'cristae.sqlite')),
+  DATABASE_PATH: z.string().min(1).default(DEFAULT_DATABASE_PATH),
   APP_ORIGIN: z.string().optional(),
   DEMO_PASSWORD: z.string().min(8).default(DEFAULT_DEMO_PASSWORD),
   SESSION_SECRET: z.string().optional(),

@@ -10,6 +10,9 @@ import * as m0006 from './migrations/0006-reports';
 /** Versioned migrations, applied in this order and recorded in the SequelizeMeta table. Never sync({alter}). */
 const migrations = [m0001, m0002, m0003, m0004, m0005, m0006];
 
+/** Names of the migrations this code knows (a restored database must not carry others). */
+export const knownMigrationNames = (): string[] => migrations.map((m) => m.name);
+
 export function createMigrator(sequelize: Sequelize) {
   return new Umzug({
     migrations: migrations.map((m) => ({ name: m.name, up: m.up, down: m.down })),
