@@ -123,9 +123,9 @@ export function createApp(opts: AppOptions): Express {
   app.use(referenceIntervalsRouter(sequelize));
 
   const mailer = opts.mailer ?? createDisabledMailer(config.mail.from);
-  app.use(reportsRouter(sequelize, { sequelize, mailer, publicOrigin: config.publicOrigin }));
+  app.use(reportsRouter(sequelize, { publicOrigin: config.publicOrigin }));
   app.use(reviewRouter(sequelize));
-  app.use(mailRouter(mailer));
+  app.use(mailRouter(sequelize, mailer));
 
   app.use(measurementsRouter(sequelize));
   app.use(uploadsRouter(sequelize));

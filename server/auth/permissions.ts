@@ -73,6 +73,7 @@ export const permissions = {
   'PUT /api/review/:id/draft': DIRECTOR,
   'POST /api/review/:id/return': DIRECTOR,
   'GET /api/outbox': ADMIN,
+  'POST /api/outbox/notices/:id/retry': ADMIN,
   // Assay work on a case (measurements, protein, plate files, plate maps, results, submission): the laboratory only.
   'GET /api/cases/:id/workup': LAB,
   'GET /api/cases/:id/measurements': LAB,

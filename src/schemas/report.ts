@@ -216,6 +216,11 @@ export const outboxMessageSchema = z.object({
 });
 export type OutboxMessage = z.infer<typeof outboxMessageSchema>;
 
+/** A notice's place in the outbox: waiting (first try or a retry), being handed over, sent, or given up. */
+export const noticeStatusSchema = z.enum(['pending', 'sending', 'sent', 'failed']);
+export type NoticeStatus = z.infer<typeof noticeStatusSchema>;
+
+/** One clinician notice in the durable outbox (docs/notices.md). */
 export const mailDeliverySchema = z.object({
   id: z.number().int(),
   kind: z.string(),
@@ -223,18 +228,30 @@ export const mailDeliverySchema = z.object({
   accession: z.string().nullable(),
   recipient: z.string(),
   subject: z.string(),
-  status: z.enum(['sent', 'failed']),
-  error: z.string().nullable(),
+  status: noticeStatusSchema,
+  /** Tries made so far (a try cut short by a stop of the server counts). */
+  attempts: z.number().int(),
+  maxAttempts: z.number().int(),
+  /** Why the last try failed, in words for the administrator. */
+  lastError: z.string().nullable(),
   messageId: z.string().nullable(),
-  attemptedAt: z.string(),
+  queuedAt: z.string(),
+  lastAttemptAt: z.string().nullable(),
+  /** When a waiting notice is due next. */
+  nextAttemptAt: z.string().nullable(),
+  sentAt: z.string().nullable(),
+  /** Whether an administrator may ask for it to be sent again (failed, with its text kept). */
+  canRetry: z.boolean(),
 });
 export type MailDelivery = z.infer<typeof mailDeliverySchema>;
 
-/** GET /api/outbox: what the local SMTP stand-in received, and the log of every sending attempt. */
+/** GET /api/outbox: what the local SMTP stand-in received, and every notice in the outbox with its state. */
 export const outboxSchema = z.object({
   messages: z.array(outboxMessageSchema),
   deliveries: z.array(mailDeliverySchema),
   /** True when a local SMTP stand-in receives the mail (development and tests), false with a real server. */
   localServer: z.boolean(),
+  /** The waits between tries, in seconds (the first try is immediate). */
+  retryDelaysSeconds: z.array(z.number().int()),
 });
 export type Outbox = z.infer<typeof outboxSchema>;

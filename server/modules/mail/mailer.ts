@@ -1,5 +1,6 @@
 import nodemailer from 'nodemailer';
 import type { AppConfig } from '../../config';
+import { PermanentMailError } from './notice-schedule';
 
 export type OutgoingMail = { to: string; subject: string; text: string };
 
@@ -12,12 +13,13 @@ export type Mailer = {
   close(): void;
 };
 
-/** A mailer that sends nothing: every attempt fails with a plain reason, which the delivery log records. */
+/** A mailer that sends nothing: every try fails for good with a plain reason, which the outbox shows. */
 export function createDisabledMailer(from: string): Mailer {
   return {
     kind: 'none',
     from,
-    send: () => Promise.reject(new Error('No mail server is configured (set SMTP_HOST, or run with the local stand-in)')),
+    send: () =>
+      Promise.reject(new PermanentMailError('No mail server is configured (set SMTP_HOST, or run with the local stand-in)')),
     close: () => {},
   };
 }

@@ -1,17 +1,20 @@
-import type { Sequelize } from 'sequelize';
-import { logError, logInfo } from '../../lib/log';
+import type { Sequelize, Transaction } from 'sequelize';
+import type { MailDelivery, Outbox } from '@/schemas/report';
+import type { User } from '@/schemas/user';
 import { writeTransaction } from '../../db/write-transaction';
+import { conflict, invalidState, notFound } from '../../lib/errors';
+import { recordAudit } from '../audit/audit.service';
 import { getLabProfile } from '../lab-profile/lab-profile.service';
-import { insertDelivery, listDeliveries, listOutboxMessages } from './mail.repository';
+import { accessionOf, findNotice, insertNotice, listNotices, listOutboxMessages, toDelivery, updateNotice } from './mail.repository';
 import type { Mailer } from './mailer';
-import type { Outbox } from '@/schemas/report';
+import { DEFAULT_RETRY_SCHEDULE, retryDelays, type RetrySchedule } from './notice-schedule';
+import { nudgeNoticeWorkers } from './notice-worker';
 
 export type NoticeKind = 'report_ready' | 'report_corrected';
 
 /** What a notice is about. Deliberately no patient fields: the accession number is the only case identifier. */
 export type ReportNotice = {
   kind: NoticeKind;
-  reportId: number;
   caseId: number;
   accession: string;
   version: number;
@@ -19,7 +22,8 @@ export type ReportNotice = {
   recipient: { id: number; email: string; name: string };
 };
 
-export type NoticeDeps = { sequelize: Sequelize; mailer: Mailer; publicOrigin: string };
+/** What composing a notice needs: the origin its sign-in link points at. */
+export type NoticeDeps = { publicOrigin: string };
 
 /** The client path where a clinician finds their reports (src/config/paths.ts myReports). */
 const MY_REPORTS_PATH = '/my-reports';
@@ -60,69 +64,90 @@ export function composeNotice(n: ReportNotice, publicOrigin: string, laboratoryN
   return { subject, text };
 }
 
-const pending = new Set<Promise<void>>();
+/** A notice composed before the signing transaction opens, ready to be queued inside it. */
+export type PreparedNotice = { notice: ReportNotice; subject: string; body: string };
 
-/** Resolves when every notice started so far has been sent or recorded as failed (tests, shutdown). */
-export async function noticesSettled(): Promise<void> {
-  while (pending.size > 0) await Promise.allSettled([...pending]);
+/** Composes the message (reads the laboratory's name); call it before the signing transaction opens. */
+export async function prepareReportNotice(deps: NoticeDeps, notice: ReportNotice): Promise<PreparedNotice> {
+  const lab = await getLabProfile().catch(() => ({ name: 'the laboratory' }));
+  const { subject, text } = composeNotice(notice, deps.publicOrigin, lab.name);
+  return { notice, subject, body: text };
 }
 
 /**
- * Sends a notice and records the attempt. Called after the signing transaction has committed; it never
- * throws, so a mail problem can neither undo a signature nor fail the director's request.
+ * Queues the notice in the durable outbox inside the signing transaction: the signature and its notice are
+ * stored together or not at all. The notice worker sends it (call nudgeNoticeWorkers after the commit).
  */
-export function sendReportNotice(deps: NoticeDeps, notice: ReportNotice): Promise<void> {
-  const work = (async () => {
-    let subject = notice.kind === 'report_ready' ? 'Report ready' : 'Corrected report';
-    try {
-      const lab = await getLabProfile().catch(() => ({ name: 'the laboratory' }));
-      const mail = composeNotice(notice, deps.publicOrigin, lab.name);
-      subject = mail.subject;
-      const { messageId } = await deps.mailer.send({ to: notice.recipient.email, ...mail });
-      await record(deps.sequelize, notice, subject, 'sent', null, messageId);
-      logInfo('notice sent', { kind: notice.kind, reportId: notice.reportId });
-    } catch (err) {
-      const message = err instanceof Error ? err.message : String(err);
-      if (deps.mailer.kind === 'none') logInfo('notice not sent', { kind: notice.kind, reportId: notice.reportId, reason: message });
-      else logError(err, `sending ${notice.kind} notice for report ${notice.reportId}`);
-      await record(deps.sequelize, notice, subject, 'failed', message.slice(0, 2000), null).catch((e: unknown) =>
-        logError(e, `recording a failed ${notice.kind} notice`),
-      );
-    }
-  })();
-  pending.add(work);
-  void work.finally(() => pending.delete(work));
-  return work;
-}
-
-async function record(
-  sequelize: Sequelize,
-  n: ReportNotice,
-  subject: string,
-  status: 'sent' | 'failed',
-  error: string | null,
-  messageId: string | null,
-): Promise<void> {
-  await writeTransaction(sequelize, (transaction) =>
-    insertDelivery(
-      {
-        kind: n.kind,
-        reportId: n.reportId,
-        caseId: n.caseId,
-        recipientUserId: n.recipient.id,
-        recipient: n.recipient.email,
-        subject,
-        status,
-        error,
-        messageId,
-        attemptedAt: new Date(),
-      },
-      transaction,
-    ),
+export async function queueReportNotice(prepared: PreparedNotice, reportId: number, transaction: Transaction): Promise<number> {
+  const { notice } = prepared;
+  return insertNotice(
+    {
+      kind: notice.kind,
+      reportId,
+      caseId: notice.caseId,
+      recipientUserId: notice.recipient.id,
+      recipient: notice.recipient.email,
+      subject: prepared.subject,
+      body: prepared.body,
+    },
+    new Date(),
+    transaction,
   );
 }
 
-export async function getOutbox(mailer: Mailer): Promise<Outbox> {
-  const [messages, deliveries] = await Promise.all([listOutboxMessages(200), listDeliveries(200)]);
-  return { messages, deliveries, localServer: mailer.kind === 'local' };
+export async function getOutbox(mailer: Mailer, schedule: RetrySchedule = DEFAULT_RETRY_SCHEDULE): Promise<Outbox> {
+  const [messages, deliveries] = await Promise.all([listOutboxMessages(200), listNotices(200, schedule.maxAttempts)]);
+  return {
+    messages,
+    deliveries,
+    localServer: mailer.kind === 'local',
+    retryDelaysSeconds: retryDelays(schedule).map((ms) => Math.round(ms / 1000)),
+  };
 }
+
+/**
+ * An administrator asks for a notice that was given up on to be sent again: it becomes due now with a fresh
+ * run of tries. Only a failed notice whose text was kept qualifies; anything else is a 409 naming its state.
+ */
+export async function retryNotice(
+  sequelize: Sequelize,
+  actor: User,
+  id: number,
+  schedule: RetrySchedule = DEFAULT_RETRY_SCHEDULE,
+): Promise<MailDelivery> {
+  const result = await writeTransaction(sequelize, async (t) => {
+    const row = await findNotice(id, t);
+    if (!row) throw notFound('Notice', id);
+    if (row.status !== 'failed') {
+      throw invalidState(`Only a notice that could not be sent can be sent again; this one is ${STATE_WORDS[row.status]}.`);
+    }
+    if (row.body === null) throw invalidState('This notice was recorded before Cristae kept notice texts, so it cannot be sent again.');
+    const now = new Date();
+    const values = { status: 'pending' as const, attempts: 0, nextAttemptAt: now, leaseUntil: null };
+    if (!(await updateNotice(id, { status: 'failed', attempts: row.attempts }, values, t))) {
+      throw conflict('Someone else asked for this notice to be sent again at the same moment. Reload to see it.');
+    }
+    await recordAudit(
+      actor,
+      {
+        action: 'retry',
+        entity: 'notice',
+        entityId: id,
+        before: { status: 'failed', attempts: row.attempts, lastError: row.lastError },
+        after: { status: 'pending', attempts: 0 },
+      },
+      t,
+    );
+    await row.reload({ transaction: t });
+    return toDelivery(row, await accessionOf(row.caseId), schedule.maxAttempts);
+  });
+  nudgeNoticeWorkers();
+  return result;
+}
+
+const STATE_WORDS: Record<MailDelivery['status'], string> = {
+  pending: 'waiting to be sent',
+  sending: 'being sent now',
+  sent: 'already sent',
+  failed: 'not sent',
+};

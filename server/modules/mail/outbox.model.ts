@@ -19,8 +19,13 @@ export class OutboxMessageModel extends Model<InferAttributes<OutboxMessageModel
   declare receivedAt: Date;
 }
 
-/** One attempt to send a notice, with its outcome. */
-export class MailDeliveryModel extends Model<InferAttributes<MailDeliveryModel>, InferCreationAttributes<MailDeliveryModel>> {
+export type NoticeStatus = 'pending' | 'sending' | 'sent' | 'failed';
+
+/**
+ * A clinician's notice in the durable outbox: written in the signing transaction, then claimed, sent and marked
+ * by the notice worker (docs/notices.md).
+ */
+export class NoticeModel extends Model<InferAttributes<NoticeModel>, InferCreationAttributes<NoticeModel>> {
   declare id: CreationOptional<number>;
   declare kind: string;
   declare reportId: number | null;
@@ -28,10 +33,17 @@ export class MailDeliveryModel extends Model<InferAttributes<MailDeliveryModel>,
   declare recipientUserId: number | null;
   declare recipient: string;
   declare subject: string;
-  declare status: 'sent' | 'failed';
-  declare error: string | null;
-  declare messageId: string | null;
-  declare attemptedAt: Date;
+  /** The message as composed at signing; null only for rows carried over from the earlier delivery log. */
+  declare body: string | null;
+  declare status: NoticeStatus;
+  declare attempts: CreationOptional<number>;
+  declare nextAttemptAt: Date | null;
+  declare leaseUntil: CreationOptional<Date | null>;
+  declare lastAttemptAt: CreationOptional<Date | null>;
+  declare lastError: CreationOptional<string | null>;
+  declare messageId: CreationOptional<string | null>;
+  declare sentAt: CreationOptional<Date | null>;
+  declare createdAt: Date;
 }
 
 export function initMailModels(sequelize: Sequelize): void {
@@ -47,7 +59,7 @@ export function initMailModels(sequelize: Sequelize): void {
     },
     { sequelize, tableName: 'outbox_messages', modelName: 'OutboxMessage', timestamps: false },
   );
-  MailDeliveryModel.init(
+  NoticeModel.init(
     {
       id: idColumn,
       kind: { type: DataTypes.STRING(30), allowNull: false },
@@ -56,11 +68,17 @@ export function initMailModels(sequelize: Sequelize): void {
       recipientUserId: { type: DataTypes.INTEGER, allowNull: true },
       recipient: { type: DataTypes.STRING(320), allowNull: false },
       subject: { type: DataTypes.STRING(500), allowNull: false },
+      body: { type: DataTypes.TEXT, allowNull: true },
       status: { type: DataTypes.STRING(10), allowNull: false },
-      error: { type: DataTypes.TEXT, allowNull: true },
+      attempts: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+      nextAttemptAt: { type: DataTypes.DATE, allowNull: true },
+      leaseUntil: { type: DataTypes.DATE, allowNull: true },
+      lastAttemptAt: { type: DataTypes.DATE, allowNull: true },
+      lastError: { type: DataTypes.TEXT, allowNull: true },
       messageId: { type: DataTypes.STRING(255), allowNull: true },
-      attemptedAt: { type: DataTypes.DATE, allowNull: false },
+      sentAt: { type: DataTypes.DATE, allowNull: true },
+      createdAt: { type: DataTypes.DATE, allowNull: false },
     },
-    { sequelize, tableName: 'mail_deliveries', modelName: 'MailDelivery', timestamps: false },
+    { sequelize, tableName: 'notice_outbox', modelName: 'Notice', timestamps: false },
   );
 }

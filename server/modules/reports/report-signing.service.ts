@@ -10,6 +10,7 @@ import {
 } from '@/schemas/report';
 import type { User } from '@/schemas/user';
 import { verifyPassword } from '../../auth/password';
+import { admitRightPassword, countWrongPassword, refuseIfLocked } from '../../auth/lockout';
 import { renderReportPdf, ReportDocumentError } from '../../domain/report-pdf/render-report-pdf';
 import { AppError, conflict, forbidden, invalidState, notFound, staleVersion } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
@@ -17,7 +18,8 @@ import { transitionCase } from '../cases/case-state';
 import { loadCaseDetail } from '../cases/cases.repository';
 import { writeTransaction } from '../../db/write-transaction';
 import { getLabProfile } from '../lab-profile/lab-profile.service';
-import { sendReportNotice, type NoticeDeps } from '../mail/notices.service';
+import { prepareReportNotice, queueReportNotice, type NoticeDeps, type PreparedNotice } from '../mail/notices.service';
+import { nudgeNoticeWorkers } from '../mail/notice-worker';
 import { getCaseResults } from '../results/results.service';
 import { findUserById } from '../users/users.repository';
 import { proposeInterpretation } from '../review/draft-interpretation';
@@ -34,7 +36,7 @@ import { toReportableResults } from './results-adapter';
 export type SigningOptions = {
   /** The demo seed signs without a typed password; every HTTP route checks it. */
   checkPassword?: boolean;
-  /** Send the clinician's notice after commit (default true). */
+  /** Queue the clinician's notice with the signature (default true). */
   notify?: boolean;
   now?: Date;
 };
@@ -44,12 +46,21 @@ export const sha256Hex = (data: Buffer | string): string => createHash('sha256')
 const badSignaturePassword = () =>
   new AppError('BAD_CREDENTIALS', 'The password is not correct. Nothing was signed.');
 
-/** The second identity component of an electronic signature: the signer types their password again. */
-async function confirmSigner(actor: User, password: string | undefined, check: boolean) {
+/**
+ * The second identity component of an electronic signature: the signer types their password again. A wrong one
+ * counts toward the same lock-out as sign-in (423 once locked), so it cannot be guessed without limit.
+ */
+async function confirmSigner(sequelize: Sequelize, actor: User, password: string | undefined, check: boolean) {
   if (actor.role !== 'director') throw forbidden('Only a director signs reports');
   const account = await findUserById(actor.id);
   if (!account || !account.active) throw badSignaturePassword();
-  if (check && !(await verifyPassword(password ?? '', account.passwordHash))) throw badSignaturePassword();
+  if (!check) return account;
+  const now = new Date();
+  refuseIfLocked(account.lockedUntil, now);
+  if (!(await verifyPassword(password ?? '', account.passwordHash))) {
+    return countWrongPassword(sequelize, { userId: account.id }, badSignaturePassword, now);
+  }
+  await admitRightPassword(sequelize, account.id, now);
   return account;
 }
 
@@ -118,22 +129,24 @@ async function signedResult(reportId: number, caseDetail: CaseDetail): Promise<S
   return { report: repo.toDetail(stored, versions), caseState: caseDetail.state, caseVersion: caseDetail.version };
 }
 
-function noticeFor(kind: 'report_ready' | 'report_corrected', reportId: number, detail: CaseDetail, version: number, supersedesVersion: number | null) {
-  return {
-    kind,
-    reportId,
-    caseId: detail.id,
-    accession: detail.accession,
-    version,
-    supersedesVersion,
-    recipient: detail.referringClinician,
-  };
+/** The clinician's notice, composed before the write transaction opens; null when none is to be sent. */
+async function noticeFor(
+  notices: NoticeDeps | null,
+  opts: SigningOptions,
+  kind: 'report_ready' | 'report_corrected',
+  detail: CaseDetail,
+  version: number,
+  supersedesVersion: number | null,
+): Promise<PreparedNotice | null> {
+  if (!notices || opts.notify === false) return null;
+  const notice = { kind, caseId: detail.id, accession: detail.accession, version, supersedesVersion, recipient: detail.referringClinician };
+  return prepareReportNotice(notices, notice);
 }
 
 /**
  * Signs a case awaiting review: checks the password again, renders the PDF once, and in one transaction moves
  * the case to final and stores the report (PDF bytes, SHA-256 of the PDF and of the signed document, signer,
- * time and meaning) with its audit event. The clinician is e-mailed after the commit.
+ * time and meaning) with its audit event and the clinician's notice, which the notice worker delivers.
  */
 export async function signCase(
   sequelize: Sequelize,
@@ -143,7 +156,7 @@ export async function signCase(
   input: SignCaseInput,
   opts: SigningOptions = {},
 ): Promise<SignResult> {
-  const signer = await confirmSigner(actor, input.password, opts.checkPassword ?? true);
+  const signer = await confirmSigner(sequelize, actor, input.password, opts.checkPassword ?? true);
   const material = await loadReportMaterial(caseId);
   const { detail } = material;
   if (detail.state === 'final' || detail.state === 'corrected') {
@@ -161,6 +174,7 @@ export async function signCase(
   const meaning = input.meaning ?? DEFAULT_SIGNATURE_MEANING;
   const signedAt = opts.now ?? new Date();
   const r = await renderSigned(material, signer, interpretation, meaning, signedAt, { version: 1, status: 'final' });
+  const notice = await noticeFor(notices, opts, 'report_ready', detail, 1, null);
 
   const { reportId, after } = await writeTransaction(sequelize, async (t) => {
     // transitionCase re-reads the case inside the transaction: a second signature, or a return to the
@@ -201,10 +215,11 @@ export async function signCase(
       },
       t,
     );
+    if (notice) await queueReportNotice(notice, reportId, t);
     return { reportId, after };
   });
 
-  if (notices && opts.notify !== false) void sendReportNotice(notices, noticeFor('report_ready', reportId, after, 1, null));
+  if (notice) nudgeNoticeWorkers();
   return signedResult(reportId, after);
 }
 
@@ -220,7 +235,7 @@ export async function correctReport(
   input: CorrectReportInput,
   opts: SigningOptions = {},
 ): Promise<SignResult> {
-  const signer = await confirmSigner(actor, input.password, opts.checkPassword ?? true);
+  const signer = await confirmSigner(sequelize, actor, input.password, opts.checkPassword ?? true);
   const material = await loadReportMaterial(caseId);
   const { detail } = material;
   if (detail.state !== 'final' && detail.state !== 'corrected') {
@@ -241,6 +256,7 @@ export async function correctReport(
     correctionReason: input.reason,
     changesSummary: input.changesSummary,
   });
+  const notice = await noticeFor(notices, opts, 'report_corrected', detail, version, current.version);
 
   const { reportId, after } = await writeTransaction(sequelize, async (t) => {
     const after = await transitionCase(sequelize, actor, caseId, 'corrected', { version: detail.version }, t);
@@ -293,11 +309,10 @@ export async function correctReport(
       },
       t,
     );
+    if (notice) await queueReportNotice(notice, reportId, t);
     return { reportId, after };
   });
 
-  if (notices && opts.notify !== false) {
-    void sendReportNotice(notices, noticeFor('report_corrected', reportId, after, version, current.version));
-  }
+  if (notice) nudgeNoticeWorkers();
   return signedResult(reportId, after);
 }

@@ -12,7 +12,7 @@ export const outboxQueries = {
     queryOptions({
       queryKey: outboxKeys.list(),
       queryFn: () => api.get('/api/outbox', outboxSchema),
-      // Notices are sent just after a signature: look again while the page is open.
+      // Notices go out just after a signature, and retries follow: look again while the page is open.
       refetchInterval: 5000,
     }),
 };

@@ -1,19 +1,25 @@
 import { useQuery } from '@tanstack/react-query';
 import { Card, Loading, Notice } from '@/components/ui/layout';
 import { outboxQueries } from '../api/outbox-queries';
+import { NoticesTable, spell } from './notices-table';
+import { when } from './when';
 
-const when = (iso: string) =>
-  new Date(iso).toLocaleString('en-GB', { day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', second: '2-digit' });
-
-const kindLabels: Record<string, string> = { report_ready: 'Report ready', report_corrected: 'Corrected report' };
-
-/** What the mail server received, and every attempt Cristae made to send a notice. */
+/** Every notice Cristae has queued with its state, and what the local mail server received. */
 export function OutboxView() {
   const { data, isPending, error } = useQuery(outboxQueries.list());
   if (isPending) return <Loading what="Loading sent e-mail" />;
   if (error) return <Notice tone="error">{error.message}</Notice>;
   return (
     <div className="flex flex-col gap-6">
+      <Card title="Notices to referring clinicians">
+        <p className="mb-3 text-sm text-ink-soft">
+          A notice is stored together with the signature, then handed to the mail server. If the mail server cannot take it,
+          Cristae tries again after {data.retryDelaysSeconds.map(spell).join(', ')} ({data.retryDelaysSeconds.length + 1} tries in
+          all), and then marks it as not sent so that you can send it again. A refusal the mail server gives as final is not
+          retried.
+        </p>
+        <NoticesTable deliveries={data.deliveries} />
+      </Card>
       <Card title="Messages received by the local mail server">
         {data.localServer ? (
           <p className="mb-3 text-sm text-ink-soft">
@@ -22,7 +28,7 @@ export function OutboxView() {
           </p>
         ) : (
           <p className="mb-3 text-sm text-ink-soft">
-            Mail goes to the laboratory’s SMTP server, so messages are not kept here; the delivery log below shows each attempt.
+            Mail goes to the laboratory’s SMTP server, so messages are not kept here; the notices above show where each one stands.
           </p>
         )}
         {data.messages.length === 0 ? (
@@ -47,42 +53,6 @@ export function OutboxView() {
               </li>
             ))}
           </ul>
-        )}
-      </Card>
-      <Card title="Delivery log">
-        {data.deliveries.length === 0 ? (
-          <p className="text-sm text-ink-faint">No notice has been sent yet.</p>
-        ) : (
-          <table className="w-full text-left text-sm">
-            <thead className="border-b border-paper-line text-ink-soft">
-              <tr>
-                <th className="py-2 pr-3 font-medium">When</th>
-                <th className="py-2 pr-3 font-medium">Notice</th>
-                <th className="py-2 pr-3 font-medium">Accession</th>
-                <th className="py-2 pr-3 font-medium">To</th>
-                <th className="py-2 pr-3 font-medium">Outcome</th>
-              </tr>
-            </thead>
-            <tbody>
-              {data.deliveries.map((d) => (
-                <tr key={d.id} className="border-b border-paper-line/70 align-top">
-                  <td className="py-2 pr-3 whitespace-nowrap">{when(d.attemptedAt)}</td>
-                  <td className="py-2 pr-3">{kindLabels[d.kind] ?? d.kind}</td>
-                  <td className="py-2 pr-3 font-mono">{d.accession ?? '—'}</td>
-                  <td className="py-2 pr-3">{d.recipient}</td>
-                  <td className="py-2 pr-3">
-                    {d.status === 'sent' ? (
-                      <span className="text-within">Sent</span>
-                    ) : (
-                      <span className="text-below">
-                        Not sent: <span className="text-ink">{d.error}</span>
-                      </span>
-                    )}
-                  </td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
         )}
       </Card>
     </div>
