@@ -104,7 +104,7 @@ export function createApp(opts: AppOptions): Express {
       },
     }),
   );
-  const passport = createPassport();
+  const passport = createPassport(sequelize);
   app.use('/api', passport.initialize(), passport.session());
 
   const health = express.Router();
@@ -112,7 +112,7 @@ export function createApp(opts: AppOptions): Express {
     res.json({ status: 'ok' });
   });
   app.use(health);
-  app.use(authRouter(passport, { loginAttemptsPerWindow: opts.loginAttemptsPerWindow ?? 20 }));
+  app.use(authRouter(sequelize, passport, { loginAttemptsPerWindow: opts.loginAttemptsPerWindow ?? 20 }));
   app.use(usersRouter(sequelize));
   app.use(labProfileRouter(sequelize));
   app.use(auditRouter());

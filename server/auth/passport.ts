@@ -1,26 +1,59 @@
 import { Passport, type PassportStatic } from 'passport';
+import type { Sequelize } from 'sequelize';
 
 export type CristaePassport = InstanceType<PassportStatic['Passport']>;
 import { Strategy as LocalStrategy } from 'passport-local';
-import { findSessionUser } from '../modules/users/users.repository';
-import { checkCredentials } from './sign-in';
+import type { SessionUser } from '@/schemas/user';
+import { findSessionAccount } from '../modules/users/users.repository';
+import { checkCredentials, type SignedInAccount } from './sign-in';
+
+/** What the session stores: the account and the session generation it was opened under. */
+type StoredLogin = { id: number; gen: number };
+
+// The generation travels beside the user object handed to req.login, never inside it (req.user is sent as JSON).
+const generations = new WeakMap<object, number>();
+
+/** The user object to hand to req.login for an account checked at this generation. */
+export function loginUser(account: SignedInAccount): SessionUser {
+  const user = { ...account.user };
+  generations.set(user, account.generation);
+  return user;
+}
+
+function readStored(stored: unknown): StoredLogin | null {
+  // Sessions opened before generations existed stored the bare id; they belong to generation 0.
+  if (typeof stored === 'number') return { id: stored, gen: 0 };
+  const s = stored as Partial<StoredLogin> | null;
+  return s && typeof s.id === 'number' && typeof s.gen === 'number' ? { id: s.id, gen: s.gen } : null;
+}
+
+/** The account id a stored session belongs to, or null (used to end every session of one account). */
+export function storedLoginUserId(stored: unknown): number | null {
+  return readStored(stored)?.id ?? null;
+}
 
 /** A passport instance per app, so tests with several apps never share strategies. */
-export function createPassport(): CristaePassport {
+export function createPassport(sequelize: Sequelize): CristaePassport {
   const passport = new Passport();
   passport.use(
     new LocalStrategy({ usernameField: 'email', passwordField: 'password' }, (email, password, done) => {
-      checkCredentials(email, password).then(
-        (user) => done(null, user),
+      checkCredentials(sequelize, email, password).then(
+        (account) => done(null, loginUser(account)),
         (err: unknown) => done(err),
       );
     }),
   );
-  passport.serializeUser((user, done) => done(null, user.id));
-  passport.deserializeUser((id: number, done) => {
-    findSessionUser(id).then(
-      // A deactivated account loses its sessions at the next request.
-      (u) => done(null, u ?? false),
+  passport.serializeUser((user, done) => {
+    const gen = generations.get(user);
+    if (gen === undefined) return done(new Error('A session can only be opened for a checked account'));
+    done(null, { id: user.id, gen } satisfies StoredLogin);
+  });
+  passport.deserializeUser((stored: unknown, done) => {
+    const login = readStored(stored);
+    if (!login) return done(null, false);
+    findSessionAccount(login.id).then(
+      // A deactivated account, or a password changed or reset since this session opened, ends the session.
+      (a) => done(null, a && a.generation === login.gen ? a.user : false),
       (err: unknown) => done(err),
     );
   });

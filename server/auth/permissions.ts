@@ -17,6 +17,7 @@ export const permissions = {
   'POST /api/auth/login': 'public',
   'POST /api/auth/logout': 'signed-in',
   'GET /api/auth/me': 'signed-in',
+  'POST /api/auth/password': 'signed-in',
   'GET /api/lab-profile': 'signed-in',
   'PUT /api/lab-profile': ADMIN,
   'GET /api/users': ADMIN,
@@ -97,6 +98,16 @@ export const permissions = {
 } as const satisfies Record<string, Access>;
 
 export type RouteKey = keyof typeof permissions;
+
+/**
+ * The only routes open to someone whose password was set by an administrator, until they choose their own:
+ * every other route answers 403 PASSWORD_CHANGE_REQUIRED (so nobody signs with a password someone else chose).
+ */
+export const openBeforePasswordChange: ReadonlySet<RouteKey> = new Set<RouteKey>([
+  'GET /api/auth/me',
+  'POST /api/auth/logout',
+  'POST /api/auth/password',
+]);
 
 export function allows(access: Access, role: Role | undefined): boolean {
   if (access === 'public') return true;

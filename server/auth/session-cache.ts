@@ -5,6 +5,19 @@ type SessionStoreLike = Pick<Store, 'get' | 'set' | 'destroy' | 'touch'>;
 const TOUCH_EVERY_MS = 60_000;
 const MAX_ENTRIES = 10_000;
 
+// Every cache made in this process, so ending an account's sessions can drop them from all of them.
+const caches = new Set<{ cache: Map<string, string>; lastTouch: Map<string, number> }>();
+
+/** Drops these sessions from every in-memory cache (their rows have been deleted). */
+export function forgetCachedSessions(sids: readonly string[]): void {
+  for (const c of caches) {
+    for (const sid of sids) {
+      c.cache.delete(sid);
+      c.lastTouch.delete(sid);
+    }
+  }
+}
+
 /**
  * Sessions stay in SQLite (they survive a restart), but a single server process need not read the same row on
  * every request nor write its expiry each time: reads are served from memory, written through on every change
@@ -14,6 +27,7 @@ const MAX_ENTRIES = 10_000;
 export function cacheSessionReads(store: SessionStoreLike): void {
   const cache = new Map<string, string>();
   const lastTouch = new Map<string, number>();
+  caches.add({ cache, lastTouch });
   const remember = (sid: string, data: unknown) => {
     if (cache.size >= MAX_ENTRIES) cache.clear();
     cache.set(sid, JSON.stringify(data));

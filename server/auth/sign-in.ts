@@ -1,10 +1,15 @@
+import type { Sequelize } from 'sequelize';
 import { AppError } from '../lib/errors';
-import { findUserByEmail, publicUser, setLoginState } from '../modules/users/users.repository';
-import type { User } from '@/schemas/user';
+import { readAddressFailures } from '../modules/auth/sign-in-failures.repository';
+import { findUserByEmail, sessionUser } from '../modules/users/users.repository';
+import type { SessionUser } from '@/schemas/user';
 import { hashPassword, verifyPassword } from './password';
+import { admitRightPassword, countWrongPassword, refuseIfLocked } from './lockout';
 
-export const LOCKOUT_THRESHOLD = 5;
-export const LOCKOUT_MINUTES = 15;
+export { LOCKOUT_MINUTES, LOCKOUT_THRESHOLD } from './lockout';
+
+/** What a successful check hands to the session: the user and the session generation it was opened under. */
+export type SignedInAccount = { user: SessionUser; generation: number };
 
 // Compared against when the e-mail is unknown, so a wrong address costs as long as a wrong password.
 let decoyHash: Promise<string> | null = null;
@@ -13,33 +18,28 @@ const badCredentials = () => new AppError('BAD_CREDENTIALS', 'E-mail address or 
 
 /**
  * Checks a sign-in attempt. After LOCKOUT_THRESHOLD wrong passwords in a row the account is locked for
- * LOCKOUT_MINUTES; an administrator can lift the lock by resetting the password or reactivating the account.
+ * LOCKOUT_MINUTES; an administrator can lift the lock by setting a temporary password or reactivating the
+ * account. An address with no usable account (unknown or deactivated) is counted and locked the same way, with
+ * the same messages, so the answers do not tell whether an account exists.
  */
-export async function checkCredentials(email: string, password: string, now = new Date()): Promise<User> {
-  const user = await findUserByEmail(email.trim());
+export async function checkCredentials(
+  sequelize: Sequelize,
+  email: string,
+  password: string,
+  now = new Date(),
+): Promise<SignedInAccount> {
+  const address = email.trim().toLowerCase();
+  const user = await findUserByEmail(address);
   if (!user || !user.active) {
+    refuseIfLocked((await readAddressFailures(sequelize, address)).lockedUntil, now);
     decoyHash ??= hashPassword('decoy-password-for-timing');
     await verifyPassword(password, await decoyHash);
-    throw badCredentials();
+    return countWrongPassword(sequelize, { email: address }, badCredentials, now);
   }
-  if (user.lockedUntil && new Date(user.lockedUntil) > now) {
-    throw new AppError(
-      'ACCOUNT_LOCKED',
-      `This account is locked after ${LOCKOUT_THRESHOLD} failed sign-ins. Try again after ${LOCKOUT_MINUTES} minutes or ask an administrator.`,
-    );
-  }
+  refuseIfLocked(user.lockedUntil, now);
   if (!(await verifyPassword(password, user.passwordHash))) {
-    const failures = user.failedLogins + 1;
-    if (failures >= LOCKOUT_THRESHOLD) {
-      await setLoginState(user.id, 0, new Date(now.getTime() + LOCKOUT_MINUTES * 60_000));
-      throw new AppError(
-        'ACCOUNT_LOCKED',
-        `Too many failed sign-ins: this account is locked for ${LOCKOUT_MINUTES} minutes.`,
-      );
-    }
-    await setLoginState(user.id, failures, null);
-    throw badCredentials();
+    return countWrongPassword(sequelize, { userId: user.id }, badCredentials, now);
   }
-  if (user.failedLogins !== 0 || user.lockedUntil) await setLoginState(user.id, 0, null);
-  return publicUser(user);
+  await admitRightPassword(sequelize, user.id, now);
+  return { user: sessionUser(user), generation: user.sessionGeneration };
 }

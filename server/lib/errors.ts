@@ -12,6 +12,7 @@ const defaultStatus: Record<ErrorCode, number> = {
   BAD_CREDENTIALS: 401,
   ACCOUNT_LOCKED: 423,
   FORBIDDEN: 403,
+  PASSWORD_CHANGE_REQUIRED: 403,
   ORIGIN_REFUSED: 403,
   NOT_FOUND: 404,
   CONFLICT: 409,
@@ -46,6 +47,11 @@ export const notFound = (what: string, id?: string | number) =>
   new AppError('NOT_FOUND', id === undefined ? `${what} not found` : `${what} ${id} not found`);
 export const forbidden = (message = 'Your role does not allow this') => new AppError('FORBIDDEN', message);
 export const unauthenticated = () => new AppError('UNAUTHENTICATED', 'Please sign in');
+export const passwordChangeRequired = () =>
+  new AppError(
+    'PASSWORD_CHANGE_REQUIRED',
+    'Your password was set by an administrator. Choose your own password before doing anything else.',
+  );
 export const conflict = (message: string) => new AppError('CONFLICT', message);
 export const invalidState = (message: string) => new AppError('INVALID_STATE', message);
 export const badInput = (fields: Record<string, string>, message = 'Some fields are not valid') =>

@@ -1,7 +1,7 @@
 import type { NextFunction, Request, RequestHandler, Response, Router } from 'express';
 import type { z } from 'zod';
-import { allows, permissions, type RouteKey } from '../auth/permissions';
-import { AppError, forbidden, unauthenticated, zodFields } from './errors';
+import { allows, openBeforePasswordChange, permissions, type RouteKey } from '../auth/permissions';
+import { AppError, forbidden, passwordChangeRequired, unauthenticated, zodFields } from './errors';
 
 type Schemas = { params?: z.ZodType; query?: z.ZodType; body?: z.ZodType };
 type Parsed<S extends Schemas> = {
@@ -20,12 +20,16 @@ export function splitKey(key: RouteKey): { method: 'get' | 'post' | 'put' | 'pat
   return { method: method.toLowerCase() as 'get', path };
 }
 
-/** Enforces the permissions table for one route: 401 with no session, 403 for a role not listed. */
+/**
+ * Enforces the permissions table for one route: 401 with no session, 403 PASSWORD_CHANGE_REQUIRED while a reset
+ * password has not been replaced, 403 for a role not listed.
+ */
 export function authorize(key: RouteKey): RequestHandler {
   const access = permissions[key];
   return (req, _res, next) => {
     if (access === 'public') return next();
     if (!req.user) return next(unauthenticated());
+    if (req.user.mustChangePassword && !openBeforePasswordChange.has(key)) return next(passwordChangeRequired());
     if (!allows(access, req.user.role)) return next(forbidden());
     next();
   };

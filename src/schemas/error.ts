@@ -7,6 +7,7 @@ export const errorCodes = [
   'BAD_CREDENTIALS',
   'ACCOUNT_LOCKED',
   'FORBIDDEN',
+  'PASSWORD_CHANGE_REQUIRED',
   'ORIGIN_REFUSED',
   'NOT_FOUND',
   'CONFLICT',

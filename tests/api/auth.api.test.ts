@@ -13,7 +13,9 @@ describe('POST /api/auth/login', () => {
   it('when the credentials are right, then it answers the user and sets an HttpOnly, SameSite=Lax session cookie', async () => {
     const res = await t.agent().post('/api/auth/login').send({ email: 'director@demo.test', password: DEMO_PASSWORD });
     expect(res.status).toBe(200);
-    expect(res.body).toEqual({ user: { id: expect.any(Number), email: 'director@demo.test', name: expect.any(String), role: 'director' } });
+    expect(res.body).toEqual({
+      user: { id: expect.any(Number), email: 'director@demo.test', name: expect.any(String), role: 'director', mustChangePassword: false },
+    });
     const cookie = String(res.headers['set-cookie']);
     expect(cookie).toMatch(/cristae\.sid=/);
     expect(cookie).toMatch(/HttpOnly/i);

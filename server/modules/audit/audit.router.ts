@@ -5,8 +5,8 @@ import { listAudit } from './audit.service';
 
 export function auditRouter(): Router {
   const r = Router();
-  route(r, 'GET /api/audit', { query: auditListQuerySchema }, async ({ query }, _req, res) => {
-    res.json(await listAudit(query));
+  route(r, 'GET /api/audit', { query: auditListQuerySchema }, async ({ query }, req, res) => {
+    res.json(await listAudit(query, req.user!));
   });
   return r;
 }

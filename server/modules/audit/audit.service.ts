@@ -1,4 +1,4 @@
-import type { Transaction } from 'sequelize';
+import { Op, type Transaction, type WhereOptions } from 'sequelize';
 import type { AuditEvent, AuditListQuery } from '@/schemas/audit';
 import type { User } from '@/schemas/user';
 import { AuditEventModel } from './audit.model';
@@ -49,11 +49,24 @@ function toEvent(row: AuditEventModel): AuditEvent {
   };
 }
 
-export async function listAudit(q: AuditListQuery): Promise<{ items: AuditEvent[]; total: number }> {
-  const where: Record<string, unknown> = {};
-  if (q.entity) where.entity = q.entity;
-  if (q.entityId) where.entityId = q.entityId;
-  if (q.caseId) where.caseId = q.caseId;
+/**
+ * What an administrator may read of the trail: accounts (including sign-ins and lock-outs) and the laboratory
+ * profile. An allow-list, so an entity added later stays hidden from administrators until someone decides
+ * otherwise; events tied to a case never show. Directors read everything.
+ */
+export const ADMIN_AUDIT_ENTITIES: readonly string[] = ['user', 'lab-profile'];
+
+function visibleTo(viewer: User): WhereOptions {
+  if (viewer.role !== 'admin') return {};
+  return { entity: { [Op.in]: ADMIN_AUDIT_ENTITIES }, caseId: null };
+}
+
+export async function listAudit(q: AuditListQuery, viewer: User): Promise<{ items: AuditEvent[]; total: number }> {
+  const filters: Record<string, unknown> = {};
+  if (q.entity) filters.entity = q.entity;
+  if (q.entityId) filters.entityId = q.entityId;
+  if (q.caseId) filters.caseId = q.caseId;
+  const where: WhereOptions = { [Op.and]: [filters, visibleTo(viewer)] };
   const pageSize = q.pageSize ?? 50;
   const page = q.page ?? 1;
   const { rows, count } = await AuditEventModel.findAndCountAll({

@@ -1,14 +1,16 @@
 import { Router, type Request } from 'express';
-import type { CristaePassport } from '../../auth/passport';
-import { rateLimit } from 'express-rate-limit';
-import { loginInputSchema, type User } from '@/schemas/user';
+import type { Sequelize } from 'sequelize';
+import { loginUser, type CristaePassport } from '../../auth/passport';
+import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
+import { changePasswordInputSchema, loginInputSchema, type SessionUser } from '@/schemas/user';
 import { AppError } from '../../lib/errors';
 import { route } from '../../lib/route';
 import { recordAudit } from '../audit/audit.service';
+import { changeOwnPassword } from '../users/users.service';
 
-function authenticate(passport: CristaePassport, req: Request): Promise<User> {
+function authenticate(passport: CristaePassport, req: Request): Promise<SessionUser> {
   return new Promise((resolve, reject) => {
-    passport.authenticate('local', (err: unknown, user: User | false) => {
+    passport.authenticate('local', (err: unknown, user: SessionUser | false) => {
       if (err) reject(err);
       else if (!user) reject(new AppError('VALIDATION_FAILED', 'Enter your e-mail address and password'));
       else resolve(user);
@@ -16,13 +18,25 @@ function authenticate(passport: CristaePassport, req: Request): Promise<User> {
   });
 }
 
-export function authRouter(passport: CristaePassport, opts: { loginAttemptsPerWindow: number }): Router {
+/** Opens the session for a checked user; passport 0.7 regenerates the session id, so a planted id is useless. */
+function logIn(req: Request, user: SessionUser): Promise<void> {
+  return new Promise<void>((resolve, reject) => req.login(user, (err) => (err ? reject(err) : resolve())));
+}
+
+export function authRouter(
+  sequelize: Sequelize,
+  passport: CristaePassport,
+  opts: { loginAttemptsPerWindow: number },
+): Router {
   const r = Router();
-  // Counts failed sign-ins per client address; successful ones are not counted.
+  // Counts failed sign-ins per client address; successful ones are not counted. The address is req.ip, which
+  // Express takes from X-Forwarded-For only when the proxy is trusted (TRUST_PROXY), so behind a reverse proxy
+  // each client has its own count instead of everyone sharing the proxy's address.
   const limiter = rateLimit({
     windowMs: 15 * 60_000,
     limit: opts.loginAttemptsPerWindow,
     skipSuccessfulRequests: true,
+    keyGenerator: (req) => ipKeyGenerator(req.ip ?? 'unknown'),
     standardHeaders: 'draft-8',
     legacyHeaders: false,
     handler: (_req, _res, next) =>
@@ -31,10 +45,16 @@ export function authRouter(passport: CristaePassport, opts: { loginAttemptsPerWi
 
   route(r, 'POST /api/auth/login', { body: loginInputSchema }, async (_in, req, res) => {
     const user = await authenticate(passport, req);
-    // passport 0.7 regenerates the session id inside req.login, so a planted id cannot be reused.
-    await new Promise<void>((resolve, reject) => req.login(user, (err) => (err ? reject(err) : resolve())));
+    await logIn(req, user);
     await recordAudit(user, { action: 'sign-in', entity: 'user', entityId: user.id });
     res.json({ user });
+  }, limiter);
+
+  // The person's own password: every other session of the account ends, this one continues under a new id.
+  route(r, 'POST /api/auth/password', { body: changePasswordInputSchema }, async ({ body }, req, res) => {
+    const account = await changeOwnPassword(sequelize, req.user!, body);
+    await logIn(req, loginUser(account));
+    res.status(204).end();
   }, limiter);
 
   route(r, 'POST /api/auth/logout', {}, async (_in, req, res) => {

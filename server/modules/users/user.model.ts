@@ -19,6 +19,9 @@ export class UserModel extends Model<InferAttributes<UserModel>, InferCreationAt
   declare active: CreationOptional<boolean>;
   declare failedLogins: CreationOptional<number>;
   declare lockedUntil: Date | null;
+  declare mustChangePassword: CreationOptional<boolean>;
+  declare passwordChangedAt: CreationOptional<Date | null>;
+  declare sessionGeneration: CreationOptional<number>;
   declare version: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -36,6 +39,9 @@ export function initUserModel(sequelize: Sequelize): void {
       active: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
       failedLogins: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
       lockedUntil: { type: DataTypes.DATE, allowNull: true },
+      mustChangePassword: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+      passwordChangedAt: { type: DataTypes.DATE, allowNull: true },
+      sessionGeneration: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
       version: editVersionColumn,
       ...timestampColumns,
     },

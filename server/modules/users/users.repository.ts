@@ -1,9 +1,9 @@
-import type { Transaction } from 'sequelize';
+import { literal, QueryTypes, type Transaction } from 'sequelize';
 import type { Role } from '@/schemas/common';
-import type { User, UserAccount } from '@/schemas/user';
+import type { SessionUser, User, UserAccount } from '@/schemas/user';
 import { UserModel } from './user.model';
 
-export type UserWithSecrets = UserAccount & { passwordHash: string; failedLogins: number };
+export type UserWithSecrets = UserAccount & { passwordHash: string; failedLogins: number; sessionGeneration: number };
 
 function toAccount(row: UserModel): UserWithSecrets {
   return {
@@ -14,10 +14,13 @@ function toAccount(row: UserModel): UserWithSecrets {
     role: row.role,
     active: row.active,
     lockedUntil: row.lockedUntil ? row.lockedUntil.toISOString() : null,
+    mustChangePassword: row.mustChangePassword,
+    passwordChangedAt: row.passwordChangedAt ? row.passwordChangedAt.toISOString() : null,
     version: row.version,
     createdAt: row.createdAt.toISOString(),
     passwordHash: row.passwordHash,
     failedLogins: row.failedLogins,
+    sessionGeneration: row.sessionGeneration,
   };
 }
 
@@ -25,8 +28,17 @@ export function publicUser(u: Pick<User, 'id' | 'email' | 'name' | 'role'>): Use
   return { id: u.id, email: u.email, name: u.name, role: u.role };
 }
 
-export function withoutSecrets({ passwordHash: _h, failedLogins: _f, ...account }: UserWithSecrets): UserAccount {
+export function withoutSecrets({
+  passwordHash: _h,
+  failedLogins: _f,
+  sessionGeneration: _g,
+  ...account
+}: UserWithSecrets): UserAccount {
   return account;
+}
+
+export function sessionUser(u: Pick<UserWithSecrets, 'id' | 'email' | 'name' | 'role' | 'mustChangePassword'>): SessionUser {
+  return { ...publicUser(u), mustChangePassword: u.mustChangePassword };
 }
 
 export async function findUserByEmail(email: string): Promise<UserWithSecrets | null> {
@@ -36,22 +48,26 @@ export async function findUserByEmail(email: string): Promise<UserWithSecrets | 
 
 // Every signed-in request looks its user up; the answer is kept briefly in memory and forgotten whenever this
 // repository (the only writer of users) changes that account, so a deactivation still takes effect at once.
-const sessionUserCache = new Map<number, { user: User | null; at: number }>();
+export type SessionAccount = { user: SessionUser; generation: number };
+const sessionUserCache = new Map<number, { account: SessionAccount | null; at: number }>();
 const SESSION_USER_TTL_MS = 30_000;
 
 function forgetUser(id: number): void {
   sessionUserCache.delete(id);
 }
 
-/** The active account behind a session, or null when it is gone or deactivated. */
-export async function findSessionUser(id: number): Promise<User | null> {
+/**
+ * The active account behind a session with its session generation (a session opened under an older generation
+ * has ended), or null when the account is gone or deactivated.
+ */
+export async function findSessionAccount(id: number): Promise<SessionAccount | null> {
   const hit = sessionUserCache.get(id);
-  if (hit && Date.now() - hit.at < SESSION_USER_TTL_MS) return hit.user;
+  if (hit && Date.now() - hit.at < SESSION_USER_TTL_MS) return hit.account;
   const row = await UserModel.findByPk(id);
-  const user = row && row.active ? publicUser(row) : null;
+  const account = row && row.active ? { user: sessionUser(row), generation: row.sessionGeneration } : null;
   if (sessionUserCache.size > 5000) sessionUserCache.clear();
-  sessionUserCache.set(id, { user, at: Date.now() });
-  return user;
+  sessionUserCache.set(id, { account, at: Date.now() });
+  return account;
 }
 
 export async function findUserById(id: number, transaction?: Transaction): Promise<UserWithSecrets | null> {
@@ -95,10 +111,65 @@ export async function updateUserIfVersion(
   return count === 1;
 }
 
-/** Sign-in bookkeeping: counters are not edits of the account, so they do not bump its version. */
-export async function setLoginState(id: number, failedLogins: number, lockedUntil: Date | null): Promise<void> {
+/**
+ * Stores a new password: ends every session opened before it (the generation rises), lifts any lock-out and
+ * records whether the person must choose another at the next sign-in. Bumps the version (it is an edit).
+ */
+export async function storePassword(
+  id: number,
+  change: { passwordHash: string; mustChangePassword: boolean; at: Date },
+  transaction: Transaction,
+): Promise<void> {
   forgetUser(id);
-  await UserModel.update({ failedLogins, lockedUntil }, { where: { id } });
+  await UserModel.update(
+    {
+      passwordHash: change.passwordHash,
+      mustChangePassword: change.mustChangePassword,
+      passwordChangedAt: change.at,
+      failedLogins: 0,
+      lockedUntil: null,
+      sessionGeneration: literal('"sessionGeneration" + 1') as never,
+      version: literal('"version" + 1') as never,
+    },
+    { where: { id }, transaction },
+  );
+  transaction.afterCommit(() => forgetUser(id));
+}
+
+export type FailureCount = { failedLogins: number; lockedUntil: Date | null };
+
+const toFailureCount = (row: { failedLogins: number; lockedUntil: string | null } | undefined): FailureCount | null =>
+  row ? { failedLogins: row.failedLogins, lockedUntil: row.lockedUntil ? new Date(row.lockedUntil) : null } : null;
+
+/**
+ * Counts one wrong password in a single statement, so concurrent failures can neither be lost nor read stale:
+ * every `threshold`-th failure in a row sets the lock. Answers the counter as this statement left it.
+ * Sign-in bookkeeping is not an edit of the account, so the version stays.
+ */
+export async function countFailedPassword(
+  id: number,
+  opts: { threshold: number; lockUntil: Date },
+  transaction: Transaction,
+): Promise<FailureCount | null> {
+  forgetUser(id);
+  const rows = await UserModel.sequelize!.query<{ failedLogins: number; lockedUntil: string | null }>(
+    `UPDATE users SET "failedLogins" = "failedLogins" + 1,
+       "lockedUntil" = CASE WHEN ("failedLogins" + 1) % :threshold = 0 THEN :lockUntil ELSE "lockedUntil" END
+     WHERE id = :id RETURNING "failedLogins", "lockedUntil"`,
+    { replacements: { id, ...opts }, type: QueryTypes.SELECT, transaction },
+  );
+  return toFailureCount(rows[0]);
+}
+
+/** The counter read inside the caller's write transaction (the serialised step that admits a right password). */
+export async function readFailureCount(id: number, transaction: Transaction): Promise<FailureCount | null> {
+  const row = await UserModel.findByPk(id, { attributes: ['failedLogins', 'lockedUntil'], transaction });
+  return row ? { failedLogins: row.failedLogins, lockedUntil: row.lockedUntil } : null;
+}
+
+export async function clearFailedPasswords(id: number, transaction: Transaction): Promise<void> {
+  forgetUser(id);
+  await UserModel.update({ failedLogins: 0, lockedUntil: null }, { where: { id }, transaction });
 }
 
 export async function countUsers(): Promise<number> {

@@ -1,6 +1,16 @@
 import type { Sequelize } from 'sequelize';
-import type { CreateUserInput, ResetPasswordInput, UpdateUserInput, User, UserAccount } from '@/schemas/user';
-import { hashPassword } from '../../auth/password';
+import type {
+  ChangePasswordInput,
+  CreateUserInput,
+  ResetPasswordInput,
+  UpdateUserInput,
+  User,
+  UserAccount,
+} from '@/schemas/user';
+import { admitRightPassword, countWrongPassword, refuseIfLocked } from '../../auth/lockout';
+import { hashPassword, verifyPassword } from '../../auth/password';
+import type { SignedInAccount } from '../../auth/sign-in';
+import { endSessionsOfUser } from '../../auth/user-sessions';
 import { AppError, notFound, staleVersion } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
 import * as repo from './users.repository';
@@ -65,7 +75,11 @@ export async function updateAccount(
   });
 }
 
-/** An admin sets a new password; this also lifts a lock-out. */
+/**
+ * An administrator sets a temporary password: every session of that account ends, any lock-out is lifted, and
+ * the person must choose their own password before anything else (so nobody signs a report with a password
+ * someone else chose). Audited without the password.
+ */
 export async function resetPassword(
   sequelize: Sequelize,
   actor: User,
@@ -76,7 +90,61 @@ export async function resetPassword(
   await writeTransaction(sequelize, async (transaction) => {
     const current = await repo.findUserById(id, transaction);
     if (!current) throw notFound('User', id);
-    await repo.updateUserIfVersion(id, current.version, { passwordHash, failedLogins: 0, lockedUntil: null }, transaction);
-    await recordAudit(actor, { action: 'reset-password', entity: 'user', entityId: id }, transaction);
+    await repo.storePassword(id, { passwordHash, mustChangePassword: true, at: new Date() }, transaction);
+    const ended = await endSessionsOfUser(sequelize, id, transaction);
+    await recordAudit(
+      actor,
+      {
+        action: 'reset-password',
+        entity: 'user',
+        entityId: id,
+        after: { mustChangePassword: true, sessionsEnded: ended },
+        note: 'Temporary password set by an administrator; the person must choose their own at the next sign-in',
+      },
+      transaction,
+    );
+  });
+}
+
+const wrongCurrentPassword = () =>
+  new AppError('BAD_CREDENTIALS', 'Your current password is not correct', {
+    fields: { currentPassword: 'This is not your current password' },
+  });
+
+/**
+ * A person changes their own password: the current one is checked (a wrong one counts toward the lock-out),
+ * the new one is stored, the forced change (if any) is done, and every other session of the account ends.
+ * Returns the account as the caller's own session should continue with it.
+ */
+export async function changeOwnPassword(
+  sequelize: Sequelize,
+  actor: User,
+  input: ChangePasswordInput,
+): Promise<SignedInAccount> {
+  const now = new Date();
+  const account = await repo.findUserById(actor.id);
+  if (!account || !account.active) throw wrongCurrentPassword();
+  refuseIfLocked(account.lockedUntil, now);
+  if (!(await verifyPassword(input.currentPassword, account.passwordHash))) {
+    return countWrongPassword(sequelize, { userId: account.id }, wrongCurrentPassword, now);
+  }
+  await admitRightPassword(sequelize, account.id, now);
+  const passwordHash = await hashPassword(input.newPassword);
+  return writeTransaction(sequelize, async (transaction) => {
+    await repo.storePassword(account.id, { passwordHash, mustChangePassword: false, at: now }, transaction);
+    const ended = await endSessionsOfUser(sequelize, account.id, transaction);
+    await recordAudit(
+      actor,
+      {
+        action: 'change-password',
+        entity: 'user',
+        entityId: account.id,
+        after: { mustChangePassword: false, sessionsEnded: ended },
+        note: account.mustChangePassword ? 'Own password chosen after an administrator’s reset' : 'Own password changed',
+      },
+      transaction,
+    );
+    const after = (await repo.findUserById(account.id, transaction))!;
+    return { user: repo.sessionUser(after), generation: after.sessionGeneration };
   });
 }
