@@ -1,21 +1,10 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
-import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
+import { freePort } from '../../setup/free-port';
 
 export type RunningServer = { origin: string; port: number; dataDir: string; stop: () => Promise<void> };
-
-async function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const srv = net.createServer();
-    srv.listen(0, '127.0.0.1', () => {
-      const { port } = srv.address() as net.AddressInfo;
-      srv.close(() => resolve(port));
-    });
-    srv.on('error', reject);
-  });
-}
 
 /**
  * Starts the real server (the same command as npm start, minus the build, which npm test has done) on a free
