@@ -2,9 +2,11 @@ import { z } from 'zod';
 import {
   assayCodeSchema,
   measureSchema,
+  specimenClassOf,
   specimenTypeSchema,
   type AssayCode,
   type Measure,
+  type SpecimenType,
 } from './common';
 
 /*
@@ -38,16 +40,71 @@ const finite = (field: string) =>
 
 const positive = (field: string) => finite(field).positive(`${field} must be greater than 0`);
 
+/*
+ * Physical limits of a reading [common practice]: ranges that no real cuvette, plate well, pipette or
+ * homogenate reaches, so a value outside them is a typing or unit mistake and is refused (400, naming the
+ * field) before anything is computed or stored. They are deliberately wide; plausibility of the result is
+ * judged separately, per assay definition.
+ */
+export const physicalLimits = {
+  /** 0.1 mm micro-cells to 10 cm long-path cells. */
+  pathlengthCm: { min: 0.01, max: 10, unit: 'cm' },
+  /** A plate well's few µL to a 10 mL cell. */
+  reactionVolumeUl: { min: 1, max: 10_000, unit: 'µL' },
+  /** The smallest volume a pipette delivers to the reaction volume's ceiling. */
+  sampleVolumeUl: { min: 0.1, max: 10_000, unit: 'µL' },
+  /** Homogenate or mitochondrial protein; pure protein is about 1 300 mg/mL, no solution comes near 500. */
+  proteinMgPerMl: { min: 0.001, max: 500, unit: 'mg/mL' },
+  /** |ΔA/min|: no photometer follows a change of 10 absorbance units a minute. */
+  ratePerMin: { min: -10, max: 10, unit: 'A/min' },
+  /** Readings below −1 or above 10 absorbance units are not absorbances (photometers read up to about 4–6). */
+  absorbance: { min: -1, max: 10, unit: 'A' },
+  /** Reading times, seconds from the start of the recording, within a day either side. */
+  timeS: { min: -86_400, max: 86_400, unit: 's' },
+} as const;
+export type PhysicalQuantity = keyof typeof physicalLimits;
+
+/** A finite number within the physical limits of `quantity`, with messages that name `label`. */
+export function physicalNumber(quantity: PhysicalQuantity, label: string) {
+  const { min, max, unit } = physicalLimits[quantity];
+  return finite(label)
+    .min(min, `${label} must be at least ${min} ${unit}`)
+    .max(max, `${label} must be at most ${max.toLocaleString('en-US')} ${unit}`);
+}
+
+/**
+ * Limits that decide when a computed rate is trusted (docs/domain.md, "Rates"). Added in the second release;
+ * definition versions stored before it are read with the defaults below (storedDefinitionData).
+ */
+const qualityLimitFields = {
+  /** Largest estimated change of the rate across a window (%, from the quadratic term) that still counts as straight. */
+  curvatureLimitPct: positive('curvatureLimitPct').max(50, 'curvatureLimitPct is at most 50'),
+  /** How far into the trace (s) the automatic window may start, to step past a lag. 0 = always the first reading. */
+  lagMaxS: finite('lagMaxS').min(0, 'lagMaxS cannot be negative').max(3600, 'lagMaxS is at most 3600 s'),
+  /** A reading further than this many residual SDs from the fitted line is flagged. */
+  outlierLimitSd: finite('outlierLimitSd').min(2, 'outlierLimitSd is at least 2').max(20, 'outlierLimitSd is at most 20'),
+  /** Smallest residual SD (absorbance units) the outlier test assumes: the instrument's own noise. */
+  readingNoiseFloor: positive('readingNoiseFloor').max(0.1, 'readingNoiseFloor is at most 0.1'),
+  /** Background (inhibitor-insensitive or pre-substrate) rate above this % of the total rate is flagged. */
+  maxBackgroundPct: positive('maxBackgroundPct').max(100, 'maxBackgroundPct is at most 100'),
+  /** No-sample blank rate above this % of the total rate is flagged. */
+  maxBlankPct: positive('maxBlankPct').max(100, 'maxBlankPct is at most 100'),
+  /** Activities above this (nmol/min/mg) are not given: almost always a unit or entry mistake. */
+  plausibleActivityMax: positive('plausibleActivityMax').max(1e6, 'plausibleActivityMax is at most 1 000 000'),
+};
+
 /** The fields of a definition; cross-field rules are added in assayDefinitionSchema below. */
 export const assayDefinitionFieldsSchema = z
   .object({
     code: assayCodeSchema,
     version: z.number().int('version must be a whole number').positive('version starts at 1'),
     name: z.string().trim().min(1, 'name is required').max(120, 'name is at most 120 characters'),
-    wavelengthNm: positive('wavelengthNm'),
+    wavelengthNm: finite('wavelengthNm').min(190, 'wavelengthNm is 190 to 1100 (a UV–visible photometer)').max(1100, 'wavelengthNm is 190 to 1100 (a UV–visible photometer)'),
     chromophore: z.string().trim().min(1, 'chromophore is required').max(80),
     /** Extinction coefficient in mM⁻¹·cm⁻¹; lab-set, stored with its source. */
-    epsilonPerMmPerCm: positive('epsilonPerMmPerCm'),
+    epsilonPerMmPerCm: finite('epsilonPerMmPerCm')
+      .min(0.1, 'epsilonPerMmPerCm is 0.1 to 1000 mM⁻¹·cm⁻¹ (every chromophore in use lies between about 1 and 200)')
+      .max(1000, 'epsilonPerMmPerCm is 0.1 to 1000 mM⁻¹·cm⁻¹ (every chromophore in use lies between about 1 and 200)'),
     epsilonSource: z.string().trim().min(1, 'epsilonSource is required').max(500),
     direction: absorbanceDirectionSchema,
     background: backgroundKindSchema,
@@ -67,6 +124,7 @@ export const assayDefinitionFieldsSchema = z
     ),
     /** Replicate CV% above this flags the mean. */
     cvLimitPct: positive('cvLimitPct'),
+    ...qualityLimitFields,
   });
 
 export const assayDefinitionSchema = assayDefinitionFieldsSchema
@@ -92,7 +150,36 @@ const defaultLabSettings = {
   linearRangeMax: 2,
   nearZeroSlopePerMin: 0.001,
   cvLimitPct: 15,
+  curvatureLimitPct: 5,
+  lagMaxS: 120,
+  outlierLimitSd: 4,
+  readingNoiseFloor: 0.002,
+  maxBackgroundPct: 70,
+  maxBlankPct: 50,
 } as const;
+
+/*
+ * Plausible activity ceilings, nmol/min/mg protein [common practice starting values, set by each laboratory]:
+ * roughly ten times the highest activities reported for isolated mitochondria, so that a real sample never
+ * reaches them and a rate typed in the wrong unit (×1000) always does.
+ */
+const plausibleActivityMax: Record<AssayCode, number> = {
+  CI: 5000,
+  CII: 5000,
+  CIII: 20000,
+  CIV: 20000,
+  'CI+III': 5000,
+  'CII+III': 5000,
+  CS: 20000,
+};
+
+/**
+ * A stored definition version as saved: versions from before the quality limits existed are read with the
+ * defaults (they were computed without those checks; the defaults describe what applies to them now).
+ */
+export function storedDefinitionData(data: Record<string, unknown> & { code: AssayCode }): Record<string, unknown> {
+  return { ...defaultLabSettings, plausibleActivityMax: plausibleActivityMax[data.code], ...data };
+}
 
 /** The seven published defaults (version 1), wavelengths and ε from docs/domain.md §1. */
 export const defaultAssayDefinitions: readonly AssayDefinition[] = [
@@ -109,6 +196,7 @@ export const defaultAssayDefinitions: readonly AssayDefinition[] = [
     backgroundNote: 'rotenone',
     rateModel: 'linear',
     ...defaultLabSettings,
+    plausibleActivityMax: plausibleActivityMax['CI'],
   },
   {
     code: 'CII',
@@ -123,6 +211,7 @@ export const defaultAssayDefinitions: readonly AssayDefinition[] = [
     backgroundNote: 'baseline before succinate',
     rateModel: 'linear',
     ...defaultLabSettings,
+    plausibleActivityMax: plausibleActivityMax['CII'],
   },
   {
     code: 'CIII',
@@ -137,6 +226,7 @@ export const defaultAssayDefinitions: readonly AssayDefinition[] = [
     backgroundNote: 'antimycin A',
     rateModel: 'linear',
     ...defaultLabSettings,
+    plausibleActivityMax: plausibleActivityMax['CIII'],
   },
   {
     code: 'CIV',
@@ -151,6 +241,7 @@ export const defaultAssayDefinitions: readonly AssayDefinition[] = [
     backgroundNote: '',
     rateModel: 'linear',
     ...defaultLabSettings,
+    plausibleActivityMax: plausibleActivityMax['CIV'],
   },
   {
     code: 'CI+III',
@@ -165,6 +256,7 @@ export const defaultAssayDefinitions: readonly AssayDefinition[] = [
     backgroundNote: 'rotenone',
     rateModel: 'linear',
     ...defaultLabSettings,
+    plausibleActivityMax: plausibleActivityMax['CI+III'],
   },
   {
     code: 'CII+III',
@@ -179,6 +271,7 @@ export const defaultAssayDefinitions: readonly AssayDefinition[] = [
     backgroundNote: '',
     rateModel: 'linear',
     ...defaultLabSettings,
+    plausibleActivityMax: plausibleActivityMax['CII+III'],
   },
   {
     code: 'CS',
@@ -193,6 +286,7 @@ export const defaultAssayDefinitions: readonly AssayDefinition[] = [
     backgroundNote: 'baseline before oxaloacetate',
     rateModel: 'linear',
     ...defaultLabSettings,
+    plausibleActivityMax: plausibleActivityMax['CS'],
   },
 ];
 
@@ -239,11 +333,32 @@ export const flagCodes = [
   'BASIS_MISMATCH',
   /** A value needed for the calculation is missing. */
   'MISSING_VALUE',
+  /** The rate changes across the window by more than the definition's curvature limit (manual windows). */
+  'CURVATURE',
+  /** No stretch of the trace is straight enough for the automatic window; no activity is given. */
+  'NO_LINEAR_WINDOW',
+  /** The automatic window starts after a slower opening stretch (a lag), which is left out. */
+  'LAG_EXCLUDED',
+  /** One reading lies far off the fitted line (a bubble, a knock, a lid). */
+  'OUTLIER_READING',
+  /** Most of the total rate remains with the inhibitor (or before the substrate). */
+  'HIGH_BACKGROUND_FRACTION',
+  /** Most of the total rate is also in the no-sample blank. */
+  'HIGH_BLANK_FRACTION',
+  /** The activity is above the definition's plausible ceiling; no activity is given. */
+  'IMPLAUSIBLE_ACTIVITY',
+  /** An end-point absorbance A∞ was given to a definition that does not use it. */
+  'A_INFINITY_UNUSED',
 ] as const;
 export const flagCodeSchema = z.enum(flagCodes);
 export type FlagCode = z.infer<typeof flagCodeSchema>;
 
-export const flagSchema = z.object({ code: flagCodeSchema, message: z.string() });
+/** `values`: the numbers behind the flag (e.g. `{ lossPct: 27.4 }`), for tables and traceability. */
+export const flagSchema = z.object({
+  code: flagCodeSchema,
+  message: z.string(),
+  values: z.record(z.string(), z.number()).optional(),
+});
 export type Flag = z.infer<typeof flagSchema>;
 
 /* ----------------------------------------------------------------------------------------------
@@ -251,7 +366,10 @@ export type Flag = z.infer<typeof flagSchema>;
  * -------------------------------------------------------------------------------------------- */
 
 /** One reading: t in seconds, a in absorbance units. */
-export const tracePointSchema = z.strictObject({ t: finite('t'), a: finite('a') });
+export const tracePointSchema = z.strictObject({
+  t: physicalNumber('timeS', 't'),
+  a: physicalNumber('absorbance', 'a'),
+});
 export type TracePoint = z.infer<typeof tracePointSchema>;
 
 export const traceSchema = z.array(tracePointSchema);
@@ -269,17 +387,17 @@ const traceWithMinimum = (field: string) =>
 
 /** Both ends inclusive, in seconds. */
 export const rateWindowSchema = z
-  .strictObject({ fromS: finite('window.fromS'), toS: finite('window.toS') })
+  .strictObject({ fromS: physicalNumber('timeS', 'window.fromS'), toS: physicalNumber('timeS', 'window.toS') })
   .refine((w) => w.toS > w.fromS, { path: ['toS'], message: 'window.toS must be after window.fromS' });
 export type RateWindow = z.infer<typeof rateWindowSchema>;
 
 export const calculationRequestSchema = z
   .strictObject({
     assay: assayCodeSchema,
-    pathlengthCm: positive('pathlengthCm'),
-    reactionVolumeUl: positive('reactionVolumeUl'),
-    sampleVolumeUl: positive('sampleVolumeUl'),
-    proteinMgPerMl: positive('proteinMgPerMl'),
+    pathlengthCm: physicalNumber('pathlengthCm', 'pathlengthCm'),
+    reactionVolumeUl: physicalNumber('reactionVolumeUl', 'reactionVolumeUl'),
+    sampleVolumeUl: physicalNumber('sampleVolumeUl', 'sampleVolumeUl'),
+    proteinMgPerMl: physicalNumber('proteinMgPerMl', 'proteinMgPerMl'),
     total: traceWithMinimum('total'),
     background: traceWithMinimum('background').optional(),
     window: rateWindowSchema.optional(),
@@ -305,7 +423,11 @@ export const fittedLineSchema = z.object({
 export type FittedLine = z.infer<typeof fittedLineSchema>;
 
 export const ACTIVITY_UNIT = 'nmol/min/mg protein' as const;
-export const FIRST_ORDER_UNIT = 'min⁻¹ per mg protein' as const;
+/**
+ * k divided by the protein concentration in the reaction: (min⁻¹)/(mg/mL) = mL·min⁻¹·mg⁻¹. Independent of the
+ * reaction volume; numerically "k per mg protein" only in a 1 mL reaction, which is why it is not labelled so.
+ */
+export const FIRST_ORDER_UNIT = 'mL·min⁻¹·mg⁻¹ (k per mg/mL protein in the reaction)' as const;
 
 /**
  * Complex IV as an apparent first-order rate constant. `basis: 'first_order_k'` marks it: it is never
@@ -319,7 +441,7 @@ export const firstOrderResultSchema = z.object({
   kTotalPerMin: z.number().nullable(),
   kBackgroundPerMin: z.number().nullable(),
   r2: z.number().nullable(),
-  /** k divided by the protein concentration in the reaction (mg/mL); equals k per mg in a 1 mL reaction. */
+  /** k divided by the protein concentration in the reaction (mg/mL), in FIRST_ORDER_UNIT; equals k per mg only in a 1 mL reaction. */
   kPerMg: z.number().nullable(),
   unit: z.literal(FIRST_ORDER_UNIT),
   window: rateWindowSchema.nullable(),
@@ -407,6 +529,14 @@ export type CriteriaBand = (typeof criteriaBands)[number];
 export const diagnosticCriteriaSchema = z.object({
   id: z.string().min(1),
   citation: z.string().min(1),
+  /**
+   * Which value the thresholds are applied to: the activity relative to citrate synthase (`ratio_cs`, the
+   * marker the pattern reads), relative to complex II, or the activity per mg protein. Other measures carry
+   * no band. Compared, in every case, as % of the mean of that measure's reference interval.
+   */
+  appliesTo: measureSchema,
+  /** Where the choice of `appliesTo` comes from, with its certainty tag; printed beside the bands. */
+  appliesToSource: z.string().min(1),
   tissue: z.object({ majorBelowPct: z.number().positive(), minorBelowPct: z.number().positive() }),
   cellLine: z.object({ majorBelowPct: z.number().positive(), minorBelowPct: z.number().positive() }),
   /** Same complex in two or more tissues; judged by the director across specimens, not per value. */
@@ -422,10 +552,21 @@ export const defaultDiagnosticCriteria: DiagnosticCriteria = {
   id: 'bernier-2002-enzyme',
   citation:
     'Bernier FP et al., "Diagnostic criteria for respiratory chain disorders in adults and children", Neurology 2002;59:1406–1411 [from memory; a director-approved, configurable rule set]',
+  appliesTo: 'ratio_cs',
+  appliesToSource:
+    'The criteria compare an enzyme activity with the control mean (% of control mean); applying them to the activity relative to citrate synthase, which corrects for mitochondrial content, is common practice in respiratory-chain diagnostics [common practice; not stated as such in the criteria themselves, as recalled]',
   tissue: { majorBelowPct: 20, minorBelowPct: 30 },
   cellLine: { majorBelowPct: 30, minorBelowPct: 40 },
   multipleTissues: { majorBelowPct: 30, minorBelowPct: 40 },
 };
+
+/** The thresholds that apply to a specimen type: cell-line thresholds for cultured cells, tissue ones otherwise. */
+export function criteriaRuleFor(
+  specimenType: SpecimenType,
+  criteria: DiagnosticCriteria = defaultDiagnosticCriteria,
+): { majorBelowPct: number; minorBelowPct: number } {
+  return specimenClassOf(specimenType) === 'cell_line' ? criteria.cellLine : criteria.tissue;
+}
 
 export const patternKinds = [
   'normal',

@@ -89,6 +89,10 @@ export const reportResultSchema = z.object({
   status: resultStatusSchema,
   pctOfMean: z.number().finite().nullable(),
   criterionBand: criterionBandSchema.nullable(),
+  /** Why the band stands although the pattern shows no deficiency (printed with the row's notes). */
+  criterionBandNote: optionalText.optional(),
+  /** Criterion thresholds (% of mean) the band was decided against; the printed % never crosses them. */
+  pctThresholds: z.array(z.number().finite()).max(4).optional(),
   flags: z.array(text),
   /** Reporting precision set by the assay definition; significant-figure rule when absent. */
   decimals: z.number().int().min(0).max(6).optional(),

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { flagSchema, patternKinds, valueBasisSchema } from './assay';
+import { diagnosticCriteriaSchema, flagSchema, patternKinds, valueBasisSchema } from './assay';
 import { caseStateSchema } from './case';
 import { assayCodeSchema, measureSchema, specimenTypeSchema, type AssayCode } from './common';
 
@@ -49,8 +49,13 @@ export const resultComparisonSchema = z.object({
   position: intervalPositionSchema.nullable(),
   percentOfMean: z.number().nullable(),
   zScore: z.number().nullable(),
-  /** Band of the diagnostic criteria (% of the reference mean); null for citrate synthase or with no comparison. */
+  /**
+   * Band of the diagnostic criteria (% of the reference mean, decided unrounded); null for citrate synthase,
+   * for a measure the rule set does not apply to, or with no comparison.
+   */
   band: criteriaBandSchema.nullable(),
+  /** Why the band stands although the pattern shows no deficiency; absent in snapshots taken before it existed. */
+  bandNote: z.string().nullable().optional(),
   flags: z.array(flagSchema),
 });
 export type ResultComparison = z.infer<typeof resultComparisonSchema>;
@@ -119,6 +124,8 @@ export const patternResultSchema = z.object({
   findings: z.array(patternFindingSchema),
   notes: z.array(z.string()),
   criteriaCitation: z.string(),
+  /** The rule set the bands were decided with; absent in snapshots taken before it was recorded (then the default). */
+  criteria: diagnosticCriteriaSchema.optional(),
 });
 export type PatternResult = z.infer<typeof patternResultSchema>;
 

@@ -1,4 +1,5 @@
 import {
+  criteriaRuleFor,
   defaultDiagnosticCriteria,
   type ComparisonInterval,
   type CriteriaBand,
@@ -7,7 +8,7 @@ import {
   type IntervalPosition,
   type ValueBasis,
 } from '@/schemas/assay';
-import { specimenClassOf, specimenTypeLabels, type AssayCode, type Measure, type SpecimenType } from '@/schemas/common';
+import { specimenTypeLabels, type AssayCode, type Measure, type SpecimenType } from '@/schemas/common';
 import { percentOfMean, zScore } from './normalise';
 import { fmt } from './trace';
 
@@ -34,8 +35,13 @@ export interface Comparison {
   position: IntervalPosition | null;
   percentOfMean: number | null;
   zScore: number | null;
-  /** Band of the diagnostic criteria; null for citrate synthase and whenever no comparison was made. */
+  /**
+   * Band of the diagnostic criteria; null for citrate synthase, for a measure the rule set does not apply
+   * to (criteria.appliesTo) and whenever no comparison was made.
+   */
   band: CriteriaBand | null;
+  /** Why a band is shown that the case's pattern does not reflect; set by summarisePattern. */
+  bandNote: string | null;
   flags: Flag[];
 }
 
@@ -87,7 +93,7 @@ export function criteriaBand(
   specimenType: SpecimenType,
   criteria: DiagnosticCriteria = defaultDiagnosticCriteria,
 ): CriteriaBand {
-  const rule = specimenClassOf(specimenType) === 'cell_line' ? criteria.cellLine : criteria.tissue;
+  const rule = criteriaRuleFor(specimenType, criteria);
   if (pct < rule.majorBelowPct) return 'major';
   if (pct < rule.minorBelowPct) return 'minor';
   return 'not_met';
@@ -101,7 +107,8 @@ export function measureLabel(assay: AssayCode, measure: Measure): string {
 
 /**
  * A value against its interval: below, within (bounds inclusive) or above; % of the reference mean;
- * z-score when the SD is known; and the criteria band for respiratory-chain complexes.
+ * z-score when the SD is known; and the criteria band for respiratory-chain complexes, on the measure the
+ * rule set applies to (by default the ratio to citrate synthase), decided on the unrounded % of mean.
  */
 export function compareValue(
   v: ValueToCompare,
@@ -121,6 +128,7 @@ export function compareValue(
     percentOfMean: null,
     zScore: null,
     band: null,
+    bandNote: null,
     flags,
   };
   const label = measureLabel(v.assay, v.measure);
@@ -146,6 +154,7 @@ export function compareValue(
   base.position = value < interval.lower ? 'below' : value > interval.upper ? 'above' : 'within';
   base.percentOfMean = percentOfMean(value, interval.mean);
   base.zScore = zScore(value, interval.mean, interval.sd);
-  base.band = v.assay === 'CS' ? null : criteriaBand(base.percentOfMean, context.specimenType, criteria);
+  const banded = v.assay !== 'CS' && v.measure === criteria.appliesTo;
+  base.band = banded ? criteriaBand(base.percentOfMean, context.specimenType, criteria) : null;
   return base;
 }

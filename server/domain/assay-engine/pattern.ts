@@ -9,6 +9,13 @@ import {
 } from '@/schemas/assay';
 import type { AssayCode, Measure } from '@/schemas/common';
 import {
+  bandThresholds,
+  formatPercentOfMean,
+  formatResultNumber,
+  intervalThresholds,
+  type Thresholds,
+} from '@/schemas/result-format';
+import {
   compareValue,
   findInterval,
   measureLabel,
@@ -16,7 +23,6 @@ import {
   type ComparisonContext,
 } from './compare';
 import { computeRatios, type ActivityMap } from './normalise';
-import { fmt } from './trace';
 
 /*
  * Case-level reading of the numbers, after docs/domain.md §2: an isolated defect shows low X/CS and
@@ -45,7 +51,7 @@ export interface EvidenceLine {
   position: IntervalPosition;
   percentOfMean: number;
   band: CriteriaBand | null;
-  /** e.g. "CI/CS 0.06 is below the interval 0.15–0.35 (24% of the reference mean; DEMO …)". */
+  /** e.g. "CI/CS 0.06 is below the interval 0.15–0.35 (24% of the reference mean; DEMO …)"; printed as on screen and report. */
   text: string;
 }
 
@@ -64,6 +70,8 @@ export interface PatternSummary {
   /** Plain remarks that are not findings (missing values, intervals not found). */
   notes: string[];
   criteriaCitation: string;
+  /** The rule set the bands were decided with (thresholds and the measure they apply to). */
+  criteria: DiagnosticCriteria;
 }
 
 const complexNames: Record<AssayCode, string> = {
@@ -79,7 +87,7 @@ const complexNames: Record<AssayCode, string> = {
 const singleComplexes = ['CI', 'CII', 'CIII', 'CIV'] as const satisfies readonly AssayCode[];
 const linkedActivities = ['CI+III', 'CII+III'] as const satisfies readonly AssayCode[];
 
-function evidenceOf(c: Comparison | undefined): EvidenceLine | null {
+function evidenceOf(c: Comparison | undefined, pctThresholds: Thresholds): EvidenceLine | null {
   if (!c || !c.interval || c.position === null || c.percentOfMean === null || c.value === null) return null;
   const i = c.interval;
   const pos = c.position === 'within' ? 'is within' : `is ${c.position}`;
@@ -96,7 +104,7 @@ function evidenceOf(c: Comparison | undefined): EvidenceLine | null {
     position: c.position,
     percentOfMean: c.percentOfMean,
     band: c.band,
-    text: `${measureLabel(c.assay, c.measure)} ${fmt(c.value, 3)} ${pos} the interval ${fmt(i.lower, 3)}–${fmt(i.upper, 3)} (${fmt(c.percentOfMean, 3)}% of the reference mean${band}; ${i.setLabel} v${i.version})`,
+    text: `${measureLabel(c.assay, c.measure)} ${formatResultNumber(c.value, undefined, intervalThresholds(i))} ${pos} the interval ${formatResultNumber(i.lower)}–${formatResultNumber(i.upper)} (${formatPercentOfMean(c.percentOfMean, pctThresholds)} of the reference mean${band}; ${i.setLabel} v${i.version})`,
   };
 }
 
@@ -106,9 +114,9 @@ function listNames(codes: readonly AssayCode[]): string {
   return `${names.slice(0, -1).join(', ')} and ${names[names.length - 1]}`;
 }
 
-function pushEvidence(target: EvidenceLine[], ...cs: (Comparison | undefined)[]): void {
+function pushEvidenceWith(pctThresholds: Thresholds, target: EvidenceLine[], cs: (Comparison | undefined)[]): void {
   for (const c of cs) {
-    const e = evidenceOf(c);
+    const e = evidenceOf(c, pctThresholds);
     if (e) target.push(e);
   }
 }
@@ -121,6 +129,8 @@ export function summarisePattern(input: PatternInput): PatternSummary {
   const byKey = new Map<string, Comparison>();
   const notes: string[] = [];
   const basisOf = (a: AssayCode): ValueBasis => input.bases?.[a] ?? 'linear_rate';
+  const pctThresholds = bandThresholds(input.specimenType, criteria);
+  const pushEvidence = (target: EvidenceLine[], ...cs: (Comparison | undefined)[]) => pushEvidenceWith(pctThresholds, target, cs);
 
   const add = (assay: AssayCode, measure: Measure, value: number | null, basis: ValueBasis) => {
     const interval = findInterval(input.intervals, assay, measure, context, basis);
@@ -155,7 +165,7 @@ export function summarisePattern(input: PatternInput): PatternSummary {
       complexes: [],
       evidence: [],
     });
-    return finish(findings, comparisons, notes, criteria);
+    return finish(findings, comparisons, notes, criteria, pctThresholds);
   }
 
   const ciiToCs = pos('CII', 'ratio_cs');
@@ -249,7 +259,7 @@ export function summarisePattern(input: PatternInput): PatternSummary {
       evidence,
     });
   }
-  return finish(findings, comparisons, notes, criteria);
+  return finish(findings, comparisons, notes, criteria, pctThresholds);
 }
 
 function dedupe(lines: EvidenceLine[]): EvidenceLine[] {
@@ -262,17 +272,73 @@ function dedupe(lines: EvidenceLine[]): EvidenceLine[] {
   });
 }
 
+const deficiencyKinds: readonly PatternKind[] = ['isolated_deficiency', 'combined_deficiency', 'linked_activity_low'];
+
+/** Why the pattern does not count a value that sits in a criterion band, in words a reader can check. */
+function bandReason(c: Comparison, get: (a: AssayCode, m: Measure) => Comparison | undefined, csRaised: boolean): string {
+  const x = c.assay;
+  const toCs = get(x, 'ratio_cs');
+  if (c.measure === 'activity') {
+    if (toCs?.position === 'within' || toCs?.position === 'above') {
+      return 'low activity with a normal ratio to citrate synthase: this suggests low mitochondrial content (or a specimen of poor quality), not a respiratory-chain defect';
+    }
+    if (toCs?.position !== 'below') {
+      return 'no ratio to citrate synthase could be compared, so the pattern cannot tell a defect from low mitochondrial content';
+    }
+  } else if (c.position !== 'below') {
+    return `${measureLabel(x, c.measure)} is still within its reference interval, so the pattern does not count it as low; the band only describes how far it is from the reference mean`;
+  }
+  if (csRaised) {
+    return 'citrate synthase is raised, which lowers every ratio to it; the band may reflect the raised citrate synthase rather than a defect';
+  }
+  const toCii = get(x, 'ratio_cii');
+  if (c.measure !== 'ratio_cii' && toCii?.position && toCii.position !== 'below') {
+    return `${measureLabel(x, 'ratio_cii')} is within its interval while complex II relative to citrate synthase is normal, so a defect of ${complexNames[x]} is not shown`;
+  }
+  if (c.measure === 'ratio_cii' && toCs?.position && toCs.position !== 'below') {
+    return `${measureLabel(x, 'ratio_cs')} is within its interval; the pattern reads the ratio to citrate synthase, and a low ratio to complex II alone may reflect a raised complex II`;
+  }
+  return `the pattern does not count ${complexNames[x]} as deficient`;
+}
+
+/**
+ * A band the pattern does not reflect (a complex in a band that no deficiency finding names) gets its
+ * reason, on the comparison and among the notes, so no band stands beside a pattern that contradicts it
+ * unexplained.
+ */
+function explainBands(findings: PatternFinding[], comparisons: Comparison[], notes: string[], pctThresholds: Thresholds): void {
+  const reflected = new Set<string>();
+  for (const f of findings) {
+    if (!deficiencyKinds.includes(f.kind)) continue;
+    for (const a of f.complexes) for (const m of ['activity', 'ratio_cs', 'ratio_cii'] as const) reflected.add(`${a}:${m}`);
+    for (const e of f.evidence) if (e.position === 'below') reflected.add(`${e.assay}:${e.measure}`);
+  }
+  const byKey = new Map(comparisons.map((c) => [`${c.assay}:${c.measure}`, c]));
+  const get = (a: AssayCode, m: Measure) => byKey.get(`${a}:${m}`);
+  const csRaised = get('CS', 'activity')?.position === 'above';
+  for (const c of comparisons) {
+    if (c.band !== 'major' && c.band !== 'minor') continue;
+    if (reflected.has(`${c.assay}:${c.measure}`)) continue;
+    const pct = c.percentOfMean === null ? '' : ` (${formatPercentOfMean(c.percentOfMean, pctThresholds)} of the reference mean)`;
+    c.bandNote = `${measureLabel(c.assay, c.measure)}${pct} is in the ${c.band} band of the criteria, but the pattern shows no deficiency of ${complexNames[c.assay]}: ${bandReason(c, get, csRaised)}`;
+    notes.push(c.bandNote);
+  }
+}
+
 function finish(
   findings: PatternFinding[],
   comparisons: Comparison[],
   notes: string[],
   criteria: DiagnosticCriteria,
+  pctThresholds: Thresholds,
 ): PatternSummary {
+  explainBands(findings, comparisons, notes, pctThresholds);
   return {
     findings,
     headline: findings.map((f) => f.label).join('; '),
     comparisons,
     notes,
     criteriaCitation: criteria.citation,
+    criteria,
   };
 }

@@ -116,7 +116,7 @@ export function drawBarGraphic(c: Composer, graphic: ReportGraphic, title = 'Act
         doc.save().moveTo(end - 9, y + BAR_HEIGHT + 1).lineTo(end - 5, y - 1);
         doc.lineWidth(1.6).strokeColor('#ffffff').stroke().restore();
       }
-      labels.push({ text: formatPercent(value), x: end + 3, y });
+      labels.push({ text: formatPercent(value, bands ? { below: [bands.majorBelowPct, bands.minorBelowPct] } : {}), x: end + 3, y });
     });
   });
 

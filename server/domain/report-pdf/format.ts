@@ -1,10 +1,11 @@
+import { formatPercentOfMean, formatResultNumber, type Thresholds } from '@/schemas/result-format';
+
 /**
  * Printing rules for numbers and dates on the report. Dates are written day, month name, year so
  * that no reader can swap day and month; date-times carry their UTC offset.
  */
 
 const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
-const MINUS = '\u2212';
 
 function monthName(month: number): string {
   const name = MONTHS[month - 1];
@@ -46,21 +47,15 @@ export function formatDateOrDateTime(value: string, timeZone?: string): string {
 
 /**
  * Fixed decimals when the assay definition sets them; otherwise three significant figures, never
- * fewer than zero decimals (1234 -> '1234', 56.78 -> '56.8', 0.01234 -> '0.0123').
+ * fewer than zero decimals (1234 -> '1234', 56.78 -> '56.8', 0.01234 -> '0.0123'). The rule is shared
+ * with the screen (src/schemas/result-format.ts); `thresholds` keeps the printed number on the side of
+ * each reference limit that its status says.
  */
-export function formatNumber(value: number, decimals?: number): string {
-  let places = decimals;
-  if (places === undefined) {
-    // Magnitude after rounding, so 9.996 prints as '10.0', not '10.00'.
-    const rounded = Math.abs(Number(value.toPrecision(3)));
-    const magnitude = rounded === 0 ? 0 : Math.floor(Math.log10(rounded));
-    places = Math.min(6, Math.max(0, 2 - magnitude));
-  }
-  const text = value.toFixed(places);
-  if (Number(text) === 0) return text.replace('-', '');
-  return text.startsWith('-') ? MINUS + text.slice(1) : text;
+export function formatNumber(value: number, decimals?: number, thresholds?: Thresholds): string {
+  return formatResultNumber(value, decimals, thresholds);
 }
 
-export function formatPercent(value: number): string {
-  return `${formatNumber(value, 0)}%`;
+/** % of the reference mean, as on the screen: never printed across a criterion threshold in `thresholds`. */
+export function formatPercent(value: number, thresholds?: Thresholds): string {
+  return formatPercentOfMean(value, thresholds);
 }

@@ -8,6 +8,7 @@ import {
   type ResultStatus,
 } from '@/schemas/report-document';
 import { specimenTypeLabels, type Measure } from '@/schemas/common';
+import { intervalThresholds } from '@/schemas/result-format';
 import { formatDate, formatDateOrDateTime, formatDateTime, formatNumber, formatPercent } from './format';
 import { drawBarGraphic } from './bar-graphic';
 import { COLORS, Composer, PAGE, STYLES, type Block } from './layout';
@@ -308,10 +309,12 @@ function statusSegments(r: ReportResult): Segment[] {
 function measureCells(c: Composer, r: ReportResult): Block[] {
   const contents: Array<string | Segment[]> = [
     MEASURE_LABELS[r.measure],
-    r.value === null ? 'No value' : [seg(formatNumber(r.value, r.decimals), STYLES.cellStrong)],
+    r.value === null
+      ? 'No value'
+      : [seg(formatNumber(r.value, r.decimals, intervalThresholds({ lower: r.referenceLower, upper: r.referenceUpper })), STYLES.cellStrong)],
     r.unit,
     formatInterval(r),
-    r.pctOfMean === null ? '\u2014' : formatPercent(r.pctOfMean),
+    r.pctOfMean === null ? '\u2014' : formatPercent(r.pctOfMean, { below: r.pctThresholds ?? [] }),
     statusSegments(r),
   ];
   return contents.map((content, i) => c.measure(content, STYLES.cell, (COLUMNS[i + 1]?.width ?? 0) - 2 * CELL_PAD_X));
@@ -392,10 +395,11 @@ export function drawResults(c: Composer, section: ReportSpecimenSection, heading
     );
     const rows = group.map((r) => {
       const cells = measureCells(c, r);
+      const rowNotes = r.criterionBandNote ? [...r.flags, r.criterionBandNote] : r.flags;
       const flags =
-        r.flags.length > 0
+        rowNotes.length > 0
           ? c.measure(
-              [seg('Note: ', STYLES.smallStrong), seg(r.flags.join('; '), STYLES.small)],
+              [seg('Note: ', STYLES.smallStrong), seg(rowNotes.join('; '), STYLES.small)],
               STYLES.small,
               c.width - (COLUMNS[0]?.width ?? 0) - 2 * CELL_PAD_X,
             )

@@ -1,5 +1,6 @@
-import { defaultDiagnosticCriteria, type DiagnosticCriteria } from '@/schemas/assay';
+import { criteriaRuleFor, defaultDiagnosticCriteria, type DiagnosticCriteria } from '@/schemas/assay';
 import { specimenClassOf, type Measure } from '@/schemas/common';
+import { bandThresholds } from '@/schemas/result-format';
 import type { ReportResult } from '@/schemas/report-document';
 import type { AssayResult, CaseResults, ResultComparison, SpecimenResult } from '@/schemas/results';
 import { findDefinitionById } from '../assay-definitions/assay-definitions.repository';
@@ -21,15 +22,22 @@ export function shortCitation(citation: string): string {
 
 export function criteriaFor(specimen: Pick<SpecimenResult, 'type'>, citation: string, criteria: DiagnosticCriteria = defaultDiagnosticCriteria) {
   const cellLine = specimenClassOf(specimen.type) === 'cell_line';
-  const rule = cellLine ? criteria.cellLine : criteria.tissue;
+  const rule = criteriaRuleFor(specimen.type, criteria);
   return {
     majorBelowPct: rule.majorBelowPct,
     minorBelowPct: rule.minorBelowPct,
-    ruleSetLabel: `${shortCitation(citation)} (${cellLine ? 'cell-line' : 'tissue'} thresholds: major below ${rule.majorBelowPct}%, minor below ${rule.minorBelowPct}% of the reference mean)`,
+    ruleSetLabel: `${shortCitation(citation)} (${cellLine ? 'cell-line' : 'tissue'} thresholds: major below ${rule.majorBelowPct}%, minor below ${rule.minorBelowPct}% of the reference mean of the ${MEASURE_WORDS[criteria.appliesTo]})`,
   };
 }
 
-function row(a: AssayResult, c: ResultComparison, flags: string[], notes: string[], noInterval: string[]): ReportResult | null {
+function row(
+  a: AssayResult,
+  c: ResultComparison,
+  flags: string[],
+  notes: string[],
+  noInterval: string[],
+  pctThresholds: number[],
+): ReportResult | null {
   const what = `${a.assay} ${MEASURE_WORDS[c.measure]}`;
   if (!c.interval) {
     if (c.value === null) {
@@ -70,6 +78,8 @@ function row(a: AssayResult, c: ResultComparison, flags: string[], notes: string
     status,
     pctOfMean: status === 'not_compared' ? null : c.percentOfMean,
     criterionBand: c.band === 'major' || c.band === 'minor' ? c.band : null,
+    criterionBandNote: (c.band === 'major' || c.band === 'minor') && c.bandNote ? c.bandNote : null,
+    pctThresholds,
     flags: [...new Set(flags.map((f) => f.trim()).filter((f) => f.length > 0))],
   };
 }
@@ -77,15 +87,17 @@ function row(a: AssayResult, c: ResultComparison, flags: string[], notes: string
 function specimenRows(s: SpecimenResult, notes: string[]): ReportResult[] {
   const rows: ReportResult[] = [];
   const noInterval: string[] = [];
+  // The same thresholds the screen prints with (src/schemas/result-format.ts).
+  const pctThresholds = [...(bandThresholds(s.type, s.pattern?.criteria ?? defaultDiagnosticCriteria).below ?? [])];
   for (const a of s.assays) {
     const ratioMessages = new Set([...(a.ratioCs?.flags ?? []), ...(a.ratioCii?.flags ?? [])].map((f) => f.message));
     // Replicate and activity flags go with the activity row; each ratio row carries its own.
     const activityFlags = a.flags.map((f) => f.message).filter((m) => !ratioMessages.has(m));
-    const activity = row(a, a.activity, activityFlags, notes, noInterval);
+    const activity = row(a, a.activity, activityFlags, notes, noInterval, pctThresholds);
     if (activity) rows.push(activity);
     for (const c of [a.ratioCs, a.ratioCii]) {
       if (!c) continue;
-      const r = row(a, c, c.flags.map((f) => f.message), notes, noInterval);
+      const r = row(a, c, c.flags.map((f) => f.message), notes, noInterval, pctThresholds);
       if (r) rows.push(r);
     }
   }
@@ -126,7 +138,7 @@ export async function toReportableResults(caseResults: CaseResults): Promise<Map
       patternSummary: s.accepted ? patternSummaryOf(s) : null,
       findings: (s.pattern?.findings ?? []).map((f) => ({ kind: f.kind, label: f.label, complexes: f.complexes })),
       definitions,
-      criteria: results.some((r) => r.measure !== 'activity') ? criteriaFor(s, citation) : null,
+      criteria: results.some((r) => r.measure !== 'activity') ? criteriaFor(s, citation, s.pattern?.criteria) : null,
       notes,
     });
   }

@@ -78,6 +78,7 @@ function toResultComparison(
     percentOfMean: c?.percentOfMean ?? null,
     zScore: c?.zScore ?? null,
     band: c?.band ?? null,
+    bandNote: c?.bandNote ?? null,
     flags: dedupeFlags([...extraFlags, ...(c?.flags ?? [])]),
   };
 }
@@ -251,6 +252,7 @@ async function specimenResults(
       findings,
       notes: [...new Set(summary.notes)],
       criteriaCitation: summary.criteriaCitation,
+      criteria: summary.criteria,
     },
   };
 }

@@ -1,6 +1,7 @@
 import type { PatternKind } from '@/schemas/assay';
 import { specimenClassOf, specimenTypeLabels, type AssayCode, type SpecimenType } from '@/schemas/common';
 import type { ReportResult } from '@/schemas/report-document';
+import { formatPercentOfMean } from '@/schemas/result-format';
 
 /*
  * Cristae's proposed wording for the interpretation: plain sentences that restate the numbers, the pattern
@@ -33,10 +34,9 @@ const NAMES: Record<AssayCode, string> = {
 
 const capitalise = (s: string) => s.charAt(0).toUpperCase() + s.slice(1);
 
-/** Percentages as a reader takes them in: whole numbers from 10 up, one decimal below. */
-export function formatPct(pct: number): string {
-  const rounded = Math.abs(pct) >= 10 ? Math.round(pct) : Math.round(pct * 10) / 10;
-  return `${rounded}%`;
+/** A row's % of the reference mean, printed as on the screen and the report (never across a band threshold). */
+function formatPct(r: ReportResult): string {
+  return formatPercentOfMean(r.pctOfMean ?? Number.NaN, { below: r.pctThresholds ?? [] });
 }
 
 function find(results: readonly ReportResult[], assay: AssayCode, measure: ReportResult['measure']): ReportResult | undefined {
@@ -60,7 +60,7 @@ function bandPhrase(r: ReportResult): string {
 function ratioClause(r: ReportResult | undefined, relativeTo: 'citrate synthase' | 'complex II'): string | null {
   if (!r || r.value === null) return null;
   if (r.pctOfMean === null) return `relative to ${relativeTo} it is ${POSITION[r.status]}`;
-  return `relative to ${relativeTo} it is ${formatPct(r.pctOfMean)} of the reference mean (${POSITION[r.status]}${bandPhrase(r)})`;
+  return `relative to ${relativeTo} it is ${formatPct(r)} of the reference mean (${POSITION[r.status]}${bandPhrase(r)})`;
 }
 
 function complexSentence(results: readonly ReportResult[], assay: AssayCode): string | null {
@@ -74,14 +74,14 @@ function complexSentence(results: readonly ReportResult[], assay: AssayCode): st
 function ciiSentence(results: readonly ReportResult[]): string | null {
   const r = find(results, 'CII', 'ratio_cs');
   if (!r || r.value === null) return null;
-  const pct = r.pctOfMean === null ? '' : `, ${formatPct(r.pctOfMean)} of the reference mean`;
+  const pct = r.pctOfMean === null ? '' : `, ${formatPct(r)} of the reference mean`;
   return `Complex II relative to citrate synthase is ${POSITION[r.status]}${pct}.`;
 }
 
 function csSentence(results: readonly ReportResult[]): string | null {
   const r = find(results, 'CS', 'activity');
   if (!r || r.value === null) return null;
-  const pct = r.pctOfMean === null ? '' : ` (${formatPct(r.pctOfMean)} of the reference mean)`;
+  const pct = r.pctOfMean === null ? '' : ` (${formatPct(r)} of the reference mean)`;
   return `Citrate synthase activity, a marker of mitochondrial content, is ${POSITION[r.status]}${pct}.`;
 }
 
@@ -151,7 +151,11 @@ export function proposeInterpretation(input: DraftInput): string {
     if (cs) paragraphs.push(cs);
   }
 
-  const banded = results.filter((r) => r.criterionBand !== null && r.measure !== 'activity');
+  const unexplained = [...new Set(results.flatMap((r) => (r.criterionBand && r.criterionBandNote ? [r.criterionBandNote] : [])))];
+  if (unexplained.length > 0) {
+    paragraphs.push(unexplained.map((n) => `${capitalise(n)}.`).join(' '));
+  }
+  const banded = results.filter((r) => r.criterionBand !== null);
   if (banded.length > 0 && input.criteriaLabel) {
     paragraphs.push(
       `Criterion bands refer to the enzyme criteria of ${input.criteriaLabel}. A band describes the size of a reduction; on its own it is not a diagnosis.`,

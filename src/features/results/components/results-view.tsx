@@ -1,4 +1,12 @@
+import { defaultDiagnosticCriteria } from '@/schemas/assay';
 import { specimenTypeLabels } from '@/schemas/common';
+import {
+  bandThresholds,
+  formatPercentOfMean,
+  formatResultNumber,
+  intervalThresholds,
+  type Thresholds,
+} from '@/schemas/result-format';
 import {
   criteriaBandLabels,
   intervalPositionLabels,
@@ -13,40 +21,54 @@ import { formatWhen } from '@/utils/format';
 
 const positionTone = { below: 'text-below', within: 'text-within', above: 'text-above' } as const;
 
-/** One value against its interval: the value, where it falls (in words), % of the reference mean, and the interval used. */
+/** A number as the report prints it (src/schemas/result-format.ts), or a dash when there is none. */
+function num(v: number | null, thresholds: Thresholds = {}): string {
+  return v === null || !Number.isFinite(v) ? '—' : formatResultNumber(v, undefined, thresholds);
+}
+
+/**
+ * One value against its interval: the value, where it falls (in words), % of the reference mean, and the
+ * interval used. Numbers print as on the report, never on the other side of a limit or band threshold.
+ */
 function ComparisonCell({
   c,
-  digits = 3,
+  pctThresholds,
   extra,
   showLabel,
 }: {
   c: ResultComparison | null;
-  digits?: number;
+  pctThresholds: Thresholds;
   extra?: React.ReactNode;
   showLabel: boolean;
 }) {
   if (!c) return <td className="px-2 py-2 text-ink-faint">n/a</td>;
   return (
     <td className="px-2 py-2 align-top">
-      <div className="num font-semibold text-ink">{fmt(c.value, digits)}</div>
+      <div className="num font-semibold text-ink">{num(c.value, intervalThresholds(c.interval))}</div>
       {extra}
       {c.position ? (
         <div className="text-xs">
           <span className={`font-semibold ${positionTone[c.position]}`}>{intervalPositionLabels[c.position]}</span>
-          <span className="num text-ink-soft"> · {fmt(c.percentOfMean, 3)}% of mean</span>
-          {c.band && c.band !== 'not_met' ? <span className="ml-1 rounded bg-below-bg px-1 text-below">{c.band}</span> : null}
+          {c.percentOfMean === null ? null : (
+            <span className="num text-ink-soft"> · {formatPercentOfMean(c.percentOfMean, pctThresholds)} of mean</span>
+          )}
+          {c.band && c.band !== 'not_met' ? (
+            <span className="ml-1 rounded bg-below-bg px-1 text-below">{bandWords[c.band]}</span>
+          ) : null}
         </div>
       ) : (
         <div className="text-xs text-ink-faint">not compared</div>
       )}
       {c.interval ? (
         <div className="num text-xs text-ink-faint" title={`${c.interval.method}; interval id ${c.interval.id}`}>
-          interval {fmt(c.interval.lower)}–{fmt(c.interval.upper)} · {showLabel ? c.interval.label : `v${c.interval.version}`}
+          interval {num(c.interval.lower)}–{num(c.interval.upper)} · {showLabel ? c.interval.label : `v${c.interval.version}`}
         </div>
       ) : null}
     </td>
   );
 }
+
+const bandWords = { major: 'major-criterion band', minor: 'minor-criterion band' } as const;
 
 function bandSummary(a: AssayResult): string {
   const parts = [a.activity, a.ratioCs, a.ratioCii]
@@ -57,7 +79,13 @@ function bandSummary(a: AssayResult): string {
   return met.length ? met.join('; ') : criteriaBandLabels.not_met;
 }
 
-function AssayRow({ a, showLabel }: { a: AssayResult; showLabel: boolean }) {
+/** The reasons given for bands the pattern does not reflect, once each. */
+function bandNotes(a: AssayResult): string[] {
+  const notes = [a.activity, a.ratioCs, a.ratioCii].flatMap((c) => (c?.bandNote ? [c.bandNote] : []));
+  return [...new Set(notes)];
+}
+
+function AssayRow({ a, showLabel, pctThresholds }: { a: AssayResult; showLabel: boolean; pctThresholds: Thresholds }) {
   const values = a.replicates.map((r) => fmt(r.activity, 4)).join(' · ');
   return (
     <tr className="border-b border-paper-line/70" data-testid={`result-row-${a.assay}`}>
@@ -67,7 +95,7 @@ function AssayRow({ a, showLabel }: { a: AssayResult; showLabel: boolean }) {
       </th>
       <ComparisonCell
         c={a.activity}
-        digits={4}
+        pctThresholds={pctThresholds}
         showLabel={showLabel}
         extra={
           <div className="num text-xs text-ink-soft">
@@ -76,9 +104,16 @@ function AssayRow({ a, showLabel }: { a: AssayResult; showLabel: boolean }) {
           </div>
         }
       />
-      <ComparisonCell c={a.ratioCs} showLabel={showLabel} />
-      <ComparisonCell c={a.ratioCii} showLabel={showLabel} />
-      <td className="px-2 py-2 align-top text-xs">{bandSummary(a)}</td>
+      <ComparisonCell c={a.ratioCs} pctThresholds={pctThresholds} showLabel={showLabel} />
+      <ComparisonCell c={a.ratioCii} pctThresholds={pctThresholds} showLabel={showLabel} />
+      <td className="px-2 py-2 align-top text-xs" data-testid={`band-${a.assay}`}>
+        {bandSummary(a)}
+        {bandNotes(a).map((n, i) => (
+          <p key={i} className="mt-1 text-ink-soft">
+            {n}.
+          </p>
+        ))}
+      </td>
       <td className="px-2 py-2 align-top text-xs">
         {a.flags.length === 0 ? (
           <span className="text-within">none</span>
@@ -121,7 +156,11 @@ export function PatternSummary({ pattern }: { pattern: PatternResult }) {
           ))}
         </ul>
       ) : null}
-      <p className="mt-2 text-xs text-ink-faint">Criteria bands: {pattern.criteriaCitation}. Cristae shows the band; the director decides.</p>
+      <p className="mt-2 text-xs text-ink-faint">
+        Criterion bands: {pattern.criteriaCitation}. They are applied to the{' '}
+        {measureNames[(pattern.criteria ?? defaultDiagnosticCriteria).appliesTo]}, as % of its reference mean (
+        {(pattern.criteria ?? defaultDiagnosticCriteria).appliesToSource}). Cristae shows the band; the director decides.
+      </p>
     </div>
   );
 }
@@ -134,6 +173,8 @@ function intervalLabels(s: SpecimenResult): string[] {
 
 function SpecimenSection({ s }: { s: SpecimenResult }) {
   const heading = `Specimen ${s.label} · ${specimenTypeLabels[s.type]}`;
+  // The same thresholds the report prints with (server/modules/reports/results-adapter.ts).
+  const pctThresholds = bandThresholds(s.type, s.pattern?.criteria ?? defaultDiagnosticCriteria);
   const labels = intervalLabels(s);
   const oneSet = labels.length === 1;
   return (
@@ -166,7 +207,7 @@ function SpecimenSection({ s }: { s: SpecimenResult }) {
               </thead>
               <tbody>
                 {s.assays.map((a) => (
-                  <AssayRow key={a.assay} a={a} showLabel={!oneSet} />
+                  <AssayRow key={a.assay} a={a} showLabel={!oneSet} pctThresholds={pctThresholds} />
                 ))}
               </tbody>
             </table>

@@ -47,7 +47,10 @@ describe('pattern summary', () => {
     expect(line('CI', 'ratio_cs').band).toBe('minor');
     expect(line('CI', 'ratio_cii').position).toBe('below');
     expect(line('CII', 'ratio_cs').position).toBe('within');
-    expect(line('CI', 'ratio_cs').text).toMatch(/CI\/CS 0\.0533 is below the interval 0\.15–0\.35 \(21\.3% of the reference mean; minor band/);
+    // Printed as on the screen and the report: three significant figures, whole % from 10% up [common practice].
+    expect(line('CI', 'ratio_cs').text).toMatch(/CI\/CS 0\.0533 is below the interval 0\.150–0\.350 \(21% of the reference mean; minor band/);
+    // The band applies to the ratio to CS only (default rule set, appliesTo 'ratio_cs').
+    expect(line('CI', 'ratio_cii').band).toBeNull();
     expect(line('CI', 'ratio_cs').intervalSetLabel).toMatch(/DEMO/);
   });
 
