@@ -129,7 +129,10 @@ export function dateTimeSchema(label: string) {
  * line and paragraph separators. Single-line fields (names, labels) also refuse the invisible direction
  * marks (U+200E, U+200F, U+061C) and every line break and tab; free text keeps tab, line feed and carriage return.
  */
+// Matching control characters is the point of these two patterns.
+// eslint-disable-next-line no-control-regex
 const UNSAFE_IN_FREE_TEXT = /[\u0000-\u0008\u000B\u000C\u000E-\u001F\u007F-\u009F\u2028\u2029\u202A-\u202E\u2066-\u2069]/u;
+// eslint-disable-next-line no-control-regex
 const UNSAFE_IN_LINE = /[\u0000-\u001F\u007F-\u009F\u061C\u200E\u200F\u2028\u2029\u202A-\u202E\u2066-\u2069]/u;
 
 /** The first character a field must not contain, as "U+202E at position 4", or null when the text is clean. */
