@@ -17,7 +17,11 @@ export default function CaseListPage() {
           </Link>
         }
       />
-      {notice ? <Notice tone="info">{notice}</Notice> : null}
+      {notice ? (
+        <div className="mb-4">
+          <Notice tone="info">{notice}</Notice>
+        </div>
+      ) : null}
       {timeZone ? <CasesTable timeZone={timeZone} /> : <Loading />}
     </>
   );
