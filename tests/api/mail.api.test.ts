@@ -1,7 +1,5 @@
 import type { Express } from 'express';
 import request from 'supertest';
-import { SMTPServer } from 'smtp-server';
-import type { AddressInfo } from 'node:net';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { CaseDetail } from '@/schemas/case';
 import type { MailDelivery, Outbox, OutboxMessage } from '@/schemas/report';
@@ -11,6 +9,7 @@ import { createSmtpMailer, type Mailer } from '../../server/modules/mail/mailer'
 import { createNoticeDelivery, DEFAULT_LEASE_MS } from '../../server/modules/mail/notice-worker';
 import { accountId, createCaseAwaitingReview } from '../factories/workup';
 import { DEMO_PASSWORD, ORIGIN, countRows, makeTestApp, type TestApp } from '../setup/test-app';
+import { startTestSmtpServer } from '../setup/test-smtp-server';
 
 /*
  * Report notices: written to the durable outbox in the signing transaction, then delivered by the notice worker
@@ -61,38 +60,6 @@ async function closedPort(): Promise<number> {
   const gone = await startLocalSmtpServer(t.sequelize, 0);
   await gone.close();
   return gone.port;
-}
-
-/** An SMTP server that answers RCPT TO with the reply the test sets (451 busy, 550 refused), or accepts. */
-async function startPickyServer() {
-  let reply: { code: number; text: string } | null = null;
-  const received: string[] = [];
-  const server = new SMTPServer({
-    disabledCommands: ['STARTTLS'],
-    authOptional: true,
-    logger: false,
-    onRcptTo(_address, _session, callback) {
-      if (!reply) return callback();
-      const err = Object.assign(new Error(reply.text), { responseCode: reply.code });
-      callback(err);
-    },
-    onData(stream, _session, callback) {
-      let text = '';
-      stream.on('data', (c: Buffer) => (text += c.toString()));
-      stream.on('end', () => {
-        received.push(text);
-        callback();
-      });
-    },
-  });
-  await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
-  const port = (server.server.address() as AddressInfo).port;
-  return {
-    port,
-    received,
-    answer: (r: { code: number; text: string } | null) => (reply = r),
-    close: () => new Promise<void>((resolve) => server.close(() => resolve())),
-  };
 }
 
 let tech: request.Agent;
@@ -268,7 +235,7 @@ describe('a mail server that cannot be reached', () => {
 describe('a mail server that answers busy or refuses', () => {
   // SMTP reply classes: 4yz is a transient negative completion, 5yz a permanent one (RFC 5321 §4.2.1) [from memory].
   it('when the server says 451 (try later), then the notice waits and goes through once the server accepts', async () => {
-    const picky = await startPickyServer();
+    const picky = await startTestSmtpServer();
     const m = createSmtpMailer(config.mail, picky.port);
     const { reportId, c } = await signNewCase();
     const worker = createNoticeDelivery({ sequelize: t.sequelize, mailer: m, now: clock });
@@ -289,7 +256,7 @@ describe('a mail server that answers busy or refuses', () => {
   });
 
   it('when the server says 550 (refused for good), then the notice is marked not sent after one try, with the reply as the reason', async () => {
-    const picky = await startPickyServer();
+    const picky = await startTestSmtpServer();
     const m = createSmtpMailer(config.mail, picky.port);
     const { reportId } = await signNewCase();
     picky.answer({ code: 550, text: 'No such mailbox here (fixture)' });

@@ -4,20 +4,28 @@ import os from 'node:os';
 import path from 'node:path';
 import { freePort } from '../../setup/free-port';
 
-export type RunningServer = { origin: string; port: number; dataDir: string; stop: () => Promise<void> };
+export type RunningServer = {
+  origin: string;
+  port: number;
+  dataDir: string;
+  stop: () => Promise<void>;
+  /** kill -9: no shutdown handler runs (fault tests). */
+  kill: () => Promise<void>;
+};
 
 /**
  * Starts the real server (the same command as npm start, minus the build, which npm test has done) on a free
- * port with a fresh database, so the browser sees exactly what a user would.
+ * port with a fresh database, so the browser sees exactly what a user would. Pass `dataDir` to start again on
+ * the database a stopped (or killed) server left behind.
  */
-export async function startServer(extraEnv: Record<string, string> = {}): Promise<RunningServer> {
+export async function startServer(extraEnv: Record<string, string> = {}, opts: { dataDir?: string } = {}): Promise<RunningServer> {
   const root = path.resolve(import.meta.dirname, '..', '..', '..');
   if (!fs.existsSync(path.join(root, 'dist', 'client', 'index.html'))) {
     throw new Error('dist/client is missing: run `npx vite build` (npm test does it before the tests)');
   }
   const port = await freePort();
   const smtpPort = await freePort();
-  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'cristae-e2e-'));
+  const dataDir = opts.dataDir ?? fs.mkdtempSync(path.join(os.tmpdir(), 'cristae-e2e-'));
   const child: ChildProcess = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
     cwd: root,
     env: {
@@ -60,6 +68,12 @@ export async function startServer(extraEnv: Record<string, string> = {}): Promis
         child.once('exit', () => resolve());
         child.kill('SIGTERM');
         setTimeout(() => child.kill('SIGKILL'), 5000).unref();
+      }),
+    kill: () =>
+      new Promise<void>((resolve) => {
+        if (child.exitCode !== null || child.signalCode !== null) return resolve();
+        child.once('exit', () => resolve());
+        child.kill('SIGKILL');
       }),
   };
 }

@@ -97,8 +97,8 @@ export function NoticesTable({ deliveries }: { deliveries: MailDelivery[] }) {
             return (
               <tr key={d.id} className="border-b border-paper-line/70 align-top">
                 <td className="py-2 pr-3 whitespace-nowrap">{when(d.queuedAt)}</td>
-                <td className="py-2 pr-3">{kindLabels[d.kind] ?? d.kind}</td>
-                <td className="py-2 pr-3 font-mono">{d.accession ?? '—'}</td>
+                <td className="py-2 pr-3 whitespace-nowrap">{kindLabels[d.kind] ?? d.kind}</td>
+                <td className="py-2 pr-3 whitespace-nowrap font-mono">{d.accession ?? '—'}</td>
                 <td className="py-2 pr-3">{d.recipient}</td>
                 <td className="py-2 pr-3">
                   <span className={`inline-block whitespace-nowrap rounded-full border px-2 py-0.5 text-xs font-medium ${state.tone}`}>
