@@ -2,6 +2,7 @@ import { z } from 'zod';
 import {
   assayCodeSchema,
   measureSchema,
+  plainText,
   specimenClassOf,
   specimenTypeSchema,
   type AssayCode,
@@ -98,18 +99,18 @@ export const assayDefinitionFieldsSchema = z
   .object({
     code: assayCodeSchema,
     version: z.number().int('version must be a whole number').positive('version starts at 1'),
-    name: z.string().trim().min(1, 'name is required').max(120, 'name is at most 120 characters'),
+    name: z.string().trim().min(1, 'name is required').max(120, 'name is at most 120 characters').superRefine(plainText('name')),
     wavelengthNm: finite('wavelengthNm').min(190, 'wavelengthNm is 190 to 1100 (a UV–visible photometer)').max(1100, 'wavelengthNm is 190 to 1100 (a UV–visible photometer)'),
-    chromophore: z.string().trim().min(1, 'chromophore is required').max(80),
+    chromophore: z.string().trim().min(1, 'chromophore is required').max(80).superRefine(plainText('chromophore')),
     /** Extinction coefficient in mM⁻¹·cm⁻¹; lab-set, stored with its source. */
     epsilonPerMmPerCm: finite('epsilonPerMmPerCm')
       .min(0.1, 'epsilonPerMmPerCm is 0.1 to 1000 mM⁻¹·cm⁻¹ (every chromophore in use lies between about 1 and 200)')
       .max(1000, 'epsilonPerMmPerCm is 0.1 to 1000 mM⁻¹·cm⁻¹ (every chromophore in use lies between about 1 and 200)'),
-    epsilonSource: z.string().trim().min(1, 'epsilonSource is required').max(500),
+    epsilonSource: z.string().trim().min(1, 'epsilonSource is required').max(500).superRefine(plainText('epsilonSource', true)),
     direction: absorbanceDirectionSchema,
     background: backgroundKindSchema,
     /** What the background trace contains, e.g. "rotenone" or "before succinate"; empty when none. */
-    backgroundNote: z.string().trim().max(200),
+    backgroundNote: z.string().trim().max(200).superRefine(plainText('backgroundNote', true)),
     rateModel: rateModelSchema,
     /** The automatic window is the longest early stretch whose r² reaches this value. */
     r2Threshold: finite('r2Threshold').min(0, 'r2Threshold is 0 to 1').max(1, 'r2Threshold is 0 to 1'),
@@ -648,7 +649,7 @@ export type StoredAssayDefinition = z.infer<typeof storedAssayDefinitionSchema>;
 /** A director's new version: every field of the definition except its code and number, plus why it changed. */
 export const createAssayDefinitionVersionInputSchema = z.strictObject({
   definition: assayDefinitionFieldsSchema.omit({ code: true, version: true }).strict(),
-  changeNote: z.string().trim().min(3, 'Say what changed and why').max(1000),
+  changeNote: z.string().trim().min(3, 'Say what changed and why').max(1000).superRefine(plainText('Change note', true)),
   /** The version the director was looking at; a newer one in between is a conflict. */
   basedOnVersion: z.number().int().positive(),
 });

@@ -5,7 +5,7 @@ import {
   rateWindowSchema,
   tracePointSchema,
 } from './assay';
-import { assayCodeSchema } from './common';
+import { assayCodeSchema, plainText } from './common';
 import { plateMapWellsSchema, wellIdSchema } from './plate';
 
 /*
@@ -195,7 +195,7 @@ export const proteinCurveModelSchema = z.enum(proteinCurveModels);
 
 /** Standards and an unknown, read off the curve; the unknown's result becomes the specimen's protein. */
 export const proteinCurveInputSchema = z.strictObject({
-  method: z.string().trim().min(1, 'Name the protein method (e.g. BCA)').max(60, 'At most 60 characters'),
+  method: z.string().trim().min(1, 'Name the protein method (e.g. BCA)').max(60, 'At most 60 characters').superRefine(plainText('Method')),
   model: proteinCurveModelSchema,
   standards: z
     .array(
@@ -217,7 +217,12 @@ export const saveProteinInputSchema = z.discriminatedUnion('kind', [
   z.strictObject({
     kind: z.literal('direct'),
     proteinMgPerMl: positive('Protein').max(1000, 'Protein is at most 1000 mg/mL'),
-    proteinSource: z.string().trim().min(3, 'Say how the protein was measured').max(200, 'At most 200 characters'),
+    proteinSource: z
+      .string()
+      .trim()
+      .min(3, 'Say how the protein was measured')
+      .max(200, 'At most 200 characters')
+      .superRefine(plainText('Protein source')),
     ...version,
   }),
 ]);
@@ -367,8 +372,8 @@ export const storedPlateMapSchema = z.object({
 export type StoredPlateMap = z.infer<typeof storedPlateMapSchema>;
 
 export const changePlateMapInputSchema = z.strictObject({
-  name: z.string().trim().min(1, 'Name is required').max(120, 'Name is at most 120 characters').optional(),
-  description: z.string().trim().max(500, 'Description is at most 500 characters').optional(),
+  name: z.string().trim().min(1, 'Name is required').max(120, 'Name is at most 120 characters').superRefine(plainText('Name')).optional(),
+  description: z.string().trim().max(500, 'Description is at most 500 characters').superRefine(plainText('Description', true)).optional(),
   wells: plateMapWellsSchema.optional(),
   ...version,
 });

@@ -138,14 +138,14 @@ export const plateMapWellsSchema = z
   });
 
 export const plateMapSchema = z.object({
-  name: z.string().trim().min(1, 'Name is required').max(120, 'Name is at most 120 characters'),
+  name: z.string().trim().min(1, 'Name is required').max(120, 'Name is at most 120 characters').superRefine(plainText('Name')),
   wells: plateMapWellsSchema,
 });
 export type PlateMap = z.infer<typeof plateMapSchema>;
 
 /** Saving a plate map as a reusable template. */
 export const createPlateMapInputSchema = plateMapSchema.extend({
-  description: z.string().trim().max(500, 'Description is at most 500 characters').optional(),
+  description: z.string().trim().max(500, 'Description is at most 500 characters').superRefine(plainText('Description', true)).optional(),
 });
 export type CreatePlateMapInput = z.infer<typeof createPlateMapInputSchema>;
 export const updatePlateMapInputSchema = createPlateMapInputSchema.partial();
