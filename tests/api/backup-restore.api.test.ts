@@ -167,7 +167,7 @@ describe('npm run restore', () => {
     [
       'a byte flipped inside every stored PDF',
       (bytes: Buffer) => {
-        for (let at = bytes.indexOf('%PDF-'); at >= 0; at = bytes.indexOf('%PDF-', at + 1)) bytes[at + 300] ^= 0xff;
+        for (let at = bytes.indexOf('%PDF-'); at >= 0; at = bytes.indexOf('%PDF-', at + 1)) bytes[at + 300] = bytes[at + 300]! ^ 0xff;
         return bytes;
       },
       /report PDF\(s\) no longer match their recorded SHA-256 \(reports id/,
