@@ -135,6 +135,14 @@ describe('parseControlCsv: refused files name the row and column', () => {
     expected.forEach((issue, i) => expect(issues[i]).toMatchObject(issue));
   });
 
+  it('when an unquoted decimal comma splits a value into two cells, then the row is refused and the message says why', () => {
+    // Invented subject; "37,5" written by a comma-decimal spreadsheet without quotes becomes cells "37" and "5".
+    const issues = issuesOf('specimen_type,age_years,CI\nskeletal_muscle,8,37,5\n');
+    expect(issues).toEqual([
+      { row: 2, column: null, message: expect.stringMatching(/Has 4 cells but the header has 3.*decimal comma such as 37,5.*use a point/) },
+    ]);
+  });
+
   it('puts the first problem, with its row and column, in the error message', () => {
     expect(() => parseControlCsv(fixture('negative-activity.csv'))).toThrow(/^row 3, column "CIV": Activity -3.2 is negative/);
   });
