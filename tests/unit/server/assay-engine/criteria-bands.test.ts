@@ -5,10 +5,10 @@ import {
   type ComparisonInterval,
   type DiagnosticCriteria,
 } from '@/schemas/assay';
-import type { AssayCode } from '@/schemas/common';
 import { compareValue } from '../../../../server/domain/assay-engine/compare';
 import type { ActivityMap } from '../../../../server/domain/assay-engine/normalise';
 import { summarisePattern } from '../../../../server/domain/assay-engine/pattern';
+import { nearMeans } from '../../../factories/workup';
 
 /*
  * Which value a criterion band applies to, and that a band never contradicts the pattern unexplained.
@@ -19,15 +19,7 @@ import { summarisePattern } from '../../../../server/domain/assay-engine/pattern
  * set (CS 90–210, mean 150; CI/CS 0.15–0.35, mean 0.25; …).
  */
 
-const control: Record<AssayCode, number> = {
-  CS: 150,
-  CI: 37,
-  CII: 30,
-  CIII: 120,
-  CIV: 180,
-  'CI+III': 45,
-  'CII+III': 40,
-};
+const control = nearMeans;
 const quarter = Object.fromEntries(Object.entries(control).map(([k, v]) => [k, v / 4])) as ActivityMap;
 const byActivity: DiagnosticCriteria = { ...defaultDiagnosticCriteria, appliesTo: 'activity' };
 
