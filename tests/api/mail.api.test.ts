@@ -9,6 +9,7 @@ import { createSmtpMailer, type Mailer } from '../../server/modules/mail/mailer'
 import { createNoticeDelivery, DEFAULT_LEASE_MS } from '../../server/modules/mail/notice-worker';
 import { accountId, createCaseAwaitingReview } from '../factories/workup';
 import { DEMO_PASSWORD, ORIGIN, countRows, makeTestApp, type TestApp } from '../setup/test-app';
+import { signedInAgent } from '../setup/http-agent';
 import { startTestSmtpServer } from '../setup/test-smtp-server';
 
 /*
@@ -30,17 +31,7 @@ const clock = () => clockAt;
 /** Moves the injected clock to `ms` after the real now (rows are stamped with the real time when queued). */
 const setClock = (ms: number) => (clockAt = new Date(Date.now() + ms));
 
-function agent(target: Express) {
-  const a = request.agent(target);
-  a.set('Origin', ORIGIN);
-  return a;
-}
-async function signIn(target: Express, email: string) {
-  const a = agent(target);
-  const res = await a.post('/api/auth/login').send({ email, password: DEMO_PASSWORD });
-  expect(res.status).toBe(200);
-  return a;
-}
+const signIn = (target: Express, email: string) => signedInAgent(target, ORIGIN, email, DEMO_PASSWORD);
 
 async function outbox(admin: request.Agent): Promise<Outbox> {
   const res = await admin.get('/api/outbox');

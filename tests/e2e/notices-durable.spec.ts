@@ -3,6 +3,7 @@ import type { BrowserContext } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { MailDelivery, Outbox } from '@/schemas/report';
 import { accountId, createCaseAwaitingReview } from '../factories/workup';
+import { signedInAgent } from '../setup/http-agent';
 import { startTestSmtpServer, type TestSmtpServer } from '../setup/test-smtp-server';
 import { launchBrowser, screenshot, signIn } from './support/browser';
 import { startServer, type RunningServer } from './support/server';
@@ -25,17 +26,7 @@ let server: RunningServer | null = null;
 let browser: BrowserContext | null = null;
 let dataDir = '';
 
-function agentFor(origin: string) {
-  const a = request.agent(origin);
-  a.set('Origin', origin);
-  return a;
-}
-async function signedIn(origin: string, email: string) {
-  const a = agentFor(origin);
-  const res = await a.post('/api/auth/login').send({ email, password: PASSWORD });
-  if (res.status !== 200) throw new Error(`sign-in as ${email}: ${res.status} ${JSON.stringify(res.body)}`);
-  return a;
-}
+const signedIn = (origin: string, email: string) => signedInAgent(origin, origin, email, PASSWORD);
 
 const mailEnv = () => ({ SMTP_HOST: '127.0.0.1', SMTP_PORT: String(smtp.port), NOTICE_POLL_MS: '500' });
 const reachedMailServer = (accession: string) => smtp.received.filter((m) => m.includes(accession)).length;

@@ -4,6 +4,19 @@ export const name = '0009-durable-notices';
 
 const ref = (table: string) => ({ type: DataTypes.INTEGER, allowNull: true, references: { model: table, key: 'id' } });
 
+/** Columns the new outbox shares with the delivery log it replaces. */
+const shared = () => ({
+  id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+  kind: { type: DataTypes.STRING(30), allowNull: false },
+  reportId: ref('reports'),
+  caseId: ref('cases'),
+  recipientUserId: ref('users'),
+  recipient: { type: DataTypes.STRING(320), allowNull: false },
+  subject: { type: DataTypes.STRING(500), allowNull: false },
+  status: { type: DataTypes.STRING(10), allowNull: false },
+  messageId: { type: DataTypes.STRING(255), allowNull: true },
+});
+
 /**
  * The clinician's notice becomes a durable outbox row, written in the same transaction as the signature and
  * delivered by a worker that retries (docs/notices.md). It replaces mail_deliveries, which logged one attempt
@@ -11,23 +24,15 @@ const ref = (table: string) => ({ type: DataTypes.INTEGER, allowNull: true, refe
  */
 export async function up({ context: qi }: { context: QueryInterface }): Promise<void> {
   await qi.createTable('notice_outbox', {
-    id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
-    kind: { type: DataTypes.STRING(30), allowNull: false },
-    reportId: ref('reports'),
-    caseId: ref('cases'),
-    recipientUserId: ref('users'),
-    recipient: { type: DataTypes.STRING(320), allowNull: false },
-    subject: { type: DataTypes.STRING(500), allowNull: false },
+    // status: pending | sending | sent | failed
+    ...shared(),
     // The message as composed at signing; null only for rows carried over from mail_deliveries.
     body: { type: DataTypes.TEXT, allowNull: true },
-    // pending | sending | sent | failed
-    status: { type: DataTypes.STRING(10), allowNull: false },
     attempts: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
     nextAttemptAt: { type: DataTypes.DATE, allowNull: true },
     leaseUntil: { type: DataTypes.DATE, allowNull: true },
     lastAttemptAt: { type: DataTypes.DATE, allowNull: true },
     lastError: { type: DataTypes.TEXT, allowNull: true },
-    messageId: { type: DataTypes.STRING(255), allowNull: true },
     sentAt: { type: DataTypes.DATE, allowNull: true },
     createdAt: { type: DataTypes.DATE, allowNull: false },
   });
@@ -45,16 +50,8 @@ export async function up({ context: qi }: { context: QueryInterface }): Promise<
 
 export async function down({ context: qi }: { context: QueryInterface }): Promise<void> {
   await qi.createTable('mail_deliveries', {
-    id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
-    kind: { type: DataTypes.STRING(30), allowNull: false },
-    reportId: ref('reports'),
-    caseId: ref('cases'),
-    recipientUserId: ref('users'),
-    recipient: { type: DataTypes.STRING(320), allowNull: false },
-    subject: { type: DataTypes.STRING(500), allowNull: false },
-    status: { type: DataTypes.STRING(10), allowNull: false },
+    ...shared(),
     error: { type: DataTypes.TEXT, allowNull: true },
-    messageId: { type: DataTypes.STRING(255), allowNull: true },
     attemptedAt: { type: DataTypes.DATE, allowNull: false },
   });
   await qi.addIndex('mail_deliveries', ['reportId']);

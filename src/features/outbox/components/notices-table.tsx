@@ -4,6 +4,8 @@ import { Notice } from '@/components/ui/layout';
 import { useRetryNotice } from '../api/retry-notice';
 import { when } from './when';
 
+const COLUMNS = ['Queued', 'Notice', 'Accession', 'To', 'State', 'Tries', 'Details'];
+
 const kindLabels: Record<string, string> = { report_ready: 'Report ready', report_corrected: 'Corrected report' };
 
 /** A notice's state in words; colour only supports them. */
@@ -82,13 +84,11 @@ export function NoticesTable({ deliveries }: { deliveries: MailDelivery[] }) {
       <table className="w-full text-left text-sm" aria-label="Notices">
         <thead className="border-b border-paper-line text-ink-soft">
           <tr>
-            <th className="py-2 pr-3 font-medium">Queued</th>
-            <th className="py-2 pr-3 font-medium">Notice</th>
-            <th className="py-2 pr-3 font-medium">Accession</th>
-            <th className="py-2 pr-3 font-medium">To</th>
-            <th className="py-2 pr-3 font-medium">State</th>
-            <th className="py-2 pr-3 font-medium">Tries</th>
-            <th className="py-2 pr-3 font-medium">Details</th>
+            {COLUMNS.map((c) => (
+              <th key={c} className="py-2 pr-3 font-medium">
+                {c}
+              </th>
+            ))}
           </tr>
         </thead>
         <tbody>
