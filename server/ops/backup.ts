@@ -51,6 +51,7 @@ export async function backupDatabase(source: string, destination: string): Promi
   if (!fs.existsSync(source)) throw new OperationRefused(`no database at ${source} (set DATABASE_PATH)`);
   if (fs.existsSync(destination)) throw new OperationRefused(`${destination} already exists; choose a new file name`);
   if (path.resolve(source) === path.resolve(destination)) throw new OperationRefused('the copy cannot replace the database itself');
+  if (!fs.existsSync(path.dirname(path.resolve(destination)))) throw new OperationRefused(`the folder ${path.dirname(destination)} does not exist`);
   const temp = `${destination}.partial-${process.pid}`;
   removeDatabaseFiles(temp);
   try {

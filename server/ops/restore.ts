@@ -49,7 +49,11 @@ export async function restoreDatabase(candidate: string, target: string): Promis
     if (fs.existsSync(target)) {
       await claimIdleDatabase(target);
       previousKeptAs = `${target}.before-restore-${new Date().toISOString().replace(/[:.]/g, '-')}`;
-      fs.linkSync(target, previousKeptAs);
+      try {
+        fs.linkSync(target, previousKeptAs);
+      } catch {
+        fs.copyFileSync(target, previousKeptAs); // a file system without hard links
+      }
       for (const f of [`${target}-wal`, `${target}-shm`, `${target}-journal`]) fs.rmSync(f, { force: true });
     }
     commitFile(temp, target);
