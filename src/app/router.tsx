@@ -73,6 +73,7 @@ export function createAppRouter(queryClient: QueryClient) {
         page('reviewCase', () => import('./routes/review/review-case')),
         page('myReports', () => import('./routes/my-reports/my-reports')),
         page('adminOutbox', () => import('./routes/admin/outbox')),
+        page('accountPassword', () => import('./routes/account/change-password')),
         { path: paths.forbidden.path, Component: ForbiddenPage },
         { path: '*', lazy: () => import('./routes/not-found').then((m) => ({ Component: m.default })) },
       ],

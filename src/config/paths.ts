@@ -26,6 +26,7 @@ export const paths = {
   adminUsers: { path: '/admin/accounts', href: () => '/admin/accounts', roles: ['admin'] as Role[] },
   adminLab: { path: '/admin/laboratory', href: () => '/admin/laboratory', roles: ['admin'] as Role[] },
   adminOutbox: { path: '/admin/outbox', href: () => '/admin/outbox', roles: ['admin'] as Role[] },
+  accountPassword: { path: '/account/password', href: () => '/account/password', roles: null },
   forbidden: { path: '/forbidden', href: () => '/forbidden', roles: null },
 } as const;
 

@@ -22,15 +22,19 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
+const login = (email: string, password: string) => t.agent().post('/api/auth/login').send({ email, password });
+
 let seq = 0;
+/** An account as an administrator opens it, after its person has replaced the first password with `password`. */
 async function newAccount(role: 'technologist' | 'director' = 'technologist', password = 'first-password-1') {
   const email = `sec${++seq}@demo.test`;
-  const res = await admin.post('/api/users').send({ email, name: `Security Example ${seq}`, role, password });
+  const res = await admin.post('/api/users').send({ email, name: `Security Example ${seq}`, role, password: 'opening-password-0' });
   expect(res.status).toBe(201);
+  const agent = t.agent();
+  expect((await agent.post('/api/auth/login').send({ email, password: 'opening-password-0' })).body.user.mustChangePassword).toBe(true);
+  expect((await agent.post('/api/auth/password').send({ currentPassword: 'opening-password-0', newPassword: password })).status).toBe(204);
   return { id: res.body.id as number, email, password };
 }
-
-const login = (email: string, password: string) => t.agent().post('/api/auth/login').send({ email, password });
 
 async function signedInAs(email: string, password: string) {
   const agent = t.agent();
@@ -274,6 +278,16 @@ describe("an administrator's reset is a temporary password", () => {
     expect(actions).toEqual(expect.arrayContaining(['reset-password', 'change-password']));
     expect(audit.body.items.find((e: { action: string }) => e.action === 'reset-password').actorEmail).toBe('admin@demo.test');
     expect(JSON.stringify(audit.body)).not.toMatch(/temporary-pass-77|director chose this/);
+  });
+
+  it('when an admin opens an account, then its first password signs in only to the change screen (403 PASSWORD_CHANGE_REQUIRED elsewhere)', async () => {
+    const created = await admin.post('/api/users').send({ email: 'brand.new@demo.test', name: 'Brand New', role: 'director', password: 'opening-password-1' });
+    expect(created.status).toBe(201);
+    expect(created.body.mustChangePassword).toBe(true);
+    const agent = await signedInAs('brand.new@demo.test', 'opening-password-1');
+    const signing = await agent.post('/api/cases/999999/sign').send({ password: 'opening-password-1' });
+    expect(signing.status).toBe(403);
+    expect(signing.body.error.code).toBe('PASSWORD_CHANGE_REQUIRED');
   });
 
   it('when an account is locked, then the reset lifts the lock', async () => {

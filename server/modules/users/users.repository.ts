@@ -84,7 +84,7 @@ export async function listUsers(filter: { role?: Role; active?: boolean } = {}):
 }
 
 export async function insertUser(
-  data: { email: string; name: string; title: string | null; role: Role; passwordHash: string },
+  data: { email: string; name: string; title: string | null; role: Role; passwordHash: string; mustChangePassword?: boolean },
   transaction?: Transaction,
 ): Promise<UserWithSecrets> {
   const row = await UserModel.create({ ...data, email: data.email.toLowerCase(), lockedUntil: null }, { transaction });

@@ -24,6 +24,10 @@ export async function listActiveClinicians(): Promise<User[]> {
   return (await repo.listUsers({ role: 'clinician', active: true })).map(repo.publicUser);
 }
 
+/**
+ * An administrator opens an account with a first password they chose: like a reset, it is temporary, and the
+ * person chooses their own at the first sign-in.
+ */
 export async function createAccount(sequelize: Sequelize, actor: User, input: CreateUserInput): Promise<UserAccount> {
   if (await repo.findUserByEmail(input.email)) {
     throw new AppError('CONFLICT', 'An account with this e-mail address already exists', {
@@ -33,7 +37,7 @@ export async function createAccount(sequelize: Sequelize, actor: User, input: Cr
   const passwordHash = await hashPassword(input.password);
   return writeTransaction(sequelize, async (transaction) => {
     const created = await repo.insertUser(
-      { email: input.email, name: input.name, title: input.title ?? null, role: input.role, passwordHash },
+      { email: input.email, name: input.name, title: input.title ?? null, role: input.role, passwordHash, mustChangePassword: true },
       transaction,
     );
     const account = repo.withoutSecrets(created);

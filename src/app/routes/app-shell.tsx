@@ -5,12 +5,14 @@ import { canOpen, navigation, paths } from '@/config/paths';
 import { useSignOut } from '@/features/auth/api/sign-in';
 import { sessionQueries } from '@/features/auth/api/session-queries';
 import { roleLabels } from '@/features/accounts/components/role-labels';
+import { PasswordRequiredScreen } from './account/password-required';
 
 export function AppShell() {
   const { data: user } = useQuery(sessionQueries.me());
   const navigate = useNavigate();
   const signOut = useSignOut({ onDone: () => navigate(paths.signIn.href()) });
   if (!user) return null;
+  if (user.mustChangePassword) return <PasswordRequiredScreen name={user.name} onSignOut={() => signOut.mutate()} />;
   const items = navigation.filter((n) => canOpen(n.name, user.role));
 
   return (
@@ -40,9 +42,14 @@ export function AppShell() {
           <p className="text-xs text-matrix-300" data-testid="signed-in-role">
             {roleLabels[user.role]}
           </p>
-          <button type="button" className="mt-3 text-xs text-copper-300 underline hover:text-white" onClick={() => signOut.mutate()}>
-            Sign out
-          </button>
+          <div className="mt-3 flex gap-4 text-xs">
+            <NavLink to={paths.accountPassword.path} className="text-copper-300 underline hover:text-white">
+              Change password
+            </NavLink>
+            <button type="button" className="text-copper-300 underline hover:text-white" onClick={() => signOut.mutate()}>
+              Sign out
+            </button>
+          </div>
         </div>
       </nav>
       </div>

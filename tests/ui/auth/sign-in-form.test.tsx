@@ -52,7 +52,7 @@ describe('SignInForm', () => {
   });
 
   it('when the credentials are accepted, then the signed-in user is handed on', async () => {
-    const user = { id: 2, email: 'director@demo.test', name: 'Dr Ilse Marchetti', role: 'director' };
+    const user = { id: 2, email: 'director@demo.test', name: 'Dr Ilse Marchetti', role: 'director', mustChangePassword: false };
     const fetchMock = answer(200, { user });
     const onSignedIn = renderForm();
     fireEvent.change(screen.getByLabelText('E-mail address'), { target: { value: 'director@demo.test' } });

@@ -26,8 +26,10 @@ export function useUpdateAccount() {
 }
 
 export function useResetPassword() {
+  const qc = useQueryClient();
   return useMutation({
     mutationFn: ({ id, input }: { id: number; input: ResetPasswordInput }) =>
       api.post(`/api/users/${id}/password`, input),
+    onSuccess: () => qc.invalidateQueries({ queryKey: accountKeys.all }),
   });
 }

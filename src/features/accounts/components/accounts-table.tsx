@@ -76,7 +76,10 @@ function AccountActions({ account, onMessage }: { account: UserAccount; onMessag
                   setResetting(false);
                   setPassword('');
                   setResetError(null);
-                  onMessage('success', `New password set for ${account.name}; any lock-out is lifted.`);
+                  onMessage(
+                    'success',
+                    `Temporary password set for ${account.name}. Their open sessions have ended; at the next sign-in they choose their own password. Any lock-out is lifted.`,
+                  );
                 },
                 onError: fail,
               },
@@ -84,7 +87,7 @@ function AccountActions({ account, onMessage }: { account: UserAccount; onMessag
           }}
         >
           <label className="sr-only" htmlFor={`pw-${account.id}`}>
-            New password for {account.name}
+            Temporary password for {account.name}
           </label>
           <input
             id={`pw-${account.id}`}
@@ -119,7 +122,7 @@ export function AccountsTable() {
       col.accessor('name', { header: 'Name' }),
       col.accessor('email', { header: 'E-mail' }),
       col.accessor('title', { header: 'Title', cell: (c) => c.getValue() ?? '—' }),
-      col.accessor((a) => (!a.active ? 'Deactivated' : a.lockedUntil && new Date(a.lockedUntil) > new Date() ? 'Locked out' : 'Active'), {
+      col.accessor((a) => (!a.active ? 'Deactivated' : a.lockedUntil && new Date(a.lockedUntil) > new Date() ? 'Locked out' : a.mustChangePassword ? 'Active, temporary password' : 'Active'), {
         id: 'status',
         header: 'Status',
       }),

@@ -48,7 +48,7 @@ export function CreateAccountForm() {
         label="First password"
         type="password"
         autoComplete="new-password"
-        hint="At least 10 characters; tell the person through a separate channel."
+        hint="At least 12 characters; tell the person through a separate channel. It works once: at the first sign-in they choose their own."
         registration={form.register('password')}
         error={errors.password?.message}
       />

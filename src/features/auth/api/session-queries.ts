@@ -1,6 +1,6 @@
 import { queryOptions } from '@tanstack/react-query';
 import { api, ApiError } from '@/lib/api-client';
-import { meResponseSchema, type User } from '@/schemas/user';
+import { meResponseSchema, type SessionUser } from '@/schemas/user';
 
 export const sessionKeys = { me: ['session', 'me'] as const };
 
@@ -9,7 +9,7 @@ export const sessionQueries = {
   me: () =>
     queryOptions({
       queryKey: sessionKeys.me,
-      queryFn: async (): Promise<User | null> => {
+      queryFn: async (): Promise<SessionUser | null> => {
         try {
           return (await api.get('/api/auth/me', meResponseSchema)).user;
         } catch (err) {
