@@ -354,6 +354,42 @@ export const flagCodes = [
 export const flagCodeSchema = z.enum(flagCodes);
 export type FlagCode = z.infer<typeof flagCodeSchema>;
 
+/** Each flag in a few plain words, for tables and summaries; the full message says the numbers. */
+export const flagTitles: Record<FlagCode, string> = {
+  TOO_FEW_POINTS: 'Too few readings',
+  TIME_NOT_INCREASING: 'Reading times out of order',
+  NON_FINITE: 'A value is not a number',
+  LOW_R2: 'Readings scatter around the line',
+  OUT_OF_LINEAR_RANGE: "Absorbance outside the photometer's linear range",
+  WRONG_SIGN: 'Rate runs the wrong way',
+  NEAR_ZERO: 'Rate too small to measure',
+  BACKGROUND_MATCHES_TOTAL: 'Background equals the total',
+  NO_BACKGROUND: 'No background trace',
+  FIRST_ORDER_NOT_COMPUTED: 'First-order constant not computed',
+  PAST_END_POINT: 'Reading past the end point',
+  HIGH_CV: 'Replicates disagree',
+  SINGLE_REPLICATE: 'Single replicate',
+  OUTSIDE_STANDARDS: 'Outside the protein standards',
+  BAD_STANDARD_CURVE: 'Standard curve unusable',
+  NO_DENOMINATOR: 'Ratio cannot be formed',
+  NO_INTERVAL: 'No reference interval',
+  BASIS_MISMATCH: 'Not comparable with the interval',
+  MISSING_VALUE: 'A value is missing',
+  CURVATURE: 'Window is curved',
+  NO_LINEAR_WINDOW: 'No straight stretch: no rate given',
+  LAG_EXCLUDED: 'Slow start left out',
+  OUTLIER_READING: 'A stray reading',
+  HIGH_BACKGROUND_FRACTION: 'Background is most of the rate',
+  HIGH_BLANK_FRACTION: 'Blank is most of the rate',
+  IMPLAUSIBLE_ACTIVITY: 'Implausibly high: check units',
+  A_INFINITY_UNUSED: 'End-point absorbance not used',
+};
+
+/** The distinct flags of a list in plain words, e.g. "Window is curved; A stray reading". */
+export function flagSummary(flags: readonly { code: FlagCode }[]): string {
+  return [...new Set(flags.map((f) => flagTitles[f.code]))].join('; ');
+}
+
 /** `values`: the numbers behind the flag (e.g. `{ lossPct: 27.4 }`), for tables and traceability. */
 export const flagSchema = z.object({
   code: flagCodeSchema,

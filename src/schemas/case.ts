@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { physicalNumber } from './assay';
 import { birthDateSchema, calendarDateSchema, dateTimeSchema, plainText, specimenTypeSchema } from './common';
 
 /** The workflow states, trade terms kept as the brief names them. */
@@ -146,7 +147,7 @@ export type UpdateSpecimenInput = z.infer<typeof updateSpecimenInputSchema>;
 
 export const setProteinInputSchema = z
   .object({
-    proteinMgPerMl: z.number().positive('Protein must be above 0').max(1000),
+    proteinMgPerMl: physicalNumber('proteinMgPerMl', 'Protein'),
     proteinSource: z.string().trim().min(1).max(200).superRefine(plainText('Protein source')),
     version: z.number().int().min(0),
   })

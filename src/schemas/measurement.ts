@@ -2,6 +2,7 @@ import { z } from 'zod';
 import {
   calculationResultSchema,
   flagSchema,
+  physicalNumber,
   rateWindowSchema,
   tracePointSchema,
 } from './assay';
@@ -28,9 +29,9 @@ const positive = (field: string) => num(field).positive(`${field} must be greate
 
 /** Cuvette or well conditions of one reading; protein comes from the specimen. */
 export const assayConditionsSchema = z.object({
-  pathlengthCm: positive('Pathlength').max(10, 'Pathlength is at most 10 cm'),
-  reactionVolumeUl: positive('Reaction volume').max(100_000, 'Reaction volume is at most 100 000 µL'),
-  sampleVolumeUl: positive('Sample volume').max(100_000, 'Sample volume is at most 100 000 µL'),
+  pathlengthCm: physicalNumber('pathlengthCm', 'Pathlength'),
+  reactionVolumeUl: physicalNumber('reactionVolumeUl', 'Reaction volume'),
+  sampleVolumeUl: physicalNumber('sampleVolumeUl', 'Sample volume'),
 });
 export type AssayConditions = z.infer<typeof assayConditionsSchema>;
 
@@ -53,8 +54,8 @@ const target = {
 const ratesFields = {
   mode: z.literal('rates'),
   ...assayConditionsSchema.shape,
-  totalRatePerMin: num('Total rate'),
-  backgroundRatePerMin: num('Background rate').nullable(),
+  totalRatePerMin: physicalNumber('ratePerMin', 'Total rate'),
+  backgroundRatePerMin: physicalNumber('ratePerMin', 'Background rate').nullable(),
 };
 
 const tracesFields = {
@@ -201,12 +202,12 @@ export const proteinCurveInputSchema = z.strictObject({
     .array(
       z.strictObject({
         concentrationMgPerMl: num('Standard concentration').min(0, 'Standard concentration cannot be negative'),
-        absorbance: num('Standard absorbance'),
+        absorbance: physicalNumber('absorbance', 'Standard absorbance'),
       }),
     )
     .min(3, 'Enter at least 3 standards')
     .max(40, 'At most 40 standards'),
-  unknownAbsorbances: z.array(num('Unknown absorbance')).min(1, 'Enter at least one reading of the specimen').max(10, 'At most 10 readings'),
+  unknownAbsorbances: z.array(physicalNumber('absorbance', 'Unknown absorbance')).min(1, 'Enter at least one reading of the specimen').max(10, 'At most 10 readings'),
   dilutionFactor: num('Dilution factor').min(1, 'Dilution factor is at least 1 (1 = undiluted)').max(10_000, 'Dilution factor is at most 10 000'),
 });
 export type ProteinCurveInput = z.infer<typeof proteinCurveInputSchema>;
@@ -216,7 +217,7 @@ export const saveProteinInputSchema = z.discriminatedUnion('kind', [
   proteinCurveInputSchema.extend({ kind: z.literal('curve'), ...version }).strict(),
   z.strictObject({
     kind: z.literal('direct'),
-    proteinMgPerMl: positive('Protein').max(1000, 'Protein is at most 1000 mg/mL'),
+    proteinMgPerMl: physicalNumber('proteinMgPerMl', 'Protein'),
     proteinSource: z
       .string()
       .trim()
@@ -274,7 +275,7 @@ export type UploadSummary = z.infer<typeof uploadSummarySchema>;
 /* ---------------------------------------------------------------- plate import */
 
 export const platePathlengthSchema = z.discriminatedUnion('mode', [
-  z.strictObject({ mode: z.literal('given'), cm: positive('Pathlength').max(10, 'Pathlength is at most 10 cm') }),
+  z.strictObject({ mode: z.literal('given'), cm: physicalNumber('pathlengthCm', 'Pathlength') }),
   z.strictObject({
     mode: z.literal('fill'),
     volumeUl: positive('Fill volume').max(5000, 'Fill volume is at most 5000 µL'),

@@ -95,15 +95,22 @@ export function calculateActivity(
 
   let activity: number | null = null;
   if (specificSlopePerMin !== null && Number.isFinite(factor) && factor > 0) {
-    activity = judgeSpecificSlope(
+    const ok = judgeSpecificSlope(
       specificSlopePerMin,
       slopeTotalPerMin!,
       request.background ? { identicalTraces: sameTrace(request.total, request.background) } : null,
       definition,
       flags,
-    )
-      ? Math.abs(specificSlopePerMin) * factor
-      : null;
+    );
+    judgeFractions(slopeTotalPerMin!, slopeBackgroundPerMin, slopeBlankPerMin, definition, flags);
+    activity = ok ? plausibleActivity(Math.abs(specificSlopePerMin) * factor, definition, flags) : null;
+  }
+
+  if (options.aInfinity !== undefined && definition.rateModel !== 'first_order') {
+    flags.push({
+      code: 'A_INFINITY_UNUSED',
+      message: `An end-point absorbance A∞ = ${fmt(options.aInfinity)} was given, but the ${definition.code} definition in force (version ${definition.version}) uses the linear rate model: A∞ was not used`,
+    });
   }
 
   let firstOrder: FirstOrderResult | null = null;
@@ -258,6 +265,57 @@ function judgeSpecificSlope(
   return ok;
 }
 
+/** A rate's share of the total, %, when both run the same way; null otherwise. */
+function shareOfTotal(part: number | null, total: number): number | null {
+  if (part === null || total === 0 || Math.sign(part) !== Math.sign(total)) return null;
+  return (100 * part) / total;
+}
+
+/**
+ * The inhibitor-insensitive (or pre-substrate) rate and the no-sample blank as shares of the total rate. When
+ * most of the total remains with the inhibitor, the activity is a small difference of two large slopes and
+ * every error in either is multiplied [common practice; limits set per definition].
+ */
+function judgeFractions(
+  total: number,
+  background: number | null,
+  blank: number | null,
+  definition: AssayDefinition,
+  flags: Flag[],
+): void {
+  const bgPct = shareOfTotal(background, total);
+  if (bgPct !== null && bgPct > definition.maxBackgroundPct && definition.background !== 'none') {
+    const what =
+      definition.background === 'inhibitor'
+        ? `with ${definition.backgroundNote || 'the inhibitor'} (inhibitor-insensitive)`
+        : `of the baseline (${definition.backgroundNote || 'before the substrate'})`;
+    flags.push({
+      code: 'HIGH_BACKGROUND_FRACTION',
+      message: `The rate ${what} is ${fmt(bgPct, 3)}% of the total rate (limit ${fmt(definition.maxBackgroundPct, 3)}%): only ${fmt(100 - bgPct, 3)}% is the ${definition.code} activity, so small errors in either slope move it a lot`,
+      values: { backgroundPct: bgPct, limitPct: definition.maxBackgroundPct },
+    });
+  }
+  const blankPct = shareOfTotal(blank, total);
+  if (blankPct !== null && blankPct > definition.maxBlankPct) {
+    flags.push({
+      code: 'HIGH_BLANK_FRACTION',
+      message: `The no-sample blank's rate is ${fmt(blankPct, 3)}% of the total rate (limit ${fmt(definition.maxBlankPct, 3)}%): most of the change happens without the sample`,
+      values: { blankPct, limitPct: definition.maxBlankPct },
+    });
+  }
+}
+
+/** The activity, or null with a flag when it is above the definition's plausible ceiling. */
+function plausibleActivity(activity: number, definition: AssayDefinition, flags: Flag[]): number | null {
+  if (activity <= definition.plausibleActivityMax) return activity;
+  flags.push({
+    code: 'IMPLAUSIBLE_ACTIVITY',
+    message: `The computed activity, ${fmt(activity, 4)} nmol/min/mg protein, is above the plausible ceiling of ${fmt(definition.plausibleActivityMax, 4)} for ${definition.code}: no activity is given. Check the units of the rates (A/min, not mA/min), the volumes (µL) and the protein (mg/mL)`,
+    values: { computed: activity, ceiling: definition.plausibleActivityMax },
+  });
+  return null;
+}
+
 /** Rates read off the instrument and typed in: ΔA/min of the total and, when measured, the background. */
 export interface RatesRequest extends Conditions {
   assay: CalculationRequest['assay'];
@@ -298,15 +356,15 @@ export function calculateActivityFromRates(
   const factor = checkedFactor(request, definition, flags);
   let activity: number | null = null;
   if (specificSlopePerMin !== null && Number.isFinite(factor) && factor > 0) {
-    activity = judgeSpecificSlope(
+    const ok = judgeSpecificSlope(
       specificSlopePerMin,
       total,
       background === null ? null : { identicalTraces: false },
       definition,
       flags,
-    )
-      ? Math.abs(specificSlopePerMin) * factor
-      : null;
+    );
+    judgeFractions(total, background, null, definition, flags);
+    activity = ok ? plausibleActivity(Math.abs(specificSlopePerMin) * factor, definition, flags) : null;
   }
   if (definition.rateModel === 'first_order') {
     flags.push({

@@ -82,7 +82,8 @@ function fitK(
     label,
     { ...settings, linearRangeMin: Number.NEGATIVE_INFINITY, linearRangeMax: Number.POSITIVE_INFINITY },
     log.choice,
-    { checkR2 },
+    // Residual SDs of a log trace are not absorbances: the reading-noise floor does not apply.
+    { checkR2, checkOutliers: false },
     flags,
   );
   if (!line) return null;
@@ -101,7 +102,10 @@ function fitK(
   return { k: -line.slopePerMin, r2: line.r2, window: { fromS: line.fromS, toS: line.toS } };
 }
 
-/** Apparent first-order rate constant of a falling cytochrome c trace, and k per mg protein. */
+/**
+ * Apparent first-order rate constant of a falling cytochrome c trace, and k per unit of protein
+ * concentration in the reaction (mL·min⁻¹·mg⁻¹: the same number as k per mg only in a 1 mL reaction).
+ */
 export function calculateFirstOrder(
   inputs: FirstOrderInputs,
   definition: AssayDefinition,

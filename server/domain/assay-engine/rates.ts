@@ -1,24 +1,39 @@
 import type { AssayDefinition, Flag, FittedLine, RateWindow, TracePoint } from '@/schemas/assay';
-import { fitTraceRange, longestEarlyWindowEnd } from './regression';
+import { findLinearWindow, isStraight, windowShape, worstOutlier, type WindowShape } from './linearity';
+import { fitTraceRange } from './regression';
 import { checkLinearRange, checkTrace, fmt, indexRange, type TraceLabel } from './trace';
 
 export type RateSettings = Pick<
   AssayDefinition,
-  'r2Threshold' | 'minPoints' | 'linearRangeMin' | 'linearRangeMax'
+  | 'r2Threshold'
+  | 'minPoints'
+  | 'linearRangeMin'
+  | 'linearRangeMax'
+  | 'curvatureLimitPct'
+  | 'lagMaxS'
+  | 'outlierLimitSd'
+  | 'readingNoiseFloor'
+  | 'nearZeroSlopePerMin'
 >;
 
 /**
  * How the readings to fit are chosen:
- * - manual: the technologist's window, both ends inclusive;
- * - auto: the longest early window (from the first reading) whose r² reaches the threshold with at
- *   least minPoints readings; the whole trace when none does (and r² is then flagged);
- * - all: every reading (a baseline recorded before the starting substrate).
+ * - manual: the technologist's window, both ends inclusive; checked for curvature and outliers, and
+ *   flagged (never refused) when it fails;
+ * - auto: the longest straight window, stepping over a slower opening stretch (a lag); none straight →
+ *   no slope, with NO_LINEAR_WINDOW (see linearity.ts). Never the whole trace as a fallback;
+ * - all: every reading (a baseline recorded before the starting substrate; a first-order log trace).
  */
 export type WindowChoice = { kind: 'manual'; window: RateWindow } | { kind: 'auto' } | { kind: 'all' };
 
 export interface FitOptions {
-  /** Flag r² under the threshold. Off for background and blank traces, which are flat by design. */
+  /**
+   * The trace the rate is read from (the total): its r² and curvature are judged. Off for background and
+   * blank traces, which are flat or small by design and share the total's window.
+   */
   checkR2: boolean;
+  /** Look for a single reading far off the line. Off for log-transformed (first-order) traces. */
+  checkOutliers?: boolean;
 }
 
 function windowLabel(choice: WindowChoice): string {
@@ -40,14 +55,15 @@ export function fitTrace(
   flags: Flag[],
 ): FittedLine | null {
   if (!checkTrace(trace, label, flags)) return null;
-  const range = selectRange(trace, settings, choice);
-  if (!range) {
+  if (trace.length < 3) {
     flags.push({
       code: 'TOO_FEW_POINTS',
       message: `${label} trace has ${trace.length} reading${trace.length === 1 ? '' : 's'}; at least 3 are needed for a slope`,
     });
     return null;
   }
+  const range = selectRange(trace, settings, choice, options.checkR2, label, flags);
+  if (!range) return null;
   const { lo, hi } = range;
   const count = hi - lo + 1;
   if (count < 3) {
@@ -69,8 +85,23 @@ export function fitTrace(
   if (options.checkR2 && fit.r2 < settings.r2Threshold) {
     flags.push({
       code: 'LOW_R2',
-      message: `${label} trace: r² ${fmt(fit.r2)} over ${fmt(fromS)}–${fmt(toS)} s is below the threshold ${fmt(settings.r2Threshold)}`,
+      message: `${label} trace: r² ${fmt(fit.r2)} over ${fmt(fromS)}–${fmt(toS)} s is below the threshold ${fmt(settings.r2Threshold)}: the readings scatter widely around the line`,
+      values: { r2: fit.r2, threshold: settings.r2Threshold },
     });
+  }
+  // The automatic window is straight by construction; a chosen one is checked and flagged.
+  if (options.checkR2 && choice.kind !== 'auto' && count >= 4) {
+    flagCurvature(windowShape(trace, lo, hi, settings.nearZeroSlopePerMin), label, fromS, toS, settings, flags);
+  }
+  if (options.checkOutliers !== false) {
+    const outlier = worstOutlier(trace, lo, hi, settings.outlierLimitSd, settings.readingNoiseFloor);
+    if (outlier) {
+      flags.push({
+        code: 'OUTLIER_READING',
+        message: `${label} trace, reading ${outlier.index + 1} (t = ${fmt(outlier.t)} s): absorbance ${fmt(outlier.a)} lies ${fmt(Math.abs(outlier.deviation), 2)} ${outlier.deviation > 0 ? 'above' : 'below'} the line through the other readings, ${fmt(outlier.sds, 2)} times their scatter (limit ${fmt(settings.outlierLimitSd, 2)}): look for a bubble or a knock, and move the window or repeat the reading`,
+        values: { reading: outlier.index + 1, t: outlier.t, sds: outlier.sds, limitSd: settings.outlierLimitSd },
+      });
+    }
   }
   checkLinearRange(trace, lo, hi, settings.linearRangeMin, settings.linearRangeMax, label, flags);
   return {
@@ -85,13 +116,35 @@ export function fitTrace(
   };
 }
 
-/** Index range for a choice, or null when the trace itself is shorter than 3 readings. */
+function flagCurvature(
+  shape: WindowShape,
+  label: TraceLabel,
+  fromS: number,
+  toS: number,
+  settings: RateSettings,
+  flags: Flag[],
+): void {
+  if (isStraight(shape, settings.curvatureLimitPct)) return;
+  const change = shape.changePct;
+  flags.push({
+    code: 'CURVATURE',
+    message:
+      change < 0
+        ? `${label} trace between ${fmt(fromS)} and ${fmt(toS)} s is curved: the straight line's rate is ${fmt(-change, 3)}% below the rate at the window's start (limit ${fmt(settings.curvatureLimitPct, 3)}%), so the activity is underestimated; a shorter, earlier window or a diluted sample gives the initial rate`
+        : `${label} trace between ${fmt(fromS)} and ${fmt(toS)} s speeds up: the rate at the window's start is ${fmt(change, 3)}% slower than the straight line's (limit ${fmt(settings.curvatureLimitPct, 3)}%), as after a lag; start the window later`,
+    values: { changePct: change, limitPct: settings.curvatureLimitPct },
+  });
+}
+
+/** Index range for a choice; null (with a flag) when the automatic choice finds no straight window. */
 export function selectRange(
   trace: readonly TracePoint[],
-  settings: Pick<RateSettings, 'minPoints' | 'r2Threshold'>,
+  settings: RateSettings,
   choice: WindowChoice,
+  judged: boolean,
+  label: TraceLabel,
+  flags: Flag[],
 ): { lo: number; hi: number } | null {
-  if (trace.length < 3) return null;
   const last = trace.length - 1;
   switch (choice.kind) {
     case 'manual':
@@ -99,14 +152,26 @@ export function selectRange(
     case 'all':
       return { lo: 0, hi: last };
     case 'auto': {
-      const end = longestEarlyWindowEnd(
-        trace,
-        0,
-        last,
-        Math.max(3, settings.minPoints),
-        settings.r2Threshold,
-      );
-      return { lo: 0, hi: end < 0 ? last : end };
+      // Too short for the laboratory's minimum: the whole trace, flagged by the caller for its length.
+      if (trace.length < Math.max(3, settings.minPoints)) return { lo: 0, hi: last };
+      const found = findLinearWindow(trace, settings);
+      if (found.kind === 'none') {
+        const s = found.shape;
+        flags.push({
+          code: 'NO_LINEAR_WINDOW',
+          message: `${label} trace: no stretch of ${s.n} or more readings is straight, so no initial rate can be read — across the first ${s.n} readings (${fmt(trace[found.lo]!.t)}–${fmt(trace[found.hi]!.t)} s) the rate already ${s.changePct < 0 ? 'falls' : 'rises'} by ${fmt(Math.abs(s.changePct), 3)}% (limit ${fmt(settings.curvatureLimitPct, 3)}%). No activity is given: dilute the sample or read more often, or set a window by hand (it will be flagged)`,
+          values: { changePct: s.changePct, limitPct: settings.curvatureLimitPct, fromS: trace[found.lo]!.t, toS: trace[found.hi]!.t },
+        });
+        return null;
+      }
+      if (found.lag && judged) {
+        flags.push({
+          code: 'LAG_EXCLUDED',
+          message: `${label} trace: the first ${found.lag.readings} reading${found.lag.readings === 1 ? '' : 's'} (before ${fmt(found.lag.toS)} s) were left out of the rate: the reaction ran ${fmt(found.lag.slowerPct, 3)}% slower there than afterwards (a lag)`,
+          values: { readings: found.lag.readings, toS: found.lag.toS, slowerPct: found.lag.slowerPct },
+        });
+      }
+      return { lo: found.lo, hi: found.hi };
     }
   }
 }

@@ -88,50 +88,6 @@ export function fitArrays(xs: ArrayLike<number>, ys: ArrayLike<number>, n = xs.l
   return finishFit(n, syy, sse, slope, intercept);
 }
 
-/**
- * The longest early window: the largest `hi` such that trace[lo..hi] holds at least `minPoints`
- * readings and its r² reaches `r2Threshold`. Running sums make the scan one pass over the trace.
- * Returns −1 when no such window exists.
- */
-export function longestEarlyWindowEnd(
-  trace: readonly TracePoint[],
-  lo: number,
-  hiMax: number,
-  minPoints: number,
-  r2Threshold: number,
-): number {
-  const first = trace[lo];
-  if (!first) return -1;
-  // Shifting by the first reading keeps the raw sums small before the cancellations below.
-  const t0 = first.t;
-  const a0 = first.a;
-  let sx = 0;
-  let sy = 0;
-  let sxx = 0;
-  let sxy = 0;
-  let syy = 0;
-  let best = -1;
-  for (let i = lo; i <= hiMax; i += 1) {
-    const p = trace[i]!;
-    const x = p.t - t0;
-    const y = p.a - a0;
-    sx += x;
-    sy += y;
-    sxx += x * x;
-    sxy += x * y;
-    syy += y * y;
-    const m = i - lo + 1;
-    if (m < minPoints) continue;
-    const cxx = sxx - (sx * sx) / m;
-    const cxy = sxy - (sx * sy) / m;
-    const cyy = syy - (sy * sy) / m;
-    // For least squares with an intercept, r² = cxy² / (cxx · cyy).
-    const r2 = cyy > 0 && cxx > 0 ? (cxy * cxy) / (cxx * cyy) : 0;
-    if (r2 >= r2Threshold) best = i;
-  }
-  return best;
-}
-
 /** y = c0 + c1·x + c2·x², least squares. */
 export interface QuadraticFit {
   c0: number;

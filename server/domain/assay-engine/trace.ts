@@ -8,6 +8,9 @@ export function fmt(x: number, digits = 4): string {
   return Number(x.toPrecision(digits)).toString();
 }
 
+/** Readings closer than this are not two readings: slopes over them would not be finite. */
+export const MIN_READING_GAP_S = 0.001;
+
 /**
  * Checks that every time and absorbance is finite and that times strictly increase. Pushes at most
  * one flag per problem kind, naming the first offending reading (1-based), and returns whether the
@@ -27,10 +30,13 @@ export function checkTrace(trace: readonly TracePoint[], label: TraceLabel, flag
       });
       return false;
     }
-    if (!reportedOrder && i > 0 && !(p.t > prevT)) {
+    if (!reportedOrder && i > 0 && !(p.t - prevT >= MIN_READING_GAP_S)) {
       flags.push({
         code: 'TIME_NOT_INCREASING',
-        message: `${label} trace, reading ${i + 1}: time ${fmt(p.t)} s is not after the previous reading (${fmt(prevT)} s); times must strictly increase`,
+        message:
+          p.t > prevT
+            ? `${label} trace, reading ${i + 1}: time ${fmt(p.t)} s is less than ${MIN_READING_GAP_S * 1000} ms after the previous reading (${fmt(prevT)} s); no photometer reads that fast`
+            : `${label} trace, reading ${i + 1}: time ${fmt(p.t)} s is not after the previous reading (${fmt(prevT)} s); times must strictly increase`,
       });
       reportedOrder = true;
       ok = false;

@@ -1,8 +1,15 @@
 import { Op, type Transaction } from 'sequelize';
-import { assayDefinitionSchema, type AssayDefinition, type StoredAssayDefinition } from '@/schemas/assay';
+import {
+  assayDefinitionSchema,
+  storedDefinitionData,
+  type AssayDefinition,
+  type StoredAssayDefinition,
+} from '@/schemas/assay';
 import type { AssayCode } from '@/schemas/common';
 import { UserModel } from '../users/user.model';
 import { AssayDefinitionModel } from './assay-definition.model';
+
+type StoredData = Parameters<typeof storedDefinitionData>[0];
 
 async function toStored(row: AssayDefinitionModel, names?: Map<number, string>): Promise<StoredAssayDefinition> {
   let createdBy: string | null = null;
@@ -11,7 +18,7 @@ async function toStored(row: AssayDefinitionModel, names?: Map<number, string>):
   }
   return {
     id: row.id,
-    definition: assayDefinitionSchema.parse(JSON.parse(row.data)),
+    definition: assayDefinitionSchema.parse(storedDefinitionData(JSON.parse(row.data) as StoredData)),
     changeNote: row.changeNote,
     createdBy,
     createdAt: row.createdAt.toISOString(),

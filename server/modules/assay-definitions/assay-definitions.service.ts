@@ -12,6 +12,7 @@ import type { User } from '@/schemas/user';
 import { calculateActivity } from '../../domain/assay-engine/engine';
 import { badInput, notFound, staleVersion, zodFields } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
+import { requireFinite } from '../measurements/compute';
 import * as repo from './assay-definitions.repository';
 import { writeTransaction } from '../../db/write-transaction';
 
@@ -95,5 +96,5 @@ export async function previewActivity(request: CalculationRequest): Promise<Calc
   const current = await getCurrentDefinition(request.assay);
   // The preview contract is the linear model; a first-order definition still answers its linear rate.
   const definition = { ...current.definition, rateModel: 'linear' as const };
-  return { ...calculateActivity(request, definition), definitionId: current.id };
+  return { ...requireFinite(calculateActivity(request, definition)), definitionId: current.id };
 }

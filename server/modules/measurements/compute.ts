@@ -1,12 +1,30 @@
 import type { AssayDefinition, CalculationResult } from '@/schemas/assay';
 import type { StoredInputs } from '@/schemas/measurement';
 import { calculateActivity, calculateActivityFromRates } from '../../domain/assay-engine/engine';
+import { firstNonFinite } from '../../domain/assay-engine/finite';
+import { badInput } from '../../lib/errors';
 
 /**
  * One measurement through the assay engine from what was stored with it: typed rates by the rate helper,
  * pasted readings and plate wells by the trace engine (a plate blank is subtracted as the engine says).
  */
 export function computeFromInputs(inputs: StoredInputs, definition: AssayDefinition): CalculationResult {
+  return requireFinite(computeUnchecked(inputs, definition));
+}
+
+/** Refuses (400, naming the value) a result holding NaN or ±Infinity, so none is ever stored. */
+export function requireFinite<T>(result: T): T {
+  const where = firstNonFinite(result);
+  if (where) {
+    throw badInput(
+      { [where]: `The calculation gave a number that is not finite (${where}); check the readings, volumes and protein` },
+      'The inputs lead to a number that cannot be stored',
+    );
+  }
+  return result;
+}
+
+function computeUnchecked(inputs: StoredInputs, definition: AssayDefinition): CalculationResult {
   const conditions = {
     assay: definition.code,
     pathlengthCm: inputs.pathlengthCm,

@@ -49,12 +49,19 @@ export function DefinitionEditor({ definition, onDone }: { definition: AssayDefi
       <SelectField label="Background subtracted" registration={reg('background')} options={backgroundKinds.map((b) => ({ value: b, label: b }))} />
       <TextField label="Background note" registration={reg('backgroundNote')} error={e?.backgroundNote?.message} />
       <SelectField label="Rate model" registration={reg('rateModel')} error={e?.rateModel?.message} options={rateModels.map((m) => ({ value: m, label: m === 'linear' ? 'linear rate' : 'first-order (complex IV only)' }))} />
-      <TextField label="r² threshold" inputMode="decimal" registration={reg('r2Threshold', true)} error={e?.r2Threshold?.message} />
+      <TextField label="r² below which a fit is flagged" inputMode="decimal" registration={reg('r2Threshold', true)} error={e?.r2Threshold?.message} />
       <TextField label="Fewest readings in a window" inputMode="numeric" registration={reg('minPoints', true)} error={e?.minPoints?.message} />
       <TextField label="Linear range, lowest A" inputMode="decimal" registration={reg('linearRangeMin', true)} error={e?.linearRangeMin?.message} />
       <TextField label="Linear range, highest A" inputMode="decimal" registration={reg('linearRangeMax', true)} error={e?.linearRangeMax?.message} />
       <TextField label="Near-zero slope (A/min)" inputMode="decimal" registration={reg('nearZeroSlopePerMin', true)} error={e?.nearZeroSlopePerMin?.message} />
       <TextField label="Replicate CV limit (%)" inputMode="decimal" registration={reg('cvLimitPct', true)} error={e?.cvLimitPct?.message} />
+      <TextField label="Curvature limit (% change across a window)" inputMode="decimal" registration={reg('curvatureLimitPct', true)} error={e?.curvatureLimitPct?.message} />
+      <TextField label="Latest start of the automatic window (s)" inputMode="decimal" registration={reg('lagMaxS', true)} error={e?.lagMaxS?.message} />
+      <TextField label="Stray reading limit (× scatter)" inputMode="decimal" registration={reg('outlierLimitSd', true)} error={e?.outlierLimitSd?.message} />
+      <TextField label="Reading noise of the instrument (A)" inputMode="decimal" registration={reg('readingNoiseFloor', true)} error={e?.readingNoiseFloor?.message} />
+      <TextField label="Background share limit (% of total rate)" inputMode="decimal" registration={reg('maxBackgroundPct', true)} error={e?.maxBackgroundPct?.message} />
+      <TextField label="Blank share limit (% of total rate)" inputMode="decimal" registration={reg('maxBlankPct', true)} error={e?.maxBlankPct?.message} />
+      <TextField label="Plausible activity ceiling (nmol/min/mg)" inputMode="decimal" registration={reg('plausibleActivityMax', true)} error={e?.plausibleActivityMax?.message} />
       <div className="sm:col-span-3">
         <TextArea label="What changed and why" registration={form.register('changeNote')} error={form.formState.errors.changeNote?.message} />
       </div>

@@ -55,7 +55,10 @@ function DefinitionCard({ stored }: { stored: StoredAssayDefinition }) {
             <div><dt className="text-ink-faint">Absorbance</dt><dd>{d.direction}</dd></div>
             <div><dt className="text-ink-faint">Background</dt><dd>{d.background}{d.backgroundNote ? ` (${d.backgroundNote})` : ''}</dd></div>
             <div><dt className="text-ink-faint">Rate model</dt><dd>{d.rateModel}</dd></div>
-            <div><dt className="text-ink-faint">Window rule</dt><dd>r² ≥ {d.r2Threshold}, ≥ {d.minPoints} readings</dd></div>
+            <div><dt className="text-ink-faint">Window rule</dt><dd>straight within {d.curvatureLimitPct}%, ≥ {d.minPoints} readings, start by {d.lagMaxS} s</dd></div>
+            <div><dt className="text-ink-faint">Flag when</dt><dd>r² &lt; {d.r2Threshold}; a reading &gt; {d.outlierLimitSd}× scatter off</dd></div>
+            <div><dt className="text-ink-faint">Share limits</dt><dd>background {d.maxBackgroundPct}%, blank {d.maxBlankPct}%</dd></div>
+            <div><dt className="text-ink-faint">Plausible up to</dt><dd>{d.plausibleActivityMax} nmol/min/mg</dd></div>
             <div><dt className="text-ink-faint">Linear range</dt><dd>{d.linearRangeMin}–{d.linearRangeMax} A</dd></div>
           </dl>
           <p className="mt-2 text-xs text-ink-faint">ε source: {d.epsilonSource}</p>

@@ -144,7 +144,7 @@ export function RateCheck({ definitions }: { definitions: StoredAssayDefinition[
             </div>
             {!manual ? (
               <p className="mt-2 text-xs text-ink-faint">
-                Automatic: the longest early stretch whose r² reaches {definition?.r2Threshold ?? '—'} with at least {definition?.minPoints ?? '—'} readings.
+                Automatic: the longest straight stretch of at least {definition?.minPoints ?? '—'} readings (its rate changing by no more than {definition?.curvatureLimitPct ?? '—'}% from start to end), starting after any slower opening within the first {definition?.lagMaxS ?? '—'} s. When no stretch is straight, no rate is given.
               </p>
             ) : null}
           </fieldset>

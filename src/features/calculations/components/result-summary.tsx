@@ -1,3 +1,4 @@
+import { FlagList } from '@/components/ui/flag-list';
 import { Card } from '@/components/ui/layout';
 import type { CalculationResult } from '@/schemas/assay';
 
@@ -14,18 +15,9 @@ export function ResultSummary({ result }: { result: CalculationResult }) {
         </p>
         <p className="text-sm text-ink-soft">{result.activity == null ? 'see the flags below' : result.unit}</p>
       </div>
-      {result.flags.length > 0 ? (
-        <ul aria-label="Flags" className="mt-3 flex flex-col gap-1.5">
-          {result.flags.map((f) => (
-            <li key={f.code} className="rounded-md border border-caution-line bg-caution-bg px-3 py-1.5 text-sm text-caution">
-              <span className="mr-2 font-mono text-xs font-semibold">{f.code}</span>
-              {f.message}
-            </li>
-          ))}
-        </ul>
-      ) : (
-        <p className="mt-3 text-sm text-within">No flags.</p>
-      )}
+      <div className="mt-3">
+        <FlagList flags={result.flags} size="sm" />
+      </div>
       <dl className="num mt-4 grid grid-cols-2 gap-x-6 gap-y-1.5 text-sm sm:grid-cols-3">
         <div><dt className="text-ink-faint">Total slope</dt><dd>{fmt(result.slopeTotalPerMin)} A/min</dd></div>
         <div><dt className="text-ink-faint">Background slope</dt><dd>{fmt(result.slopeBackgroundPerMin)} A/min</dd></div>

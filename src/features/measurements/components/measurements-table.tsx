@@ -2,6 +2,7 @@ import { useState } from 'react';
 import { Button } from '@/components/ui/button';
 import { Notice } from '@/components/ui/layout';
 import { ApiError } from '@/lib/api-client';
+import { flagSummary } from '@/schemas/assay';
 import { assayCodes } from '@/schemas/common';
 import { inputModeLabels, type CaseWorkup, type Measurement } from '@/schemas/measurement';
 import { useDeleteMeasurement, useUpdateMeasurement } from '../api/save-measurement';
@@ -117,7 +118,7 @@ export function MeasurementsTable({ workup }: { workup: CaseWorkup }) {
                 )}
               </td>
               <td className="py-1.5 pr-3 text-xs text-caution" title={m.flags.map((f) => f.message).join('\n')}>
-                {m.flags.map((f) => f.code).join(', ') || <span className="text-within">none</span>}
+                {flagSummary(m.flags) || <span className="text-within">none</span>}
               </td>
               <td className="py-1.5 pr-3 text-xs text-ink-soft">{m.enteredBy ?? '—'}</td>
               {workup.editable ? (

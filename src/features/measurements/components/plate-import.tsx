@@ -5,7 +5,7 @@ import { Button } from '@/components/ui/button';
 import { SelectField, TextField } from '@/components/ui/field';
 import { Notice } from '@/components/ui/layout';
 import { ApiError } from '@/lib/api-client';
-import type { RateWindow } from '@/schemas/assay';
+import { flagSummary, type RateWindow } from '@/schemas/assay';
 import type { PlateGroupPreview, PlateImportPlan, PlatePreview, WorkupSpecimen } from '@/schemas/measurement';
 import { MAX_PLATE_FILE_BYTES } from '@/schemas/plate';
 import { useImportPlate, usePreviewPlate } from '../api/plate-import';
@@ -106,7 +106,7 @@ function Summaries({ preview }: { preview: PlatePreview }) {
             <td className="py-1 pr-3">{fmt(s.mean)}</td>
             <td className="py-1 pr-3">{fmt(s.sd, 3)}</td>
             <td className="py-1 pr-3">{fmt(s.cvPct, 3)}</td>
-            <td className="py-1 pr-3 text-xs text-caution">{s.flags.map((f) => f.code).join(', ')}</td>
+            <td className="py-1 pr-3 text-xs text-caution" title={s.flags.map((f) => f.message).join('\n')}>{flagSummary(s.flags)}</td>
           </tr>
         ))}
       </tbody>

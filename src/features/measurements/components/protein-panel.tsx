@@ -13,7 +13,7 @@ import {
 import { usePreviewProteinCurve, useSaveProtein } from '../api/save-protein';
 import { fmt } from '../utils/format';
 import { parseNumberList, parseNumberPairs } from '../utils/paste';
-import { FlagList } from './flag-list';
+import { FlagList } from '@/components/ui/flag-list';
 
 function CurveChart({ input, result }: { input: ProteinCurveInput; result: ProteinCurveResult }) {
   if (result.c0 === null || result.c1 === null) return null;

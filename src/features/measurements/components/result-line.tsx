@@ -1,6 +1,6 @@
 import type { CalculationResult } from '@/schemas/assay';
 import { fmt } from '../utils/format';
-import { FlagList } from './flag-list';
+import { FlagList } from '@/components/ui/flag-list';
 
 /** One computed result: the activity, the slopes behind it, the window and the flags. */
 export function ResultLine({ result, compact = false }: { result: CalculationResult; compact?: boolean }) {

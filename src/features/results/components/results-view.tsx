@@ -1,4 +1,4 @@
-import { defaultDiagnosticCriteria } from '@/schemas/assay';
+import { defaultDiagnosticCriteria, flagSummary } from '@/schemas/assay';
 import { specimenTypeLabels } from '@/schemas/common';
 import {
   bandThresholds,
@@ -119,7 +119,7 @@ function AssayRow({ a, showLabel, pctThresholds }: { a: AssayResult; showLabel: 
           <span className="text-within">none</span>
         ) : (
           <details>
-            <summary className="cursor-pointer text-caution">{[...new Set(a.flags.map((f) => f.code))].join(', ')}</summary>
+            <summary className="cursor-pointer text-caution">{flagSummary(a.flags)}</summary>
             <ul className="mt-1 flex flex-col gap-0.5 text-ink-soft">
               {a.flags.map((f, i) => (
                 <li key={i}>{f.message}</li>

@@ -40,11 +40,13 @@ describe('first-order rate constant', () => {
     expect(r.flags).toEqual([]);
   });
 
-  it('when k is divided by protein, then it is per mg protein per mL of reaction', () => {
+  it('when k is divided by protein, then it is per mg/mL of protein in the reaction, labelled so', () => {
     // 20 µL of 2 mg/mL in 1 mL = 0.04 mg/mL in the cuvette (0.04 mg in 1 mL): 0.8 / 0.04 = 20 [derived].
     const r = calculateFirstOrder({ total: decay(0.95, 0.15, 0.8), aInfinity: 0.15, ...volumes }, civ);
     expect(r.kPerMg).toBeCloseTo(20, 8);
-    expect(r.unit).toBe('min⁻¹ per mg protein');
+    // The unit names the concentration, not a mass: per mg only in a 1 mL reaction (issue: kPerMg label).
+    expect(r.unit).toMatch(/^mL·min⁻¹·mg⁻¹/);
+    expect(r.unit).toMatch(/per mg\/mL protein in the reaction/);
     expect(r.basis).toBe('first_order_k');
   });
 

@@ -5,7 +5,6 @@ import {
   fitArrays,
   fitQuadratic,
   fitTraceRange,
-  longestEarlyWindowEnd,
 } from '../../../../server/domain/assay-engine/regression';
 
 const traceArb = fc
@@ -37,26 +36,6 @@ describe('fitTraceRange and fitArrays', () => {
     const fit = fitArrays(xs, ys);
     expect(fit.slope).toBeCloseTo(lr.m, 12);
     expect(fit.intercept).toBeCloseTo(lr.b, 12);
-  });
-});
-
-describe('longestEarlyWindowEnd', () => {
-  it('when scanned, then it finds the same window as a brute-force search with simple-statistics (property)', () => {
-    // Definition (issue item 2): the longest early window whose r² passes the threshold, with a minimum
-    // number of points. Brute force: r² of every prefix by simple-statistics.
-    fc.assert(
-      fc.property(traceArb, fc.double({ min: 0.3, max: 0.999, noNaN: true }), fc.integer({ min: 3, max: 8 }), (trace, threshold, minPoints) => {
-        let expected = -1;
-        for (let hi = minPoints - 1; hi < trace.length; hi += 1) {
-          const data = trace.slice(0, hi + 1).map((p) => [p.t, p.a]);
-          const r2 = rSquared(data, linearRegressionLine(linearRegression(data)));
-          // Skip prefixes whose r² sits on the threshold within rounding: the two sums differ in the last bits.
-          if (Math.abs(r2 - threshold) < 1e-9) return;
-          if (r2 >= threshold) expected = hi;
-        }
-        expect(longestEarlyWindowEnd(trace, 0, trace.length - 1, minPoints, threshold)).toBe(expected);
-      }),
-    );
   });
 });
 

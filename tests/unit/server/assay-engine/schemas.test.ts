@@ -58,10 +58,10 @@ describe('calculationRequestSchema', () => {
       sampleVolumeUl: 0,
       proteinMgPerMl: -0.5,
     });
-    expect(errors.pathlengthCm).toEqual(['pathlengthCm must be greater than 0']);
-    expect(errors.reactionVolumeUl).toEqual(['reactionVolumeUl must be greater than 0']);
-    expect(errors.sampleVolumeUl).toEqual(['sampleVolumeUl must be greater than 0']);
-    expect(errors.proteinMgPerMl).toEqual(['proteinMgPerMl must be greater than 0']);
+    expect(errors.pathlengthCm).toEqual(['pathlengthCm must be at least 0.01 cm']);
+    expect(errors.reactionVolumeUl).toEqual(['reactionVolumeUl must be at least 1 µL']);
+    expect(errors.sampleVolumeUl).toEqual(['sampleVolumeUl must be at least 0.1 µL']);
+    expect(errors.proteinMgPerMl).toEqual(['proteinMgPerMl must be at least 0.001 mg/mL']);
   });
 
   it('when the total or background has fewer than 3 readings, then that trace is named', () => {
