@@ -50,19 +50,24 @@ export class WindowSums {
     private readonly a0: number,
   ) {}
 
-  add(p: TracePoint): void {
+  add(p: TracePoint, sign: 1 | -1 = 1): void {
     const x = (p.t - this.t0) / 60;
     const y = p.a - this.a0;
     const x2 = x * x;
-    this.n += 1;
-    this.sx += x;
-    this.sx2 += x2;
-    this.sx3 += x2 * x;
-    this.sx4 += x2 * x2;
-    this.sy += y;
-    this.sxy += x * y;
-    this.sx2y += x2 * y;
-    this.syy += y * y;
+    this.n += sign;
+    this.sx += sign * x;
+    this.sx2 += sign * x2;
+    this.sx3 += sign * x2 * x;
+    this.sx4 += sign * x2 * x2;
+    this.sy += sign * y;
+    this.sxy += sign * x * y;
+    this.sx2y += sign * x2 * y;
+    this.syy += sign * y * y;
+  }
+
+  /** Takes a reading added before back out (the window shrinks from its end). */
+  remove(p: TracePoint): void {
+    this.add(p, -1);
   }
 
   /** The straight-line and quadratic view of the readings added so far (needs n ≥ 3). */
@@ -157,7 +162,7 @@ export interface NoWindow {
 /**
  * The automatic rate window:
  * 1. for every start within `lagMaxS` of the first reading (leaving at least `minPoints` readings), the
- *    longest straight window from that start;
+ *    longest straight window from that start (searched from the longest down);
  * 2. of those, the earliest start whose rate is within noise of the fastest one (4·√2 standard errors of
  *    the fastest window's slope, and at least 0.5%): a slower opening stretch is a lag and is stepped over, while on a straight trace
  *    every start gives the same rate and the first reading is kept;
@@ -171,16 +176,18 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
   let firstShortest: { lo: number; hi: number; shape: WindowShape } | null = null;
 
   for (let lo = 0; lo + minPoints - 1 <= last && trace[lo]!.t - t0 <= settings.lagMaxS; lo += 1) {
+    // Longest first: all readings from lo, then shrink from the end until the window is straight.
     const sums = new WindowSums(trace[lo]!.t, trace[lo]!.a);
-    let best: { hi: number; shape: WindowShape } | null = null;
-    for (let hi = lo; hi <= last; hi += 1) {
-      sums.add(trace[hi]!);
-      if (sums.n < minPoints) continue;
+    for (let i = lo; i <= last; i += 1) sums.add(trace[i]!);
+    for (let hi = last; hi - lo + 1 >= minPoints; hi -= 1) {
       const shape = sums.shape(settings.nearZeroSlopePerMin);
-      if (lo === 0 && sums.n === minPoints) firstShortest = { lo, hi, shape };
-      if (isStraight(shape, settings.curvatureLimitPct)) best = { hi, shape };
+      if (isStraight(shape, settings.curvatureLimitPct)) {
+        candidates.push({ lo, hi, shape });
+        break;
+      }
+      if (lo === 0 && hi - lo + 1 === minPoints) firstShortest = { lo, hi, shape };
+      sums.remove(trace[hi]!);
     }
-    if (best) candidates.push({ lo, hi: best.hi, shape: best.shape });
   }
 
   if (candidates.length === 0) {
