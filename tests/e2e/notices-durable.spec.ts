@@ -28,7 +28,9 @@ let dataDir = '';
 
 const signedIn = (origin: string, email: string) => signedInAgent(origin, origin, email, PASSWORD);
 
-const mailEnv = () => ({ SMTP_HOST: '127.0.0.1', SMTP_PORT: String(smtp.port), NOTICE_POLL_MS: '500' });
+// A short lease (stored with each claim), so that a notice left "sending" by a killed process is taken up again
+// within the test rather than after the default 2 minutes.
+const mailEnv = () => ({ SMTP_HOST: '127.0.0.1', SMTP_PORT: String(smtp.port), NOTICE_POLL_MS: '500', NOTICE_LEASE_MS: '5000' });
 const reachedMailServer = (accession: string) => smtp.received.filter((m) => m.includes(accession)).length;
 
 /** Polls the outbox until `done` holds (bounded); returns the last answer. No timing is asserted. */
@@ -38,7 +40,7 @@ async function outboxUntil(admin: request.Agent, done: (o: Outbox) => boolean, w
     expect(res.status).toBe(200);
     const o = res.body as Outbox;
     if (done(o)) return o;
-    if (i > 240) throw new Error(`${what}: not reached; outbox now ${JSON.stringify(o.deliveries.slice(0, 12))}`);
+    if (i > 600) throw new Error(`${what}: not reached; outbox now ${JSON.stringify(o.deliveries.slice(0, 12))}`);
     await new Promise((r) => setTimeout(r, 250));
   }
 }
@@ -106,6 +108,56 @@ describe('notices after a kill -9 between signing and sending', () => {
     const demo = o.deliveries.filter((d) => !ids.has(d.reportId ?? -1));
     expect(demo.length).toBeGreaterThan(0);
     expect(demo.every((d) => d.status === 'sent' || d.status === 'failed')).toBe(true);
+  });
+
+  it('when the worker is running and the process is killed in the middle of parallel signings, then after a restart every acknowledged signature has its notice and every stored signature has exactly one', async () => {
+    // Keep the server from test 2 (same database), worker running at full speed.
+    const running = server!;
+    const [tech, director] = await Promise.all([
+      signedIn(running.origin, 'technologist@demo.test'),
+      signedIn(running.origin, 'director@demo.test'),
+    ]);
+    const cases = [];
+    for (let i = 0; i < SIGNINGS; i += 1) cases.push(await createCaseAwaitingReview(tech, { referringClinicianId: clinicianId }));
+    const acked: { reportId: number; accession: string }[] = [];
+    let killed: Promise<void> | null = null;
+    await Promise.all(
+      cases.map((c) =>
+        director
+          .post(`/api/cases/${c.id}/sign`)
+          .send({ password: PASSWORD })
+          .then(
+            (res) => {
+              if (res.status === 201) acked.push({ reportId: res.body.report.id as number, accession: c.accession });
+              // Killed as soon as half the answers are in: the rest are cut off wherever they are.
+              if (acked.length >= SIGNINGS / 2) killed ??= running.kill();
+            },
+            () => undefined,
+          ),
+      ),
+    );
+    await (killed ?? running.kill());
+    expect(acked.length).toBeGreaterThanOrEqual(SIGNINGS / 2);
+
+    server = await startServer(mailEnv(), { dataDir });
+    const [admin, lab] = await Promise.all([signedIn(server.origin, 'admin@demo.test'), signedIn(server.origin, 'technologist@demo.test')]);
+    const ackedIds = new Set(acked.map((a) => a.reportId));
+    const o = await outboxUntil(
+      admin,
+      (x) => x.deliveries.filter((d) => ackedIds.has(d.reportId ?? -1) && d.status === 'sent').length === acked.length,
+      'every acknowledged notice sent after the second kill',
+    );
+    for (const a of acked) expect(reachedMailServer(a.accession)).toBeGreaterThanOrEqual(1);
+    // Whatever the kill cut off: a case that ended up signed has exactly one notice; one that did not has none.
+    for (const c of cases) {
+      const reports = ((await lab.get(`/api/cases/${c.id}/reports`)).body as { items: { id: number }[] }).items;
+      const notices = o.deliveries.filter((d) => d.accession === c.accession);
+      expect(notices).toHaveLength(reports.length);
+      if (reports.length) expect(notices[0]!.reportId).toBe(reports[0]!.id);
+    }
+    const stored = cases.filter((c) => o.deliveries.some((d) => d.accession === c.accession)).length;
+    const twice = cases.filter((c) => reachedMailServer(c.accession) > 1).length;
+    console.info(`kill mid-signing: ${acked.length} acknowledged, ${stored} stored, ${twice} mailed more than once`);
   });
 
   it('when the mail server is busy for one clinician and refuses another, then the Sent e-mail page shows waiting, sent and not sent with the reasons, and a refused notice can be sent again', async () => {
