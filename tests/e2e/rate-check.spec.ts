@@ -31,7 +31,7 @@ describe('rate check, in Chromium', () => {
     expect(await page.locator('figure .recharts-line').count()).toBe(2); // a fitted line per trace
     await page.getByLabel('Set the window by hand').check();
     await page.getByLabel('To (s)').fill('40');
-    await expect(page.getByText('0–40 s (set by hand)').waitFor().then(() => true)).resolves.toBe(true);
+    await page.getByText('0–40 s (set by hand)').waitFor();
     await screenshot(page, 'rate-check');
 
     // Swap the traces: the specific slope now rises for a falling assay -> a named flag, no activity.
@@ -39,8 +39,32 @@ describe('rate check, in Chromium', () => {
     await page.getByLabel(/Total trace/).fill(lines(1.1, -0.01));
     await page.getByLabel(/Background trace/).fill(lines(1.2, -0.0348));
     await page.getByRole('button', { name: 'Calculate' }).click();
-    await expect(page.getByTestId('activity').filter({ hasText: 'No activity' }).waitFor().then(() => true)).resolves.toBe(true);
-    await expect(page.getByRole('list', { name: 'Flags' }).textContent()).resolves.toContain('WRONG_SIGN');
+    await page.getByTestId('activity').filter({ hasText: 'No activity' }).waitFor();
+    await expect(page.getByRole('list', { name: 'Flags' }).textContent()).resolves.toContain('Rate runs the wrong way');
+    await page.close();
+  });
+
+  it('when a curved complex IV trace is pasted, then no activity is read off the curve; a window set by hand gives one, flagged as curved', async () => {
+    // A = 0.6 + 0.7·e^(−0.5·t/min) every 10 s for 300 s: initial rate 0.35 A/min [analytic]; every 5-reading
+    // window already loses about 15% of it, so no straight stretch exists.
+    const decay = Array.from({ length: 31 }, (_, i) => `${i * 10}\t${(0.6 + 0.7 * Math.exp((-0.5 * i * 10) / 60)).toFixed(6)}`).join('\n');
+    const page = await browser.newPage();
+    await signIn(page, server.origin, 'technologist@demo.test');
+    await page.getByRole('link', { name: 'Rate check' }).click();
+    await page.getByLabel('Assay').selectOption('CIV');
+    await page.getByLabel(/Total trace/).fill(decay);
+    await page.getByRole('button', { name: 'Calculate' }).click();
+    await page.getByTestId('activity').filter({ hasText: 'No activity' }).waitFor();
+    const flags = page.getByRole('list', { name: 'Flags' });
+    await expect(flags.textContent()).resolves.toMatch(/No straight stretch: no rate given\..*falls by 1\d(\.\d+)?%/);
+    await screenshot(page, 'rate-check-curved-refused');
+
+    await page.getByLabel('Set the window by hand').check();
+    await page.getByLabel('From (s)').fill('0');
+    await page.getByLabel('To (s)').fill('80');
+    await page.getByText('Window is curved').waitFor();
+    await expect(page.getByTestId('activity').textContent()).resolves.toMatch(/^\d+(\.\d+)?$/);
+    await screenshot(page, 'rate-check-curved-by-hand');
     await page.close();
   });
 });

@@ -4,6 +4,13 @@ import type { CalculationResult } from '@/schemas/assay';
 
 const fmt = (v: number | null | undefined, digits = 4) => (v == null ? '—' : Number(v.toPrecision(digits)).toString());
 
+function windowText(result: CalculationResult): string {
+  const span = result.window ? `${result.window.fromS}–${result.window.toS} s` : '—';
+  if (!result.windowAuto) return `${span} (set by hand)`;
+  // The automatic search found nothing straight: say so rather than show the readings' span as a window.
+  return result.fitTotal ? `${span} (automatic)` : `none straight in ${span}`;
+}
+
 /** The activity with everything that produced it: slopes, window, r², constants and their source, flags. */
 export function ResultSummary({ result }: { result: CalculationResult }) {
   const i = result.inputs;
@@ -23,7 +30,7 @@ export function ResultSummary({ result }: { result: CalculationResult }) {
         <div><dt className="text-ink-faint">Background slope</dt><dd>{fmt(result.slopeBackgroundPerMin)} A/min</dd></div>
         <div><dt className="text-ink-faint">Specific slope</dt><dd>{fmt(result.specificSlopePerMin)} A/min</dd></div>
         <div><dt className="text-ink-faint">r² (total)</dt><dd>{fmt(result.r2, 5)}</dd></div>
-        <div><dt className="text-ink-faint">Window</dt><dd>{result.window ? `${result.window.fromS}–${result.window.toS} s` : '—'} {result.windowAuto ? '(automatic)' : '(set by hand)'}</dd></div>
+        <div><dt className="text-ink-faint">Window</dt><dd>{windowText(result)}</dd></div>
         <div><dt className="text-ink-faint">Definition</dt><dd>{result.assay} v{result.definitionVersion}</dd></div>
       </dl>
       <div className="mt-4 rounded-md bg-paper-sunk px-3 py-2 text-xs text-ink-soft">
