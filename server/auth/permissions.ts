@@ -64,6 +64,8 @@ export const permissions = {
   // and answers 404 for anything else); administrators none. Only a director signs or corrects.
   'GET /api/reports': [...LAB, 'clinician'],
   'GET /api/reports/by-case': [...LAB, 'clinician'],
+  // The referring clinician's own cases not reported yet (state in words, no results).
+  'GET /api/reports/in-progress': ['clinician'],
   'GET /api/reports/:id': [...LAB, 'clinician'],
   'GET /api/reports/:id/pdf': [...LAB, 'clinician'],
   'GET /api/cases/:id/reports': LAB,

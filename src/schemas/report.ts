@@ -65,6 +65,31 @@ export const caseReportsSchema = z.object({
 export type CaseReports = z.infer<typeof caseReportsSchema>;
 export const caseReportsListSchema = z.array(caseReportsSchema);
 
+/**
+ * A referred case the laboratory has not reported yet (GET /api/reports/in-progress): who and what, and how
+ * far the work has gone, in plain words. Never any result, draft or reviewer's note.
+ */
+export const inProgressStates = ['received', 'in_assay', 'awaiting_review'] as const;
+export const inProgressStateSchema = z.enum(inProgressStates);
+export type InProgressState = z.infer<typeof inProgressStateSchema>;
+export const inProgressStateWords: Record<InProgressState, string> = {
+  received: 'Specimen received; testing has not started yet',
+  in_assay: 'Being tested in the laboratory',
+  awaiting_review: 'Testing done; waiting for the director to check and sign',
+};
+export const inProgressCaseSchema = z
+  .object({
+    caseId: z.number().int(),
+    accession: z.string(),
+    patientName: z.string(),
+    specimenTypes: z.array(specimenTypeSchema),
+    state: inProgressStateSchema,
+    receivedAt: z.string().nullable(),
+  })
+  .strict();
+export type InProgressCase = z.infer<typeof inProgressCaseSchema>;
+export const inProgressListSchema = z.object({ items: z.array(inProgressCaseSchema) });
+
 /* ---------------------------------------------------------------- signing */
 
 export const DEFAULT_SIGNATURE_MEANING = 'Reviewed and approved for release';

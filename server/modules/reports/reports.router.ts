@@ -16,6 +16,9 @@ export function reportsRouter(sequelize: Sequelize, notices: NoticeDeps): Router
   route(r, 'GET /api/reports/by-case', {}, async (_in, req, res) => {
     res.json(await reports.listCaseReportsFor(req.user!));
   });
+  route(r, 'GET /api/reports/in-progress', {}, async (_in, req, res) => {
+    res.json({ items: await reports.listInProgressFor(req.user!) });
+  });
   route(r, 'GET /api/reports/:id', { params: idParamsSchema }, async ({ params }, req, res) => {
     res.json(await reports.getReportFor(req.user!, params.id));
   });

@@ -1,6 +1,7 @@
-import type { CaseReports, ReportDetail, ReportListItem } from '@/schemas/report';
+import type { CaseReports, InProgressCase, ReportDetail, ReportListItem } from '@/schemas/report';
 import type { User } from '@/schemas/user';
 import { forbidden, notFound } from '../../lib/errors';
+import { listInProgressOfClinician } from './in-progress.repository';
 import * as repo from './reports.repository';
 
 /*
@@ -32,6 +33,12 @@ async function details(reports: repo.StoredReport[]): Promise<ReportDetail[]> {
 /** GET /api/reports: every version the user may read, newest signature first. */
 export async function listReportsFor(user: User): Promise<ReportListItem[]> {
   return (await repo.listReports(scopeOf(user))).map(repo.toListItem);
+}
+
+/** GET /api/reports/in-progress: the clinician's own referred cases not reported yet (no results). */
+export async function listInProgressFor(user: User): Promise<InProgressCase[]> {
+  if (user.role !== 'clinician') throw forbidden('This list is the referring clinician\'s own');
+  return listInProgressOfClinician(user.id);
 }
 
 /** The readable reports grouped by case, cases with the newest signature first, versions newest first. */
