@@ -84,6 +84,8 @@ export const permissions = {
   'POST /api/cases/:id/measurements': LAB,
   'PUT /api/measurements/:id': LAB,
   'DELETE /api/measurements/:id': LAB,
+  'POST /api/measurements/:id/exclude': LAB,
+  'POST /api/measurements/:id/include': LAB,
   'POST /api/protein-curves/preview': LAB,
   'PUT /api/specimens/:id/protein': LAB,
   'POST /api/cases/:id/plate-uploads/preview': LAB,

@@ -77,16 +77,47 @@ export type CreateMeasurementInput = z.infer<typeof createMeasurementInputSchema
 
 const version = { version: z.number().int().min(0) };
 
+/** A new replicate number for a saved measurement; left out, the number stays. */
+const renumber = { replicate: target.replicate.optional() };
+
 /**
- * A change to a saved measurement, with the version the editor saw. Specimen, assay and replicate are fixed;
- * a plate measurement can only have its window moved (its readings come from the kept file).
+ * A change to a saved measurement, with the version the editor saw. Specimen and assay are fixed; the replicate
+ * number may change (409 when that number is taken); a plate measurement can only have its window moved and its
+ * replicate renumbered (its readings come from the kept file).
  */
 export const updateMeasurementInputSchema = z.discriminatedUnion('mode', [
-  z.strictObject({ ...ratesFields, ...version }).refine(sampleWithinReaction, sampleWithinReactionIssue),
-  z.strictObject({ ...tracesFields, ...version }).refine(sampleWithinReaction, sampleWithinReactionIssue),
-  z.strictObject({ mode: z.literal('plate'), window: rateWindowSchema.nullable(), ...version }),
+  z.strictObject({ ...ratesFields, ...renumber, ...version }).refine(sampleWithinReaction, sampleWithinReactionIssue),
+  z.strictObject({ ...tracesFields, ...renumber, ...version }).refine(sampleWithinReaction, sampleWithinReactionIssue),
+  z.strictObject({ mode: z.literal('plate'), window: rateWindowSchema.nullable(), ...renumber, ...version }),
 ]);
 export type UpdateMeasurementInput = z.infer<typeof updateMeasurementInputSchema>;
+
+/**
+ * Why a replicate is left out of the case's calculations. One line of plain text: it is printed in the report's
+ * methods section beside the replicate.
+ */
+export const exclusionReasonSchema = z
+  .string({ error: 'Give the reason for leaving this replicate out' })
+  .trim()
+  .min(3, 'Give the reason for leaving this replicate out (at least 3 characters)')
+  .max(300, 'The reason is at most 300 characters')
+  .superRefine(plainText('Reason'));
+
+/** Leaving a replicate out of means, SD, CV, ratios and patterns, with the version the person saw. */
+export const excludeMeasurementInputSchema = z.strictObject({ reason: exclusionReasonSchema, ...version });
+export type ExcludeMeasurementInput = z.infer<typeof excludeMeasurementInputSchema>;
+
+/** Counting an excluded replicate again. */
+export const includeMeasurementInputSchema = z.strictObject({ ...version });
+export type IncludeMeasurementInput = z.infer<typeof includeMeasurementInputSchema>;
+
+/** A replicate left out of the calculations: why, by whom (the account's name) and when; null while it counts. */
+export const measurementExclusionSchema = z.object({
+  reason: z.string(),
+  by: z.string().nullable(),
+  at: z.string(),
+});
+export type MeasurementExclusion = z.infer<typeof measurementExclusionSchema>;
 
 /** `?version=N` on a DELETE: the version the person saw. */
 export const versionQuerySchema = z.object({ version: z.coerce.number().int().min(0) }).strict();
@@ -139,6 +170,9 @@ export const measurementSchema = z.object({
   flags: z.array(flagSchema),
   uploadId: z.number().int().nullable(),
   enteredBy: z.string().nullable(),
+  excluded: measurementExclusionSchema.nullable(),
+  /** When the measurement was first part of a submission for review; from then on it is excluded, never deleted. */
+  submittedAt: z.string().nullable(),
   version: z.number().int(),
   createdAt: z.string(),
   updatedAt: z.string(),

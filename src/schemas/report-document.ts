@@ -120,6 +120,21 @@ export const reportGraphicSchema = z.object({
     .nullable(),
 });
 
+/** A replicate measured but left out of the results, printed in the methods section with its reason. */
+export const reportExcludedReplicateSchema = z.object({
+  /** The specimen label, e.g. 'A'. */
+  specimenLabel: text,
+  assay: assayCodeSchema,
+  replicate: z.number().int().positive(),
+  /** The replicate's own activity as measured; null when it gave none. */
+  value: z.number().finite().nullable(),
+  unit: text,
+  reason: text,
+  /** Who excluded it (the account's name). */
+  by: text,
+});
+export type ReportExcludedReplicate = z.infer<typeof reportExcludedReplicateSchema>;
+
 export const reportMethodsSchema = z.object({
   /** Brief method and constant sources, e.g. 'Beer–Lambert, ε NADH 6.2 mM⁻¹cm⁻¹ at 340 nm'. */
   summary: text,
@@ -130,6 +145,10 @@ export const reportMethodsSchema = z.object({
       description: text,
     }),
   ),
+  /** Versions used that their own drafter approved (a single-director laboratory); absent when none were. */
+  selfApproval: text.optional(),
+  /** Replicates excluded from the calculations, with reason and by whom (absent in reports signed before). */
+  excludedReplicates: z.array(reportExcludedReplicateSchema).max(200).optional(),
 });
 
 export const reportSignatureSchema = z.object({

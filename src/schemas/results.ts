@@ -2,6 +2,7 @@ import { z } from 'zod';
 import { diagnosticCriteriaSchema, flagSchema, patternKinds, valueBasisSchema } from './assay';
 import { caseStateSchema } from './case';
 import { assayCodeSchema, measureSchema, specimenTypeSchema, type AssayCode } from './common';
+import { measurementExclusionSchema } from './measurement';
 
 /*
  * The results of one case: every assay of every specimen with its replicates, ratios and comparisons with
@@ -71,6 +72,8 @@ export const replicateResultSchema = z.object({
   definitionId: z.number().int(),
   definitionVersion: z.number().int(),
   flags: z.array(flagSchema),
+  /** Set when the replicate is left out of the mean, SD, CV, ratios and pattern; absent in older snapshots. */
+  excluded: measurementExclusionSchema.nullable().optional(),
 });
 export type ReplicateResult = z.infer<typeof replicateResultSchema>;
 
@@ -79,7 +82,7 @@ export const assayResultSchema = z.object({
   name: z.string(),
   unit: z.string(),
   replicates: z.array(replicateResultSchema),
-  /** Replicates that gave a value, their mean, sample SD (n − 1) and CV%. */
+  /** Replicates that gave a value and are not excluded, their mean, sample SD (n − 1) and CV%. */
   n: z.number().int(),
   mean: z.number().nullable(),
   sd: z.number().nullable(),

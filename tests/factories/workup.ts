@@ -1,5 +1,5 @@
 import type request from 'supertest';
-import { storedAssayDefinitionSchema } from '@/schemas/assay';
+import { storedAssayDefinitionSchema, type AssayDefinition } from '@/schemas/assay';
 import type { CaseDetail, RegisterCaseInput } from '@/schemas/case';
 import type { AssayCode } from '@/schemas/common';
 import { createCase } from './cases';
@@ -44,6 +44,31 @@ function check(res: request.Response, status: number, what: string): void {
   if (res.status !== status) throw new Error(`${what}: ${res.status} ${JSON.stringify(res.body)}`);
 }
 
+/** The protein every workup of this factory records (mg/mL). */
+export const WORKUP_PROTEIN_MG_PER_ML = PROTEIN_MG_PER_ML;
+
+/** Typed rates that give `wanted` nmol/min/mg by the relation above (background 0 where the assay subtracts one). */
+export function ratesFor(def: AssayDefinition, wanted: number, specimenId: number, replicate: number) {
+  const slope = (wanted * def.epsilonPerMmPerCm * CONDITIONS.pathlengthCm * CONDITIONS.sampleVolumeUl * PROTEIN_MG_PER_ML) /
+    (CONDITIONS.reactionVolumeUl * 1000);
+  return {
+    specimenId,
+    assay: def.code,
+    replicate,
+    mode: 'rates' as const,
+    ...CONDITIONS,
+    totalRatePerMin: def.direction === 'rises' ? slope : -slope,
+    backgroundRatePerMin: def.background === 'none' ? null : 0,
+  };
+}
+
+/** The current assay definitions, read through the API. */
+export async function currentDefinitions(agent: Agent): Promise<AssayDefinition[]> {
+  const defsRes = await agent.get('/api/assay-definitions');
+  check(defsRes, 200, 'assay definitions');
+  return (defsRes.body.items as unknown[]).map((d) => storedAssayDefinitionSchema.parse(d).definition);
+}
+
 /** Registers a case, enters its assays and submits it; returns the case as it awaits review. */
 export async function createCaseAwaitingReview(
   tech: Agent,
@@ -58,23 +83,10 @@ export async function createCaseAwaitingReview(
     200,
     'protein',
   );
-  const defsRes = await tech.get('/api/assay-definitions');
-  check(defsRes, 200, 'assay definitions');
-  const defs = (defsRes.body.items as unknown[]).map((d) => storedAssayDefinitionSchema.parse(d).definition);
+  const defs = await currentDefinitions(tech);
   const activities = opts.activities ?? isolatedComplexI;
   for (const def of defs) {
-    const wanted = activities[def.code];
-    const slope = (wanted * def.epsilonPerMmPerCm * CONDITIONS.pathlengthCm * CONDITIONS.sampleVolumeUl * PROTEIN_MG_PER_ML) /
-      (CONDITIONS.reactionVolumeUl * 1000);
-    const res = await tech.post(`/api/cases/${created.id}/measurements`).send({
-      specimenId: specimen.id,
-      assay: def.code,
-      replicate: 1,
-      mode: 'rates',
-      ...CONDITIONS,
-      totalRatePerMin: def.direction === 'rises' ? slope : -slope,
-      backgroundRatePerMin: def.background === 'none' ? null : 0,
-    });
+    const res = await tech.post(`/api/cases/${created.id}/measurements`).send(ratesFor(def, activities[def.code], specimen.id, 1));
     check(res, 201, `measurement ${def.code}`);
   }
   const current = await tech.get(`/api/cases/${created.id}`);

@@ -495,6 +495,29 @@ export function drawSpecimenSection(c: Composer, section: ReportSpecimenSection,
   c.space(6);
 }
 
+/**
+ * Replicates measured but left out of the means, ratios and pattern: each with its own value, the reason and who
+ * excluded it, so the reader sees what was not counted.
+ */
+function drawExcludedReplicates(c: Composer, doc: ReportDocument): void {
+  const excluded = doc.methods.excludedReplicates ?? [];
+  if (excluded.length === 0) return;
+  const several = new Set(excluded.map((e) => e.specimenLabel)).size > 1 || doc.specimens.length > 1;
+  c.space(4);
+  c.paragraph('Replicates excluded from the results', STYLES.smallStrong);
+  for (const e of excluded) {
+    const value = e.value === null ? 'no value' : `${formatNumber(e.value)} ${e.unit}`;
+    c.paragraph(
+      [
+        seg(`Excluded replicate: ${several ? `specimen ${e.specimenLabel}, ` : ''}${e.assay}, replicate ${e.replicate}, ${value}: `, STYLES.smallStrong),
+        seg(`${e.reason} (excluded by ${e.by})`, STYLES.small),
+      ],
+      STYLES.small,
+      { x: c.left + 8, width: c.width - 8 },
+    );
+  }
+}
+
 export function drawMethods(c: Composer, doc: ReportDocument): void {
   c.heading('Methods and traceability', 30);
   c.paragraph(doc.methods.summary, STYLES.body);
@@ -509,6 +532,7 @@ export function drawMethods(c: Composer, doc: ReportDocument): void {
       );
     }
   }
+  drawExcludedReplicates(c, doc);
   const intervals = new Map<string, { label: string; version: number; assays: string[] }>();
   for (const r of doc.specimens.flatMap((s) => s.results)) {
     if (r.intervalLabel === null || r.intervalVersion === null) continue;

@@ -96,3 +96,17 @@ export function auditSummary(m: {
     ...(m.inputs.mode === 'plate' ? { uploadId: m.inputs.uploadId, wells: m.inputs.wells } : {}),
   };
 }
+
+/** The entries of two audit summaries that differ: `before` and `after` hold only those keys. */
+export function changedValues(
+  before: Record<string, unknown>,
+  after: Record<string, unknown>,
+): { before: Record<string, unknown>; after: Record<string, unknown> } {
+  const out = { before: {} as Record<string, unknown>, after: {} as Record<string, unknown> };
+  for (const key of new Set([...Object.keys(before), ...Object.keys(after)])) {
+    if (JSON.stringify(before[key] ?? null) === JSON.stringify(after[key] ?? null)) continue;
+    out.before[key] = before[key] ?? null;
+    out.after[key] = after[key] ?? null;
+  }
+  return out;
+}

@@ -24,6 +24,10 @@ export class MeasurementModel extends Model<InferAttributes<MeasurementModel>, I
   declare flags: CreationOptional<string>;
   declare uploadId: number | null;
   declare createdById: number | null;
+  declare excludedReason: CreationOptional<string | null>;
+  declare excludedById: CreationOptional<number | null>;
+  declare excludedAt: CreationOptional<Date | null>;
+  declare submittedAt: CreationOptional<Date | null>;
   declare version: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -46,6 +50,10 @@ export function initMeasurementModel(sequelize: Sequelize): void {
       flags: { type: DataTypes.TEXT, allowNull: false, defaultValue: '[]' },
       uploadId: { type: DataTypes.INTEGER, allowNull: true },
       createdById: { type: DataTypes.INTEGER, allowNull: true },
+      excludedReason: { type: DataTypes.TEXT, allowNull: true },
+      excludedById: { type: DataTypes.INTEGER, allowNull: true },
+      excludedAt: { type: DataTypes.DATE, allowNull: true },
+      submittedAt: { type: DataTypes.DATE, allowNull: true },
       version: editVersionColumn,
       ...timestampColumns,
     },

@@ -40,6 +40,16 @@ function toMeasurement(row: MeasurementModel, names: Map<number, string>): Measu
     flags: flagsSchema.parse(JSON.parse(row.flags)),
     uploadId: row.uploadId,
     enteredBy: row.createdById === null ? null : (names.get(row.createdById) ?? null),
+    excluded:
+      // A row just created carries no value for these columns at all (undefined), one read back carries null.
+      !row.excludedReason || !row.excludedAt
+        ? null
+        : {
+            reason: row.excludedReason,
+            by: row.excludedById == null ? null : (names.get(row.excludedById) ?? null),
+            at: row.excludedAt.toISOString(),
+          },
+    submittedAt: row.submittedAt ? row.submittedAt.toISOString() : null,
     version: row.version,
     createdAt: row.createdAt.toISOString(),
     updatedAt: row.updatedAt.toISOString(),
@@ -47,7 +57,7 @@ function toMeasurement(row: MeasurementModel, names: Map<number, string>): Measu
 }
 
 async function many(rows: MeasurementModel[], transaction?: Transaction): Promise<Measurement[]> {
-  const names = await userNames(rows.map((r) => r.createdById), transaction);
+  const names = await userNames(rows.flatMap((r) => [r.createdById, r.excludedById ?? null]), transaction);
   return rows.map((r) => toMeasurement(r, names));
 }
 
@@ -129,15 +139,19 @@ export async function insertMeasurement(m: NewMeasurement, transaction: Transact
   return (await many([row], transaction))[0]!;
 }
 
-/** Replaces inputs and result only if the version is still `expectedVersion`; false when another save won. */
+/**
+ * Replaces inputs and result (and the replicate number when given) only if the version is still
+ * `expectedVersion`; false when another save won.
+ */
 export async function updateMeasurementIfVersion(
   id: number,
   expectedVersion: number,
-  changes: { inputs: StoredInputs; result: CalculationResult; definitionId: number; definitionVersion: number },
+  changes: { inputs: StoredInputs; result: CalculationResult; definitionId: number; definitionVersion: number; replicate?: number },
   transaction: Transaction,
 ): Promise<boolean> {
   const [count] = await MeasurementModel.update(
     {
+      ...(changes.replicate === undefined ? {} : { replicate: changes.replicate }),
       inputs: JSON.stringify(changes.inputs),
       result: JSON.stringify(changes.result),
       activity: changes.result.activity,
@@ -149,6 +163,34 @@ export async function updateMeasurementIfVersion(
     { where: { id, version: expectedVersion }, transaction },
   );
   return count === 1;
+}
+
+/** Leaves a replicate out (with reason, who and when) or counts it again (null), only at `expectedVersion`. */
+export async function setExclusionIfVersion(
+  id: number,
+  expectedVersion: number,
+  exclusion: { reason: string; byId: number; at: Date } | null,
+  transaction: Transaction,
+): Promise<boolean> {
+  const [count] = await MeasurementModel.update(
+    {
+      excludedReason: exclusion?.reason ?? null,
+      excludedById: exclusion?.byId ?? null,
+      excludedAt: exclusion?.at ?? null,
+      version: expectedVersion + 1,
+    },
+    { where: { id, version: expectedVersion }, transaction },
+  );
+  return count === 1;
+}
+
+/**
+ * Marks every measurement of the case that was not yet part of a submission as submitted now. The version is
+ * left alone: nobody edited the measurement, and an editor's open form stays valid.
+ */
+export async function markSubmitted(caseId: number, at: Date, transaction: Transaction): Promise<number> {
+  const [count] = await MeasurementModel.update({ submittedAt: at }, { where: { caseId, submittedAt: null }, transaction });
+  return count;
 }
 
 export async function deleteMeasurementIfVersion(id: number, expectedVersion: number, transaction: Transaction): Promise<boolean> {

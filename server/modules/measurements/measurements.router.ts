@@ -3,6 +3,8 @@ import type { Sequelize } from 'sequelize';
 import { idParamsSchema } from '@/schemas/common';
 import {
   createMeasurementInputSchema,
+  excludeMeasurementInputSchema,
+  includeMeasurementInputSchema,
   proteinCurveInputSchema,
   saveProteinInputSchema,
   updateMeasurementInputSchema,
@@ -42,6 +44,22 @@ export function measurementsRouter(sequelize: Sequelize): Router {
     { params: idParamsSchema, body: updateMeasurementInputSchema },
     async ({ params, body }, req, res) => {
       res.json(await measurements.updateMeasurement(sequelize, req.user!, params.id, body));
+    },
+  );
+  route(
+    r,
+    'POST /api/measurements/:id/exclude',
+    { params: idParamsSchema, body: excludeMeasurementInputSchema },
+    async ({ params, body }, req, res) => {
+      res.json(await measurements.excludeMeasurement(sequelize, req.user!, params.id, body));
+    },
+  );
+  route(
+    r,
+    'POST /api/measurements/:id/include',
+    { params: idParamsSchema, body: includeMeasurementInputSchema },
+    async ({ params, body }, req, res) => {
+      res.json(await measurements.includeMeasurement(sequelize, req.user!, params.id, body));
     },
   );
   route(r, 'DELETE /api/measurements/:id', { params: idParamsSchema, query: versionQuerySchema }, async ({ params, query }, req, res) => {

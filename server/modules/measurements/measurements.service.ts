@@ -5,20 +5,22 @@ import {
   inputModeLabels,
   type CaseWorkup,
   type CreateMeasurementInput,
+  type ExcludeMeasurementInput,
+  type IncludeMeasurementInput,
   type Measurement,
   type StoredInputs,
   type UpdateMeasurementInput,
   type WorkupSpecimen,
 } from '@/schemas/measurement';
 import type { User } from '@/schemas/user';
-import { AppError, badInput, invalidState, notFound, staleVersion } from '../../lib/errors';
+import { AppError, badInput, conflict, invalidState, notFound, staleVersion } from '../../lib/errors';
 import { findDefinitionById, getCurrentDefinition } from '../assay-definitions/assay-definitions.service';
 import { recordAudit } from '../audit/audit.service';
 import { transitionCase } from '../cases/case-state';
 import { findCaseById, type CaseRecord } from '../cases/cases.repository';
 import { writeTransaction } from '../../db/write-transaction';
 import { listUploadsOfCase } from '../uploads/uploads.repository';
-import { auditSummary, computeFromInputs } from './compute';
+import { auditSummary, changedValues, computeFromInputs } from './compute';
 import * as repo from './measurements.repository';
 
 /** Assay results can be entered or changed until the case is submitted for review. */
@@ -152,27 +154,109 @@ export async function updateMeasurement(
     } else {
       throw badInput({ mode: 'The stored inputs of this measurement cannot be read' });
     }
+    const replicate = input.replicate ?? before.replicate;
+    if (replicate !== before.replicate && (await repo.findMeasurementByKey(before.specimenId, before.assay, replicate, t))) {
+      throw alreadySaved(s.label, before.assay, replicate);
+    }
     const current = await getCurrentDefinition(before.assay);
     const result = computeFromInputs(inputs, current.definition);
-    const changes = { inputs, result, definitionId: current.id, definitionVersion: current.definition.version };
+    const changes = { inputs, result, definitionId: current.id, definitionVersion: current.definition.version, replicate };
     if (!(await repo.updateMeasurementIfVersion(id, input.version, changes, t))) throw staleVersion('measurement');
     const after = (await repo.findMeasurementById(id, t))!;
+    // Only the values that changed, before and after (the readings themselves stay on the row).
+    const diff = changedValues(auditSummary(before), auditSummary(after));
     await recordAudit(
       actor,
-      { action: 'update', entity: 'measurement', entityId: id, caseId: before.caseId, before: auditSummary(before), after: auditSummary(after) },
+      {
+        action: 'update',
+        entity: 'measurement',
+        entityId: id,
+        caseId: before.caseId,
+        ...diff,
+        note: `${before.assay} replicate ${before.replicate} of specimen ${s.label} changed`,
+      },
       t,
     );
     return after;
   });
 }
 
+/**
+ * Deletes a measurement that was never part of a submission for review. Once submitted, a replicate is part of
+ * what the director saw (and perhaps of a signed report): it can be excluded with a reason, never deleted.
+ */
 export async function deleteMeasurement(sequelize: Sequelize, actor: User, id: number, version: number): Promise<void> {
   await writeTransaction(sequelize, async (t) => {
     const before = await repo.findMeasurementById(id, t);
     if (!before) throw notFound('Measurement', id);
     await loadEditableCase(before.caseId, t);
+    if (before.submittedAt) {
+      throw conflict(
+        `${before.assay} replicate ${before.replicate} was part of a submission for review on ${before.submittedAt.slice(0, 10)}, so it cannot be deleted: exclude it with a reason instead.`,
+      );
+    }
     if (version !== before.version || !(await repo.deleteMeasurementIfVersion(id, version, t))) throw staleVersion('measurement');
     await recordAudit(actor, { action: 'delete', entity: 'measurement', entityId: id, caseId: before.caseId, before: auditSummary(before) }, t);
+  });
+}
+
+async function loadForExclusion(id: number, version: number, t: Transaction): Promise<Measurement> {
+  const m = await repo.findMeasurementById(id, t);
+  if (!m) throw notFound('Measurement', id);
+  await loadEditableCase(m.caseId, t);
+  if (version !== m.version) throw staleVersion('measurement');
+  return m;
+}
+
+/**
+ * Leaves a replicate out of the mean, SD, CV, ratios and pattern of its assay, with the reason; it stays on the
+ * bench, on the results and in the report's methods section. Audited with the reason in the same transaction.
+ */
+export async function excludeMeasurement(sequelize: Sequelize, actor: User, id: number, input: ExcludeMeasurementInput): Promise<Measurement> {
+  return writeTransaction(sequelize, async (t) => {
+    const m = await loadForExclusion(id, input.version, t);
+    if (m.excluded) {
+      throw conflict(`${m.assay} replicate ${m.replicate} is already excluded (${m.excluded.reason}); include it again before giving another reason.`);
+    }
+    const at = new Date();
+    if (!(await repo.setExclusionIfVersion(id, input.version, { reason: input.reason, byId: actor.id, at }, t))) throw staleVersion('measurement');
+    await recordAudit(
+      actor,
+      {
+        action: 'exclude',
+        entity: 'measurement',
+        entityId: id,
+        caseId: m.caseId,
+        before: { excluded: null },
+        after: { excluded: input.reason, assay: m.assay, replicate: m.replicate, activity: m.activity },
+        note: input.reason,
+      },
+      t,
+    );
+    return (await repo.findMeasurementById(id, t))!;
+  });
+}
+
+/** Counts an excluded replicate again; the reason it was excluded stays in the audit trail. */
+export async function includeMeasurement(sequelize: Sequelize, actor: User, id: number, input: IncludeMeasurementInput): Promise<Measurement> {
+  return writeTransaction(sequelize, async (t) => {
+    const m = await loadForExclusion(id, input.version, t);
+    if (!m.excluded) throw conflict(`${m.assay} replicate ${m.replicate} is not excluded.`);
+    if (!(await repo.setExclusionIfVersion(id, input.version, null, t))) throw staleVersion('measurement');
+    await recordAudit(
+      actor,
+      {
+        action: 'include',
+        entity: 'measurement',
+        entityId: id,
+        caseId: m.caseId,
+        before: { excluded: m.excluded.reason },
+        after: { excluded: null, assay: m.assay, replicate: m.replicate, activity: m.activity },
+        note: `Counted again; it had been excluded by ${m.excluded.by ?? 'an unknown account'}: ${m.excluded.reason}`,
+      },
+      t,
+    );
+    return (await repo.findMeasurementById(id, t))!;
   });
 }
 

@@ -2,7 +2,7 @@ import type { AssayDefinition } from '@/schemas/assay';
 import { transportConditionLabels, type CaseDetail, type Specimen } from '@/schemas/case';
 import { specimenTypeLabels, type AssayCode } from '@/schemas/common';
 import type { LabProfile } from '@/schemas/lab-profile';
-import type { ReportDocument, ReportGraphic, ReportResult, ReportSpecimenSection } from '@/schemas/report-document';
+import type { ReportDocument, ReportExcludedReplicate, ReportGraphic, ReportResult, ReportSpecimenSection } from '@/schemas/report-document';
 import { wallClock } from '../cases/lab-time';
 import type { DraftFinding } from '../review/draft-interpretation';
 
@@ -23,6 +23,8 @@ export type ReportableResults = {
   criteria: { majorBelowPct: number; minorBelowPct: number; ruleSetLabel: string } | null;
   /** Remarks about the results worth a line on the report (e.g. a value with no interval). */
   notes: string[];
+  /** Replicates left out of the calculations, for the methods section (absent: none). */
+  excludedReplicates?: ReportExcludedReplicate[];
 };
 
 export type SignatureInput = { signerName: string; signerTitle: string; signedAt: Date; meaning: string };
@@ -107,6 +109,12 @@ function methodsSummary(measured: Measured[], specimenCount: number): string {
   ].join(' ');
 }
 
+/** The excluded replicates of every measured specimen; nothing when there are none (older documents stay alike). */
+function excludedOf(measured: Measured[]): { excludedReplicates?: ReportExcludedReplicate[] } {
+  const all = measured.flatMap((m) => m.results.excludedReplicates ?? []);
+  return all.length > 0 ? { excludedReplicates: all } : {};
+}
+
 function graphicOf(results: ReportableResults | null): ReportGraphic {
   if (!results || results.results.length === 0) return { bars: [], criterionBands: null };
   const pct = (assay: AssayCode, measure: ReportResult['measure']) =>
@@ -189,6 +197,7 @@ export function buildReportDocument(inputs: ReportInputs): ReportDocument {
     methods: {
       summary: methodsSummary(measured, sections.length),
       definitions: [...definitions.values()],
+      ...excludedOf(measured),
     },
     signature: {
       signerName: signature.signerName,

@@ -23,7 +23,7 @@ import { findDefinitionById } from '../assay-definitions/assay-definitions.servi
 import { transitionCase } from '../cases/case-state';
 import { findCaseById, type CaseRecord } from '../cases/cases.repository';
 import { writeTransaction } from '../../db/write-transaction';
-import { listMeasurementsOfCase } from '../measurements/measurements.repository';
+import { listMeasurementsOfCase, markSubmitted } from '../measurements/measurements.repository';
 import { findPatientById } from '../patients/patients.repository';
 import { findApplicableInterval, toComparisonInterval } from '../reference-intervals/reference-intervals.service';
 import { listSpecimensOfCase } from '../specimens/specimens.repository';
@@ -129,8 +129,9 @@ async function specimenResults(
     const reps = byAssay.get(assay)!.sort((a, b) => a.replicate - b.replicate);
     const latest = reps.reduce((x, y) => (y.definitionVersion > x.definitionVersion ? y : x));
     const cvLimit = (await definitionOf(latest.definitionId, definitions)).definition.cvLimitPct;
+    // An excluded replicate stays listed but counts in nothing: mean, SD, CV, ratios and pattern.
     const summary = summariseReplicates(
-      reps.map((r) => r.activity),
+      reps.filter((r) => !r.excluded).map((r) => r.activity),
       cvLimit,
     );
     summaries.set(assay, summary);
@@ -186,7 +187,9 @@ async function specimenResults(
         : null;
     const ratioCs = ratio('ratio_cs', (ratioToCsAssays as readonly AssayCode[]).includes(assay));
     const ratioCii = ratio('ratio_cii', (ratioToCiiAssays as readonly AssayCode[]).includes(assay));
-    const replicateFlags = reps.flatMap((r) => r.flags.map((f) => ({ code: f.code, message: `Replicate ${r.replicate}: ${f.message}` })));
+    const replicateFlags = reps
+      .filter((r) => !r.excluded)
+      .flatMap((r) => r.flags.map((f) => ({ code: f.code, message: `Replicate ${r.replicate}: ${f.message}` })));
     return {
       assay,
       name: assayNames.get(assay) ?? assay,
@@ -202,6 +205,7 @@ async function specimenResults(
         definitionId: r.definitionId,
         definitionVersion: r.definitionVersion,
         flags: r.flags,
+        excluded: r.excluded,
       })),
       n: s.n,
       mean: s.mean,
@@ -336,6 +340,8 @@ export async function submitCaseForReview(
     }
     const frozen: CaseResults = { ...results, frozen: true };
     await writeResultsSnapshot(caseId, JSON.stringify(frozen), results.patternCode, t);
+    // From now on these measurements can be excluded with a reason, never deleted.
+    await markSubmitted(caseId, new Date(), t);
     const after = await transitionCase(sequelize, actor, caseId, 'awaiting_review', { version }, t);
     return { ...frozen, state: after.state, caseVersion: after.version, returnReason: after.returnReason };
   });
