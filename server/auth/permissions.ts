@@ -71,6 +71,8 @@ export const permissions = {
   'GET /api/cases/:id/reports': LAB,
   'POST /api/cases/:id/sign': DIRECTOR,
   'POST /api/cases/:id/correct': DIRECTOR,
+  // Reopen a signed case to correct its results (password typed again, as for a signature).
+  'POST /api/cases/:id/amend': DIRECTOR,
   'GET /api/review': DIRECTOR,
   'GET /api/review/:id': DIRECTOR,
   'PUT /api/review/:id/draft': DIRECTOR,

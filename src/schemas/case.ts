@@ -187,6 +187,9 @@ export const caseDetailSchema = z.object({
   specimens: z.array(specimenSchema),
   cancelReason: z.string().nullable(),
   returnReason: z.string().nullable(),
+  /** While a signed case is reopened for a correction: the director's reason and when (else null). */
+  amendReason: z.string().nullable(),
+  amendedAt: z.string().nullable(),
   createdAt: z.string(),
   version: z.number().int(),
   receivedAt: z.string().nullable(),

@@ -161,6 +161,19 @@ export const reportSignatureSchema = z.object({
 
 export const reportStatusSchema = z.enum(['final', 'corrected']);
 
+/**
+ * One printed value that differs between the version a corrected report supersedes and the corrected report,
+ * as both print it (e.g. item 'CI ratio to CS: % of ref. mean', before '42%', after '71%').
+ */
+export const changedValueSchema = z.object({
+  /** The specimen label when the case has several specimens; null with one. */
+  specimen: z.string().nullable(),
+  item: text,
+  before: text,
+  after: text,
+});
+export type ChangedValue = z.infer<typeof changedValueSchema>;
+
 export const reportMetaSchema = z.object({
   version: z.number().int().positive(),
   status: reportStatusSchema,
@@ -168,6 +181,8 @@ export const reportMetaSchema = z.object({
   supersedesVersion: z.number().int().positive().nullable(),
   correctionReason: optionalText,
   changesSummary: optionalText,
+  /** Corrected reports signed after a reopening list every printed value that changed (absent before that). */
+  changedValues: z.array(changedValueSchema).max(400).optional(),
 });
 
 /**

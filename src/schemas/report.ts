@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { caseDetailSchema, caseStateSchema, prioritySchema } from './case';
+import { changedValueSchema } from './report-document';
 import { plainText, specimenTypeSchema } from './common';
 
 /*
@@ -47,6 +48,8 @@ export const reportDetailSchema = reportListItemSchema.extend({
   supersedesVersion: z.number().int().nullable(),
   supersededByVersion: z.number().int().nullable(),
   supersededAt: z.string().nullable(),
+  /** For a corrected version: every printed value that differs from the version it supersedes (else empty). */
+  changedValues: z.array(changedValueSchema),
   pdfSha256: z.string(),
   pdfSizeBytes: z.number().int(),
   documentSha256: z.string(),
@@ -60,6 +63,8 @@ export const caseReportsSchema = z.object({
   patientName: z.string(),
   dateOfBirth: z.string(),
   referringClinicianName: z.string(),
+  /** True while the laboratory has reopened the signed case to correct it; the signed reports stay as they are. */
+  underAmendment: z.boolean(),
   reports: z.array(reportDetailSchema),
 });
 export type CaseReports = z.infer<typeof caseReportsSchema>;
@@ -128,16 +133,39 @@ export const signCaseInputSchema = z
   .strict();
 export type SignCaseInput = z.infer<typeof signCaseInputSchema>;
 
-/** POST /api/cases/:id/correct: a new, signed version that supersedes the current one. */
+const correctionReason = z
+  .string()
+  .trim()
+  .min(3, 'Say why the report is corrected')
+  .max(1000, 'Use at most 1000 characters')
+  .superRefine(plainText('Reason', true));
+
+/**
+ * POST /api/cases/:id/amend: a director reopens a signed (final or corrected) case so its results can be
+ * corrected, types the password again as for a signature, and says why. `version` is the case version seen.
+ */
+export const amendCaseInputSchema = z
+  .object({
+    reason: z
+      .string({ error: 'Say why the signed report must be amended' })
+      .trim()
+      .min(3, 'Say why the signed report must be amended')
+      .max(1000, 'Use at most 1000 characters')
+      .superRefine(plainText('Reason', true)),
+    password: z.string({ error: 'Enter your password to reopen the case' }).min(1, 'Enter your password to reopen the case').max(200),
+    version: caseVersion.optional(),
+  })
+  .strict();
+export type AmendCaseInput = z.infer<typeof amendCaseInputSchema>;
+
+/**
+ * POST /api/cases/:id/correct: a new, signed version that supersedes the current one. On a case reopened with
+ * /amend and submitted again, it carries the results frozen at that submission and lists the changed values.
+ */
 export const correctReportInputSchema = z
   .object({
     password,
-    reason: z
-      .string()
-      .trim()
-      .min(3, 'Say why the report is corrected')
-      .max(1000, 'Use at most 1000 characters')
-      .superRefine(plainText('Reason', true)),
+    reason: correctionReason,
     changesSummary: z
       .string()
       .trim()

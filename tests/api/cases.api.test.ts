@@ -30,7 +30,8 @@ async function writtenCounts() {
 }
 
 async function setState(caseId: number, state: CaseState): Promise<number> {
-  await t.sequelize.query(`UPDATE cases SET state = :state WHERE id = :id`, { replacements: { state, id: caseId } });
+  // A state set by hand is not a reopened case: the amendment marker is cleared with it.
+  await t.sequelize.query(`UPDATE cases SET state = :state, amendReason = NULL, amendedAt = NULL WHERE id = :id`, { replacements: { state, id: caseId } });
   const [[row]] = (await t.sequelize.query(`SELECT version FROM cases WHERE id = ${caseId}`)) as [{ version: number }[], unknown];
   return row!.version;
 }
@@ -396,6 +397,9 @@ describe('transitionCase: the workflow', () => {
     ['awaiting_review', 'final'],
     ['final', 'corrected'],
     ['corrected', 'corrected'],
+    // Issue 11: a director reopens a signed case, with a reason, to correct its results.
+    ['final', 'in_assay'],
+    ['corrected', 'in_assay'],
     ['received', 'cancelled'],
     ['in_assay', 'cancelled'],
     ['awaiting_review', 'cancelled'],

@@ -8,7 +8,8 @@ import { createCase } from '../factories/cases';
 import { recordDirectProtein } from '../factories/measurements';
 import { WORKUP_PROTEIN_MG_PER_ML, currentDefinitions, isolatedComplexI, ratesFor } from '../factories/workup';
 import type { Agent } from '../setup/lab-staff';
-import { countRows, makeTestApp, type TestApp } from '../setup/test-app';
+import { readPdf } from '../factories/pdf-text';
+import { DEMO_PASSWORD, countRows, makeTestApp, type TestApp } from '../setup/test-app';
 
 /*
  * Leaving a replicate out instead of deleting it, and changing a saved measurement.
@@ -272,5 +273,42 @@ describe('changing and deleting a saved measurement', () => {
     const fresh = measurementSchema.parse(added.body);
     expect(fresh.submittedAt).toBeNull();
     expect((await tech.delete(`/api/measurements/${fresh.id}?version=${fresh.version}`)).status).toBe(204);
+  });
+});
+
+/** A supertest response body as a Buffer (PDFs come back binary). */
+function binary(req: ReturnType<Agent['get']>) {
+  return req.buffer(true).parse((res, cb) => {
+    const chunks: Buffer[] = [];
+    res.on('data', (c: Buffer) => chunks.push(c));
+    res.on('end', () => cb(null, Buffer.concat(chunks)));
+  });
+}
+
+describe('the signed report', () => {
+  it('when a replicate was excluded, then the methods section of the PDF lists it with assay, replicate, value, reason and who excluded it', async () => {
+    const w = await workupWithWildReplicates();
+    const ci3 = w.byKey.get('CI#3')!;
+    const reason = 'Air bubble in the cuvette: trace jumped at 40 s';
+    expect((await exclude(tech, ci3, reason)).status).toBe(200);
+    const techName = (await tech.get('/api/auth/me')).body.user.name as string;
+    const c = (await tech.get(`/api/cases/${w.caseId}`)).body;
+    expect((await tech.post(`/api/cases/${w.caseId}/submit`).send({ version: c.version })).status).toBe(200);
+    const signed = await director.post(`/api/cases/${w.caseId}/sign`).send({ password: DEMO_PASSWORD });
+    expect(signed.status, JSON.stringify(signed.body)).toBe(201);
+
+    const file = await binary(director.get(`/api/reports/${signed.body.report.id}/pdf`));
+    expect(file.status).toBe(200);
+    // Read back with pdfjs-dist, an independent PDF reader.
+    const pdf = await readPdf(file.body as Buffer);
+    const methodsAt = pdf.flat.indexOf('Methods and traceability');
+    expect(methodsAt).toBeGreaterThan(-1);
+    const methods = pdf.flat.slice(methodsAt);
+    expect(methods).toContain('Replicates excluded from the results');
+    expect(methods).toMatch(
+      new RegExp(`Excluded replicate: CI, replicate 3, 120(\\.0+)? nmol/min/mg protein: ${reason} \\(excluded by ${techName}\\)`),
+    );
+    // The replicates that count: complex I replicates 1 and 2 only, nothing else excluded.
+    expect(methods.match(/Excluded replicate:/g)).toHaveLength(1);
   });
 });

@@ -5,6 +5,7 @@ import { Composer } from './layout';
 import {
   REPORT_TITLE,
   drawCaution,
+  drawChangedValues,
   drawCorrectionNotice,
   drawFirstPageHeader,
   drawFooter,
@@ -80,6 +81,7 @@ export async function renderReportPdf(input: ReportDocument): Promise<Buffer> {
   const c = new Composer(pdf, (composer) => drawRunningHeader(composer, doc), 0);
   drawFirstPageHeader(c, doc);
   drawCorrectionNotice(c, doc);
+  drawChangedValues(c, doc);
   const [first, ...rest] = doc.specimens;
   if (first && rest.length === 0) {
     // One specimen: the compact layout, results straight under the identification block.

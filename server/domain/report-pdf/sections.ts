@@ -23,7 +23,7 @@ const MEASURE_LABELS: Record<Measure, string> = {
   ratio_cii: 'Ratio to CII',
 };
 
-const MEASURE_PHRASES: Record<Measure, string> = {
+export const MEASURE_PHRASES: Record<Measure, string> = {
   activity: 'activity',
   ratio_cs: 'ratio to CS',
   ratio_cii: 'ratio to CII',
@@ -38,7 +38,7 @@ export const STATUS_WORDS: Record<ResultStatus, string> = {
   not_compared: 'Not compared',
 };
 
-const BAND_WORDS = { major: 'major-criterion band', minor: 'minor-criterion band' } as const;
+export const BAND_WORDS = { major: 'major-criterion band', minor: 'minor-criterion band' } as const;
 
 const seg = (text: string, style: TextStyle): Segment => ({ text, style });
 
@@ -164,6 +164,40 @@ export function drawCorrectionNotice(c: Composer, doc: ReportDocument): void {
     ],
     { ink: COLORS.correctedInk, fill: COLORS.correctedFill, stripe: COLORS.correctedStripe },
   );
+}
+
+/** One row of a plain three-column table (item, before, after) with padding; returns nothing, moves the cursor. */
+function drawTripleRow(c: Composer, cells: string[], widths: number[], style: TextStyle, fill: string | null): void {
+  const blocks = cells.map((text, i) => c.measure(text, style, (widths[i] ?? 0) - 2 * CELL_PAD_X));
+  const height = Math.max(...blocks.map((b) => b.height)) + 2 * CELL_PAD_Y;
+  c.ensure(height);
+  const top = c.y;
+  if (fill) c.rect(c.left, top, c.width, height, fill);
+  let x = c.left;
+  blocks.forEach((block, i) => {
+    c.drawBlock(block, x + CELL_PAD_X, top + CELL_PAD_Y);
+    x += widths[i] ?? 0;
+  });
+  c.y = top + height;
+  c.hairline(c.y, COLORS.rule);
+}
+
+/**
+ * A corrected report signed after the case was reopened: every printed value that differs from the version it
+ * supersedes, before and after, right under the correction notice.
+ */
+export function drawChangedValues(c: Composer, doc: ReportDocument): void {
+  const { report } = doc;
+  const rows = report.changedValues ?? [];
+  if (report.status !== 'corrected' || rows.length === 0) return;
+  const was = `Version ${report.supersedesVersion ?? '?'}`;
+  c.heading(`Values changed since version ${report.supersedesVersion ?? '?'}`, 50);
+  const widths = [c.width * 0.46, c.width * 0.27, c.width * 0.27];
+  drawTripleRow(c, ['Value', was, `This version (${report.version})`], widths, STYLES.tableHead, COLORS.band);
+  for (const r of rows) {
+    drawTripleRow(c, [r.specimen ? `Specimen ${r.specimen}: ${r.item}` : r.item, r.before, r.after], widths, STYLES.cell, null);
+  }
+  c.space(12);
 }
 
 /** The notice of a rejected specimen (CLIA 493.1291(c)(7)); nothing for an accepted one. */

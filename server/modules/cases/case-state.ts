@@ -22,15 +22,34 @@ export const allowedTransitions: Readonly<Record<CaseState, Partial<Record<CaseS
     // The director sends the case back for more work and says why.
     in_assay: { reason: true, directorOnly: true },
     final: { reason: false, directorOnly: true },
+    // Only a case reopened after signing: the director signs the correction of its results.
+    corrected: { reason: false, directorOnly: true },
     cancelled: { reason: true, directorOnly: false },
   },
-  final: { corrected: { reason: false, directorOnly: true } },
-  corrected: { corrected: { reason: false, directorOnly: true } },
+  // A director reopens a signed case to correct its results, and says why (CLIA 42 CFR 493.1291(k)).
+  final: { corrected: { reason: false, directorOnly: true }, in_assay: { reason: true, directorOnly: true } },
+  corrected: { corrected: { reason: false, directorOnly: true }, in_assay: { reason: true, directorOnly: true } },
   cancelled: {},
 };
 
 export function canTransition(from: CaseState, to: CaseState): boolean {
   return allowedTransitions[from][to] !== undefined;
+}
+
+/**
+ * A case reopened after signing already has a signed report: it cannot get a first signature or be cancelled,
+ * only a corrected version; and only such a case goes from awaiting review straight to corrected.
+ */
+function refuseAmendmentMismatch(underAmendment: boolean, from: CaseState, to: CaseState): void {
+  if (underAmendment && to === 'final') {
+    throw invalidState('This case already has a signed report and is being amended: sign the correction instead.');
+  }
+  if (underAmendment && to === 'cancelled') {
+    throw invalidState('This case already has a signed report, so it cannot be cancelled. Finish the amendment and sign the correction.');
+  }
+  if (!underAmendment && from === 'awaiting_review' && to === 'corrected') {
+    throw invalidState('Only a signed case that was reopened for amendment can be signed as a correction from review.');
+  }
 }
 
 export type TransitionOptions = { reason?: string | null; version: number };
@@ -63,10 +82,16 @@ export async function transitionCase(
     const reason = opts.reason?.trim() || null;
     if (rule.reason && (!reason || reason.length < 3)) throw badInput({ reason: 'Give a reason' });
     if (opts.version !== current.version) throw staleVersion('case');
+    refuseAmendmentMismatch(current.amendReason !== null, current.state, to);
 
     const changes: Parameters<typeof updateCaseIfVersion>[2] = { state: to };
     if (to === 'cancelled') changes.cancelReason = reason;
     if (current.state === 'awaiting_review' && to === 'in_assay') changes.returnReason = reason;
+    if ((current.state === 'final' || current.state === 'corrected') && to === 'in_assay') {
+      // Reopened after signing: the technologists see the reason as they would a return for more work.
+      Object.assign(changes, { returnReason: reason, amendReason: reason, amendedAt: new Date() });
+    }
+    if (to === 'corrected') Object.assign(changes, { amendReason: null, amendedAt: null });
     if (!(await updateCaseIfVersion(caseId, opts.version, changes, t))) throw staleVersion('case');
 
     await recordAudit(

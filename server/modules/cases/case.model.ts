@@ -18,6 +18,8 @@ export class CaseModel extends Model<InferAttributes<CaseModel>, InferCreationAt
   declare state: string;
   declare cancelReason: string | null;
   declare returnReason: string | null;
+  declare amendReason: CreationOptional<string | null>;
+  declare amendedAt: CreationOptional<Date | null>;
   declare receivedAt: Date | null;
   declare specimenTypes: CreationOptional<string>;
   declare searchText: string;
@@ -47,6 +49,8 @@ export function initCaseModels(sequelize: Sequelize): void {
       state: { type: DataTypes.STRING(20), allowNull: false },
       cancelReason: { type: DataTypes.TEXT, allowNull: true },
       returnReason: { type: DataTypes.TEXT, allowNull: true },
+      amendReason: { type: DataTypes.TEXT, allowNull: true },
+      amendedAt: { type: DataTypes.DATE, allowNull: true },
       receivedAt: { type: DataTypes.DATE, allowNull: true },
       specimenTypes: { type: DataTypes.STRING(200), allowNull: false, defaultValue: ',' },
       searchText: { type: DataTypes.STRING(300), allowNull: false },

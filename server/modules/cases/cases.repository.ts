@@ -19,6 +19,9 @@ export type CaseRecord = {
   state: CaseState;
   cancelReason: string | null;
   returnReason: string | null;
+  /** Set while a signed case is reopened for a correction (cleared when the corrected report is signed). */
+  amendReason: string | null;
+  amendedAt: Date | null;
   receivedAt: Date | null;
   specimenTypes: SpecimenType[];
   patientName: string;
@@ -43,6 +46,8 @@ function toRecord(row: CaseModel): CaseRecord {
     state: row.state as CaseState,
     cancelReason: row.cancelReason,
     returnReason: row.returnReason,
+    amendReason: row.amendReason ?? null,
+    amendedAt: row.amendedAt ?? null,
     receivedAt: row.receivedAt,
     specimenTypes: decodeTypes(row.specimenTypes),
     patientName: row.patientName,
@@ -77,7 +82,7 @@ export async function accessionCounter(year: number): Promise<number | null> {
 }
 
 export async function insertCase(
-  data: Omit<CaseRecord, 'id' | 'version' | 'createdAt' | 'cancelReason' | 'returnReason' | 'patternCode'> & { searchText: string },
+  data: Omit<CaseRecord, 'id' | 'version' | 'createdAt' | 'cancelReason' | 'returnReason' | 'amendReason' | 'amendedAt' | 'patternCode'> & { searchText: string },
   transaction: Transaction,
 ): Promise<CaseRecord> {
   const row = await CaseModel.create(
@@ -103,7 +108,7 @@ export async function findCaseById(id: number, transaction?: Transaction): Promi
 export async function updateCaseIfVersion(
   id: number,
   expectedVersion: number,
-  changes: Partial<Pick<CaseRecord, 'referringClinicianId' | 'clinicalIndication' | 'priority' | 'state' | 'cancelReason' | 'returnReason'>>,
+  changes: Partial<Pick<CaseRecord, 'referringClinicianId' | 'clinicalIndication' | 'priority' | 'state' | 'cancelReason' | 'returnReason' | 'amendReason' | 'amendedAt'>>,
   transaction: Transaction,
 ): Promise<boolean> {
   const [count] = await CaseModel.update(
@@ -166,6 +171,8 @@ export async function loadCaseDetail(id: number, transaction?: Transaction): Pro
     specimens,
     cancelReason: c.cancelReason,
     returnReason: c.returnReason,
+    amendReason: c.amendReason,
+    amendedAt: c.amendedAt ? c.amendedAt.toISOString() : null,
     createdAt: c.createdAt.toISOString(),
     version: c.version,
     receivedAt: c.receivedAt ? c.receivedAt.toISOString() : null,

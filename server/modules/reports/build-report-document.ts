@@ -3,6 +3,7 @@ import { transportConditionLabels, type CaseDetail, type Specimen } from '@/sche
 import { specimenTypeLabels, type AssayCode } from '@/schemas/common';
 import type { LabProfile } from '@/schemas/lab-profile';
 import type { ReportDocument, ReportExcludedReplicate, ReportGraphic, ReportResult, ReportSpecimenSection } from '@/schemas/report-document';
+import { changedValuesBetween } from '../../domain/report-changes';
 import { wallClock } from '../cases/lab-time';
 import type { DraftFinding } from '../review/draft-interpretation';
 
@@ -30,7 +31,15 @@ export type ReportableResults = {
 export type SignatureInput = { signerName: string; signerTitle: string; signedAt: Date; meaning: string };
 export type VersionInput =
   | { version: 1; status: 'final' }
-  | { version: number; status: 'corrected'; supersedesVersion: number; correctionReason: string; changesSummary: string };
+  | {
+      version: number;
+      status: 'corrected';
+      supersedesVersion: number;
+      correctionReason: string;
+      changesSummary: string;
+      /** The signed document this version supersedes: the printed values that differ are listed. */
+      previous?: ReportDocument;
+    };
 
 export type ReportInputs = {
   laboratory: LabProfile;
@@ -161,6 +170,17 @@ export function reportPatternSummary(document: ReportDocument): string | null {
 }
 
 export function buildReportDocument(inputs: ReportInputs): ReportDocument {
+  const document = assemble(inputs);
+  const { version } = inputs;
+  if (version.status === 'corrected' && version.previous) {
+    const changed = changedValuesBetween(version.previous, document);
+    // A correction of the wording alone prints no table (and its document is what it was before this list existed).
+    if (changed.length > 0) document.report.changedValues = changed;
+  }
+  return document;
+}
+
+function assemble(inputs: ReportInputs): ReportDocument {
   const { laboratory, caseDetail, primarySpecimen: specimen, resultsBySpecimen, signature, version } = inputs;
   const p = caseDetail.patient;
   const all = caseDetail.specimens.some((s) => s.id === specimen.id) ? caseDetail.specimens : [specimen, ...caseDetail.specimens];

@@ -50,7 +50,7 @@ const badSignaturePassword = () =>
  * The second identity component of an electronic signature: the signer types their password again. A wrong one
  * counts toward the same lock-out as sign-in (423 once locked), so it cannot be guessed without limit.
  */
-async function confirmSigner(sequelize: Sequelize, actor: User, password: string | undefined, check: boolean) {
+export async function confirmSigner(sequelize: Sequelize, actor: User, password: string | undefined, check: boolean) {
   if (actor.role !== 'director') throw forbidden('Only a director signs reports');
   const account = await findUserById(actor.id);
   if (!account || !account.active) throw badSignaturePassword();
@@ -165,6 +165,9 @@ export async function signCase(
   if (detail.state !== 'awaiting_review') {
     throw invalidState('Only a case awaiting review can be signed.');
   }
+  if (detail.amendReason !== null) {
+    throw invalidState('This case already has a signed report and was reopened to correct it: sign it as a corrected report.');
+  }
   if (input.version !== undefined && input.version !== detail.version) throw staleVersion('case');
 
   const interpretation =
@@ -226,6 +229,8 @@ export async function signCase(
 /**
  * Issues a corrected report: a new signed version with the reason and a summary of what changed. The version
  * it supersedes is kept byte for byte and marked superseded; the case moves to corrected; the clinician is told.
+ * A signed case corrects its wording only. A case reopened with amendCase and submitted again carries the
+ * results frozen at that submission, with every printed value that differs from the superseded version.
  */
 export async function correctReport(
   sequelize: Sequelize,
@@ -238,7 +243,11 @@ export async function correctReport(
   const signer = await confirmSigner(sequelize, actor, input.password, opts.checkPassword ?? true);
   const material = await loadReportMaterial(caseId);
   const { detail } = material;
-  if (detail.state !== 'final' && detail.state !== 'corrected') {
+  const amended = detail.amendReason !== null;
+  if (amended && detail.state !== 'awaiting_review') {
+    throw invalidState('The reopened case must be submitted for review again before its correction is signed.');
+  }
+  if (!amended && detail.state !== 'final' && detail.state !== 'corrected') {
     throw invalidState('Only a signed case (final or corrected) can get a corrected report.');
   }
   if (input.version !== undefined && input.version !== detail.version) throw staleVersion('case');
@@ -255,6 +264,7 @@ export async function correctReport(
     supersedesVersion: current.version,
     correctionReason: input.reason,
     changesSummary: input.changesSummary,
+    previous: current.document,
   });
   const notice = await noticeFor(notices, opts, 'report_corrected', detail, version, current.version);
 
@@ -302,6 +312,7 @@ export async function correctReport(
           meaning,
           reason: input.reason,
           changesSummary: input.changesSummary,
+          ...(amended ? { reopenedFor: detail.amendReason, changedValues: r.document.report.changedValues ?? [] } : {}),
           documentSha256: r.documentSha256,
           pdfSha256: r.pdfSha256,
         },

@@ -171,6 +171,13 @@ export async function markSuperseded(id: number, byReportId: number, at: Date, t
   return count === 1;
 }
 
+/** Which of these cases are reopened for amendment now (their signed reports get an on-screen note). */
+export async function casesUnderAmendment(caseIds: number[]): Promise<Set<number>> {
+  if (caseIds.length === 0) return new Set();
+  const rows = await CaseModel.findAll({ where: { id: caseIds, amendReason: { [Op.ne]: null } }, attributes: ['id'] });
+  return new Set(rows.map((r) => r.id));
+}
+
 /** Versions of the reports by id, to print "supersedes version N" without another query per row. */
 export async function versionsOf(ids: number[]): Promise<Map<number, number>> {
   if (ids.length === 0) return new Map();
@@ -219,6 +226,7 @@ export function toDetail(r: StoredReport, versions: Map<number, number>): Report
     supersedesVersion: r.supersedesReportId !== null ? (versions.get(r.supersedesReportId) ?? null) : null,
     supersededByVersion: r.supersededByReportId !== null ? (versions.get(r.supersededByReportId) ?? null) : null,
     supersededAt: r.supersededAt ? r.supersededAt.toISOString() : null,
+    changedValues: r.document.report?.changedValues ?? [],
     pdfSha256: r.pdfSha256,
     pdfSizeBytes: r.pdfSizeBytes,
     documentSha256: r.documentSha256,

@@ -1,9 +1,10 @@
 import { Router } from 'express';
 import type { Sequelize } from 'sequelize';
 import { idParamsSchema } from '@/schemas/common';
-import { correctReportInputSchema, signCaseInputSchema } from '@/schemas/report';
+import { amendCaseInputSchema, correctReportInputSchema, signCaseInputSchema } from '@/schemas/report';
 import { route } from '../../lib/route';
 import type { NoticeDeps } from '../mail/notices.service';
+import { amendCase } from './report-amendment.service';
 import { correctReport, signCase } from './report-signing.service';
 import * as reports from './reports.service';
 
@@ -41,6 +42,9 @@ export function reportsRouter(sequelize: Sequelize, notices: NoticeDeps): Router
   });
   route(r, 'POST /api/cases/:id/correct', { params: idParamsSchema, body: correctReportInputSchema }, async ({ params, body }, req, res) => {
     res.status(201).json(await correctReport(sequelize, notices, req.user!, params.id, body));
+  });
+  route(r, 'POST /api/cases/:id/amend', { params: idParamsSchema, body: amendCaseInputSchema }, async ({ params, body }, req, res) => {
+    res.json(await amendCase(sequelize, req.user!, params.id, body));
   });
   return r;
 }

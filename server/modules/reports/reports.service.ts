@@ -46,6 +46,7 @@ export async function listCaseReportsFor(user: User): Promise<CaseReports[]> {
   const all = await details(await repo.listReports(scopeOf(user)));
   const byCase = new Map<number, ReportDetail[]>();
   for (const r of all) byCase.set(r.caseId, [...(byCase.get(r.caseId) ?? []), r]);
+  const amending = await repo.casesUnderAmendment([...byCase.keys()]);
   return [...byCase.values()].map((versions) => {
     const sorted = [...versions].sort((a, b) => b.version - a.version);
     const newest = sorted[0]!;
@@ -55,6 +56,7 @@ export async function listCaseReportsFor(user: User): Promise<CaseReports[]> {
       patientName: newest.patientName,
       dateOfBirth: newest.dateOfBirth,
       referringClinicianName: newest.referringClinicianName,
+      underAmendment: amending.has(newest.caseId),
       reports: sorted,
     };
   });
