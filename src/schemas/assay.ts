@@ -673,14 +673,33 @@ export const demoReferenceIntervals: readonly ComparisonInterval[] = demoRows.ma
  * Stored definition versions (the API's view of the assay_definitions table)
  * -------------------------------------------------------------------------------------------- */
 
+/** A saved version is a draft until a second director approves it; a draft can be withdrawn instead. */
+export const assayDefinitionStatusSchema = z.enum(['draft', 'approved', 'withdrawn']);
+export type AssayDefinitionStatus = z.infer<typeof assayDefinitionStatusSchema>;
+
 export const storedAssayDefinitionSchema = z.object({
   id: z.number().int(),
   definition: assayDefinitionSchema,
+  /** Only approved versions are used by calculations (the newest one). */
+  status: assayDefinitionStatusSchema,
   changeNote: z.string().nullable(),
+  /** Who drafted it (null: the published defaults). */
   createdBy: z.string().nullable(),
+  createdById: z.number().int().nullable(),
   createdAt: z.string(),
+  approvedBy: z.string().nullable(),
+  approvedById: z.number().int().nullable(),
+  approvedAt: z.string().nullable(),
+  /** Approved by the director who drafted it (a single-director laboratory that allows it). */
+  selfApproved: z.boolean(),
 });
 export type StoredAssayDefinition = z.infer<typeof storedAssayDefinitionSchema>;
+
+/** GET /api/assay-definitions: the version in force of each assay, and the drafts awaiting approval. */
+export const assayDefinitionListSchema = z.object({
+  items: z.array(storedAssayDefinitionSchema),
+  drafts: z.array(storedAssayDefinitionSchema),
+});
 
 /** A director's new version: every field of the definition except its code and number, plus why it changed. */
 export const createAssayDefinitionVersionInputSchema = z.strictObject({
@@ -690,3 +709,9 @@ export const createAssayDefinitionVersionInputSchema = z.strictObject({
   basedOnVersion: z.number().int().positive(),
 });
 export type CreateAssayDefinitionVersionInput = z.infer<typeof createAssayDefinitionVersionInputSchema>;
+
+/** POST /api/assay-definitions/:code/versions/:version/withdraw: why the draft is dropped. */
+export const withdrawAssayDefinitionInputSchema = z.strictObject({
+  reason: z.string().trim().min(3, 'Say why the draft is withdrawn').max(500).superRefine(plainText('Reason', true)),
+});
+export type WithdrawAssayDefinitionInput = z.infer<typeof withdrawAssayDefinitionInputSchema>;

@@ -7,6 +7,8 @@ export const errorCodes = [
   'BAD_CREDENTIALS',
   'ACCOUNT_LOCKED',
   'FORBIDDEN',
+  /** Separation of duties: the director who drafted a version cannot approve it (unless self-approval is allowed). */
+  'SECOND_DIRECTOR_REQUIRED',
   'PASSWORD_CHANGE_REQUIRED',
   'ORIGIN_REFUSED',
   'NOT_FOUND',

@@ -10,6 +10,8 @@ export const labProfileSchema = z.object({
   timeZone: z.string(),
   /** Set when the stored zone is not a real IANA zone and UTC is used instead; says what to fix. */
   timeZoneNotice: z.string().nullable(),
+  /** A laboratory with a single director: a director may approve the interval and definition versions they drafted. */
+  allowSelfApproval: z.boolean(),
   version: z.number().int(),
 });
 export type LabProfile = z.infer<typeof labProfileSchema>;
@@ -31,6 +33,8 @@ export const updateLabProfileInputSchema = z
     timeZone: ianaTimeZoneSchema,
     /** Read-only (GET answers it); accepted and ignored so a profile read can be sent back as it is. */
     timeZoneNotice: z.string().nullable().optional(),
+    /** Left out: the stored setting is kept. */
+    allowSelfApproval: z.boolean({ error: 'Tick or clear “single director”' }).optional(),
     version: z.number().int().min(0),
   })
   .strict();

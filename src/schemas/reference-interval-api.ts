@@ -11,6 +11,7 @@ import {
   outlierRuleSchema,
   partitionCheckResultSchema,
   referenceIntervalSchema,
+  updateReferenceIntervalInputSchema,
 } from './reference-interval';
 
 /*
@@ -114,6 +115,20 @@ export const retireBodySchema = z
   })
   .strict();
 export type RetireBody = z.infer<typeof retireBodySchema>;
+
+/**
+ * PATCH /api/reference-intervals/:id: changes to a draft before it is approved (any subset of its fields, with the
+ * revision seen). Its series (assay, measure, specimen type, age limits) stays: a different series is a new draft.
+ */
+export const editDraftBodySchema = z.intersection(
+  updateReferenceIntervalInputSchema,
+  z.object({
+    revision: revisionSchema,
+    setName: setNameSchema('Muscle 2026').optional(),
+    unit: z.string().trim().min(1, 'Give the unit').max(40, 'At most 40 characters').optional(),
+  }),
+);
+export type EditDraftBody = z.infer<typeof editDraftBodySchema>;
 
 const groupSchema = z.object({
   label: z.string().trim().min(1, 'Name the group').max(60).superRefine(plainText('Group name')),

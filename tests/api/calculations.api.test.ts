@@ -88,7 +88,7 @@ describe('POST /api/calculations/activity', () => {
 });
 
 describe('assay definitions are versioned', () => {
-  it('when a director saves a new ε for CI, then previews use version 2 and version 1 stays readable', async () => {
+  it('when a director saves a new ε for CI and a second director approves it, then previews use version 2 and version 1 stays readable', async () => {
     const current = (await director.get('/api/assay-definitions')).body.items.find((d: { definition: { code: string } }) => d.definition.code === 'CI');
     const { code: _c, version: _v, ...fields } = current.definition;
     const saved = await director
@@ -96,6 +96,10 @@ describe('assay definitions are versioned', () => {
       .send({ definition: { ...fields, epsilonPerMmPerCm: 6.22, epsilonSource: 'Laboratory check, invented for this test' }, changeNote: 'Test change of ε', basedOnVersion: 1 });
     expect(saved.status).toBe(201);
     expect(saved.body.definition.version).toBe(2);
+    expect(saved.body.status).toBe('draft');
+    // Separation of duties: the draft is in force only once another director approves it.
+    const approved = await (await t.signedIn('director2')).post('/api/assay-definitions/CI/versions/2/approve').send({});
+    expect(approved.status).toBe(200);
     const preview = await tech.post('/api/calculations/activity').send(ciWorked);
     expect(preview.body.definitionVersion).toBe(2);
     // activity ∝ 1/ε (Beer–Lambert): 100.0 × 6.2 / 6.22

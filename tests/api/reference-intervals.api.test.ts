@@ -21,11 +21,14 @@ import { countRows, makeTestApp, type TestApp } from '../setup/test-app';
 type Agent = Awaited<ReturnType<TestApp['signedIn']>>;
 let t: TestApp;
 let director: Agent;
+/** The demo's second director: approves what the first one drafts (separation of duties). */
+let director2: Agent;
 let technologist: Agent;
 
 beforeAll(async () => {
   t = await makeTestApp();
   director = await t.signedIn('director');
+  director2 = await t.signedIn('director2');
   technologist = await t.signedIn('technologist');
 });
 afterAll(() => t.close());
@@ -60,7 +63,7 @@ async function createDraft(overrides: Record<string, unknown> = {}): Promise<Sto
 }
 
 async function approve(i: StoredInterval): Promise<StoredInterval> {
-  const res = await director.post(`/api/reference-intervals/${i.id}/approve`).send({ revision: i.revision });
+  const res = await director2.post(`/api/reference-intervals/${i.id}/approve`).send({ revision: i.revision });
   expect(res.status, JSON.stringify(res.body)).toBe(200);
   return storedIntervalSchema.parse(res.body);
 }
@@ -201,7 +204,8 @@ describe('versions and approval', () => {
     const v2 = await approve(draft);
 
     expect(v2.status).toBe('approved');
-    expect(v2.approvedByName).toBe('Dr Ilse Marchetti');
+    expect(v2.approvedByName).toBe('Dr Octavian Brisk-Ferro');
+    expect(v2.createdByName).toBe('Dr Ilse Marchetti');
     expect(v2.approvedAt).not.toBeNull();
     const old = storedIntervalSchema.parse((await technologist.get(`/api/reference-intervals/${v1.id}`)).body);
     expect(old.status).toBe('approved');

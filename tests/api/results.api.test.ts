@@ -224,7 +224,9 @@ describe('frozen results and a later interval version', () => {
       effectiveTo: null,
     });
     expect(draft.status).toBe(201);
-    const approved = await director.post(`/api/reference-intervals/${draft.body.id}/approve`).send({ revision: draft.body.revision });
+    // A second director approves (separation of duties).
+    const director2 = await t.signedIn('director2');
+    const approved = await director2.post(`/api/reference-intervals/${draft.body.id}/approve`).send({ revision: draft.body.revision });
     expect(approved.status).toBe(200);
 
     const frozen = row(await results(frozenCase), 'CI').ratioCs!;

@@ -19,7 +19,7 @@ export type TestApp = {
   /** A supertest agent that sends the app's own Origin on every request, like the browser does. */
   agent: () => ReturnType<typeof sameOriginAgent>;
   /** An agent already signed in as the demo account of that role. */
-  signedIn: (role: Role | 'clinician2') => Promise<ReturnType<typeof sameOriginAgent>>;
+  signedIn: (role: Role | 'clinician2' | 'director2') => Promise<ReturnType<typeof sameOriginAgent>>;
   /** Another app over the same database (models are bound to one database per test file). */
   withOptions: (overrides: Partial<AppOptions>) => Express;
   close: () => Promise<void>;
@@ -46,7 +46,8 @@ export async function makeTestApp(overrides: Partial<AppOptions> = {}): Promise<
     sequelize,
     agent: () => sameOriginAgent(app),
     signedIn: async (role) => {
-      const email = role === 'clinician2' ? 'clinician2@demo.test' : demoAccounts.find((a) => a.role === role)!.email;
+      const email =
+        role === 'clinician2' || role === 'director2' ? `${role}@demo.test` : demoAccounts.find((a) => a.role === role)!.email;
       const agent = sameOriginAgent(app);
       const res = await agent.post('/api/auth/login').send({ email, password: DEMO_PASSWORD });
       if (res.status !== 200) throw new Error(`sign-in as ${role} failed: ${res.status} ${JSON.stringify(res.body)}`);

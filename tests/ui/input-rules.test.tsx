@@ -50,6 +50,7 @@ describe('LabProfileForm', () => {
     phone: null,
     timeZone: 'UTC',
     timeZoneNotice: 'The saved time zone "Europe/Londn" is not a known IANA zone, so Cristae reads and prints times in UTC.',
+    allowSelfApproval: false,
     version: 3,
   };
 

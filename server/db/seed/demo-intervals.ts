@@ -77,13 +77,15 @@ export function buildDemoControlCsv(subjects: number = DEMO_CONTROL_SUBJECTS): s
 }
 
 /**
- * Seeds the invented demo interval set as approved version 1 (director@demo.test, from 2025-01-01) and an
+ * Seeds the invented demo interval set as version 1, drafted by director2@demo.test and approved by
+ * director@demo.test (two directors, as separation of duties asks), in effect from 2025-01-01, and an
  * invented control file for trying derivation. Does nothing when intervals already exist.
  */
 export async function seedDemoIntervals(sequelize: Sequelize): Promise<void> {
   if ((await countIntervals()) > 0) return;
   const director = await findUserByEmail('director@demo.test');
   const approverId = director?.id ?? null;
+  const drafterId = (await findUserByEmail('director2@demo.test'))?.id ?? approverId;
   // The approval is recorded when the seed runs: it is the truthful time of this (invented) approval.
   const approvedAt = new Date();
   const csv = Buffer.from(buildDemoControlCsv(), 'utf8');
@@ -116,7 +118,7 @@ export async function seedDemoIntervals(sequelize: Sequelize): Promise<void> {
           uploadId: null,
           effectiveFrom: DEMO_INTERVALS_EFFECTIVE_FROM,
           effectiveTo: null,
-          createdById: approverId,
+          createdById: drafterId,
           approvedById: approverId,
           approvedAt,
         },

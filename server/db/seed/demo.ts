@@ -13,6 +13,8 @@ import { seedDemoMeasurements } from './demo-measurements';
 export const demoAccounts: { email: string; name: string; title: string; role: Role }[] = [
   { email: 'technologist@demo.test', name: 'Tamsin Oduya', title: 'Senior technologist', role: 'technologist' },
   { email: 'director@demo.test', name: 'Dr Ilse Marchetti', title: 'Laboratory director', role: 'director' },
+  // A second director, so the demo shows new interval and definition versions approved by someone else.
+  { email: 'director2@demo.test', name: 'Dr Octavian Brisk-Ferro', title: 'Associate laboratory director', role: 'director' },
   { email: 'clinician@demo.test', name: 'Dr Rafael Quenby', title: 'Paediatric neurologist', role: 'clinician' },
   { email: 'clinician2@demo.test', name: 'Dr Noor Halvorsen', title: 'Metabolic physician', role: 'clinician' },
   { email: 'admin@demo.test', name: 'Priya Delacroix-Wen', title: 'Systems administrator', role: 'admin' },

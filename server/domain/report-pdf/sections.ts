@@ -590,6 +590,10 @@ export function drawMethods(c: Composer, doc: ReportDocument): void {
       );
     }
   }
+  if (doc.methods.selfApproval) {
+    c.space(4);
+    c.paragraph([seg('Approval: ', STYLES.smallStrong), seg(doc.methods.selfApproval, STYLES.small)], STYLES.small);
+  }
   c.space(12);
 }
 

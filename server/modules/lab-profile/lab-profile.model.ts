@@ -17,6 +17,7 @@ export class LabProfileModel extends Model<InferAttributes<LabProfileModel>, Inf
   declare accreditationNumber: string;
   declare phone: string | null;
   declare timeZone: string;
+  declare allowSelfApproval: CreationOptional<boolean>;
   declare version: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -31,6 +32,7 @@ export function initLabProfileModel(sequelize: Sequelize): void {
       accreditationNumber: { type: DataTypes.STRING(80), allowNull: false },
       phone: { type: DataTypes.STRING(40), allowNull: true },
       timeZone: { type: DataTypes.STRING(60), allowNull: false },
+      allowSelfApproval: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
       version: editVersionColumn,
       ...timestampColumns,
     },

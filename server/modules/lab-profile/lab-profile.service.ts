@@ -1,8 +1,8 @@
-import type { Sequelize } from 'sequelize';
+import type { Sequelize, Transaction } from 'sequelize';
 import { isIanaTimeZone } from '@/schemas/common';
 import type { LabProfile, UpdateLabProfileInput } from '@/schemas/lab-profile';
 import type { User } from '@/schemas/user';
-import { notFound, staleVersion } from '../../lib/errors';
+import { AppError, notFound, staleVersion } from '../../lib/errors';
 import { logWarn } from '../../lib/log';
 import { recordAudit } from '../audit/audit.service';
 import { LabProfileModel } from './lab-profile.model';
@@ -41,6 +41,7 @@ function toProfile(row: LabProfileModel): LabProfile {
     accreditationNumber: row.accreditationNumber,
     phone: row.phone,
     ...effectiveTimeZone(row.timeZone),
+    allowSelfApproval: Boolean(row.allowSelfApproval),
     version: row.version,
   };
 }
@@ -49,6 +50,30 @@ export async function getLabProfile(): Promise<LabProfile> {
   const row = await LabProfileModel.findByPk(PROFILE_ID);
   if (!row) throw notFound('Laboratory profile');
   return toProfile(row);
+}
+
+/** The audit note of an approval by the director who drafted the version. */
+export const SELF_APPROVAL_NOTE = 'Self-approved: the laboratory profile allows a single director to approve their own drafts';
+
+/**
+ * Separation of duties: a version is approved by a director other than the one who drafted it. The drafter may
+ * approve it only when the laboratory profile allows self-approval (a laboratory with a single director); the
+ * answer says whether this approval is such a one, for the audit note.
+ */
+export async function checkApprover(
+  actor: User,
+  drafterId: number | null,
+  what: string,
+  transaction?: Transaction,
+): Promise<{ selfApproved: boolean }> {
+  if (drafterId === null || drafterId !== actor.id) return { selfApproved: false };
+  const row = await LabProfileModel.findByPk(PROFILE_ID, { transaction });
+  if (row?.allowSelfApproval) return { selfApproved: true };
+  throw new AppError(
+    'SECOND_DIRECTOR_REQUIRED',
+    `You drafted ${what}, so another director must approve it. ` +
+      'A laboratory with a single director can allow self-approval in the laboratory profile.',
+  );
 }
 
 export async function saveLabProfile(
@@ -64,6 +89,7 @@ export async function saveLabProfile(
       accreditationNumber: input.accreditationNumber,
       phone: input.phone,
       timeZone: input.timeZone,
+      ...(input.allowSelfApproval === undefined ? {} : { allowSelfApproval: input.allowSelfApproval }),
     };
     if (!row) {
       const created = await LabProfileModel.create({ id: PROFILE_ID, ...values }, { transaction });

@@ -196,7 +196,26 @@ export async function insertInterval(row: IntervalRow, transaction: Transaction)
 type Changes = Partial<
   Pick<
     ReferenceIntervalModel,
-    'status' | 'effectiveTo' | 'approvedById' | 'approvedAt' | 'retiredById' | 'retiredAt' | 'retireReason'
+    | 'status'
+    | 'effectiveTo'
+    | 'approvedById'
+    | 'approvedAt'
+    | 'retiredById'
+    | 'retiredAt'
+    | 'retireReason'
+    // A draft's own fields, while it is one (see editDraft); the derivation only ever goes (null).
+    | 'setName'
+    | 'ageLabel'
+    | 'lower'
+    | 'upper'
+    | 'mean'
+    | 'sd'
+    | 'n'
+    | 'unit'
+    | 'method'
+    | 'sourceNote'
+    | 'effectiveFrom'
+    | 'derivation'
   >
 >;
 

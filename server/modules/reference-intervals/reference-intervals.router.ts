@@ -8,6 +8,7 @@ import {
   controlUploadIdParamsSchema,
   createIntervalBodySchema,
   draftFromControlsBodySchema,
+  editDraftBodySchema,
   partitionBodySchema,
   retireBodySchema,
   revisionBodySchema,
@@ -92,6 +93,14 @@ export function referenceIntervalsRouter(sequelize: Sequelize): Router {
   route(r, 'GET /api/reference-intervals/:id/history', { params: idParamsSchema }, async ({ params }, _req, res) => {
     res.json({ items: await intervals.listVersions(params.id) });
   });
+  route(
+    r,
+    'PATCH /api/reference-intervals/:id',
+    { params: idParamsSchema, body: editDraftBodySchema },
+    async ({ params, body }, req, res) => {
+      res.json(await intervals.editDraft(sequelize, req.user!, params.id, body));
+    },
+  );
   route(
     r,
     'POST /api/reference-intervals/:id/approve',

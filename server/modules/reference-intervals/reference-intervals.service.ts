@@ -2,9 +2,17 @@ import type { Sequelize, Transaction } from 'sequelize';
 import { ACTIVITY_UNIT, type ComparisonInterval } from '@/schemas/assay';
 import type { AssayCode, Measure, SpecimenType } from '@/schemas/common';
 import type { User } from '@/schemas/user';
-import type { CreateIntervalBody, IntervalDerivation, RetireBody, StoredInterval } from '@/schemas/reference-interval-api';
-import { AppError, invalidState, notFound, staleVersion } from '../../lib/errors';
+import { findIntervalOrderingProblems } from '@/schemas/reference-interval';
+import type {
+  CreateIntervalBody,
+  EditDraftBody,
+  IntervalDerivation,
+  RetireBody,
+  StoredInterval,
+} from '@/schemas/reference-interval-api';
+import { AppError, badInput, forbidden, invalidState, notFound, staleVersion } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
+import { checkApprover, SELF_APPROVAL_NOTE } from '../lab-profile/lab-profile.service';
 import { ageBandText, intervalKeyOf } from './interval-labels';
 import * as repo from './reference-intervals.repository';
 import { writeTransaction } from '../../db/write-transaction';
@@ -241,12 +249,16 @@ export async function insertDraft(
 }
 
 /** A draft typed in by a director, e.g. an interval adopted from a publication or another laboratory. */
-export async function createDraft(sequelize: Sequelize, actor: User, body: CreateIntervalBody): Promise<StoredInterval> {
-  if (!(body.mean > 0)) {
+function requirePositiveMean(mean: number): void {
+  if (!(mean > 0)) {
     throw new AppError('VALIDATION_FAILED', 'The mean must be above 0 (results are reported as % of it)', {
       fields: { mean: 'Must be above 0' },
     });
   }
+}
+
+export async function createDraft(sequelize: Sequelize, actor: User, body: CreateIntervalBody): Promise<StoredInterval> {
+  requirePositiveMean(body.mean);
   return writeTransaction(sequelize, (transaction) =>
     insertDraft(
       actor,
@@ -259,6 +271,82 @@ export async function createDraft(sequelize: Sequelize, actor: User, body: Creat
       transaction,
     ),
   );
+}
+
+/** The fields of a draft that an edit may change; the series (assay, measure, specimen type, age limits) stays. */
+const SERIES_FIELDS = ['assay', 'measure', 'specimenType'] as const;
+const NUMBER_FIELDS = ['lower', 'upper', 'mean', 'sd', 'n'] as const;
+
+/**
+ * Changes a draft before approval. Only the director who drafted it edits it (another director approves or
+ * retires it, so the approver never approves their own numbers); approved and retired versions never change,
+ * because comparisons already point at them. A derived draft whose numbers are typed over loses its derivation
+ * (the control file it started from stays named), and the audit keeps the before and after.
+ */
+export async function editDraft(sequelize: Sequelize, actor: User, id: number, body: EditDraftBody): Promise<StoredInterval> {
+  return writeTransaction(sequelize, async (transaction) => {
+    const current = await repo.findIntervalById(id, transaction);
+    if (!current) throw notFound('Reference interval', id);
+    if (current.status !== 'draft') {
+      throw invalidState(
+        `Version ${current.version} is ${current.status}; only a draft can be edited. Draft a new version to change it.`,
+      );
+    }
+    if (current.createdBy !== null && current.createdBy !== actor.id) {
+      throw forbidden(`Only ${current.createdByName ?? 'the director who drafted it'} can edit this draft; you can approve or retire it`);
+    }
+    if (current.revision !== body.revision) throw staleVersion('reference interval');
+    const fields: Record<string, string> = {};
+    for (const f of SERIES_FIELDS) {
+      if (body[f] !== undefined && body[f] !== current[f]) fields[f] = 'A draft keeps its series; start a new draft for another one';
+    }
+    if (body.ageBand && (body.ageBand.minYears !== current.ageBand.minYears || body.ageBand.maxYears !== current.ageBand.maxYears)) {
+      fields.ageBand = 'A draft keeps its age limits; start a new draft for another age band';
+    }
+    if (Object.keys(fields).length > 0) throw badInput(fields, 'A draft keeps its assay, measure, specimen type and age limits');
+    const merged = {
+      lower: body.lower ?? current.lower,
+      upper: body.upper ?? current.upper,
+      mean: body.mean ?? current.mean,
+      sd: body.sd === undefined ? current.sd : body.sd,
+      n: body.n ?? current.n,
+      effectiveFrom: body.effectiveFrom ?? current.effectiveFrom,
+      effectiveTo: body.effectiveTo === undefined ? current.effectiveTo : body.effectiveTo,
+    };
+    const problems = findIntervalOrderingProblems(merged);
+    if (problems.length > 0) throw badInput(Object.fromEntries(problems.map((p) => [p.path, p.message])));
+    requirePositiveMean(merged.mean);
+    planApproval(
+      {
+        id: current.id,
+        intervalKey: current.intervalKey,
+        ageMinYears: current.ageBand.minYears,
+        ageMaxYears: current.ageBand.maxYears,
+        effectiveFrom: merged.effectiveFrom,
+        effectiveTo: merged.effectiveTo,
+      },
+      await repo.listApprovedForSeries(current, transaction),
+    );
+    const numbersChanged = NUMBER_FIELDS.some((f) => merged[f] !== current[f]);
+    const ok = await repo.updateIntervalIfRevision(
+      id,
+      body.revision,
+      {
+        ...merged,
+        setName: body.setName ?? current.setName,
+        ageLabel: body.ageBand?.label ?? current.ageBand.label,
+        unit: body.unit ?? current.unit,
+        method: body.method ?? current.method,
+        sourceNote: body.sourceNote ?? current.sourceNote,
+        ...(numbersChanged && current.derivation ? { derivation: null } : {}),
+      },
+      transaction,
+    );
+    if (!ok) throw staleVersion('reference interval');
+    const after = (await repo.findIntervalById(id, transaction))!;
+    await recordAudit(actor, { action: 'update', entity: AUDIT_ENTITY, entityId: id, before: current, after }, transaction);
+    return after;
+  });
 }
 
 /**
@@ -280,6 +368,7 @@ export async function approveInterval(
       throw invalidState(`Version ${current.version} is ${current.status}; only a draft can be approved`);
     }
     if (current.revision !== revision) throw staleVersion('reference interval');
+    const { selfApproved } = await checkApprover(actor, current.createdBy, current.label, transaction);
     const approved = await repo.listApprovedForSeries(current, transaction);
     const { close } = planApproval(
       {
@@ -323,7 +412,14 @@ export async function approveInterval(
     const after = (await repo.findIntervalById(id, transaction))!;
     await recordAudit(
       actor,
-      { action: 'approve', entity: AUDIT_ENTITY, entityId: id, before: { status: current.status }, after },
+      {
+        action: 'approve',
+        entity: AUDIT_ENTITY,
+        entityId: id,
+        before: { status: current.status },
+        after,
+        note: selfApproved ? SELF_APPROVAL_NOTE : null,
+      },
       transaction,
     );
     return after;

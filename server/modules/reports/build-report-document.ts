@@ -24,6 +24,8 @@ export type ReportableResults = {
   criteria: { majorBelowPct: number; minorBelowPct: number; ruleSetLabel: string } | null;
   /** Remarks about the results worth a line on the report (e.g. a value with no interval). */
   notes: string[];
+  /** Definition and interval versions used that their own drafter approved (absent: none). */
+  selfApproved?: string[];
   /** Replicates left out of the calculations, for the methods section (absent: none). */
   excludedReplicates?: ReportExcludedReplicate[];
 };
@@ -124,6 +126,20 @@ function excludedOf(measured: Measured[]): { excludedReplicates?: ReportExcluded
   return all.length > 0 ? { excludedReplicates: all } : {};
 }
 
+/**
+ * Separation of duties: when a version used was approved by the director who drafted it (allowed only in a
+ * single-director laboratory), the methods section says so; nothing otherwise (older documents stay alike).
+ */
+function selfApprovalOf(measured: Measured[]): { selfApproval?: string } {
+  const names = [...new Set(measured.flatMap((m) => m.results.selfApproved ?? []))];
+  if (names.length === 0) return {};
+  return {
+    selfApproval:
+      `Approved by the director who drafted it, as this single-director laboratory allows: ${joinWords(names)}. ` +
+      'No second director reviewed these versions.',
+  };
+}
+
 function graphicOf(results: ReportableResults | null): ReportGraphic {
   if (!results || results.results.length === 0) return { bars: [], criterionBands: null };
   const pct = (assay: AssayCode, measure: ReportResult['measure']) =>
@@ -217,6 +233,7 @@ function assemble(inputs: ReportInputs): ReportDocument {
     methods: {
       summary: methodsSummary(measured, sections.length),
       definitions: [...definitions.values()],
+      ...selfApprovalOf(measured),
       ...excludedOf(measured),
     },
     signature: {

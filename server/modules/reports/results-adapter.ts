@@ -4,6 +4,7 @@ import { bandThresholds } from '@/schemas/result-format';
 import type { ReportExcludedReplicate, ReportResult } from '@/schemas/report-document';
 import type { AssayResult, CaseResults, ResultComparison, SpecimenResult } from '@/schemas/results';
 import { findDefinitionById } from '../assay-definitions/assay-definitions.repository';
+import { findIntervalById } from '../reference-intervals/reference-intervals.repository';
 import { describeDefinition, type ReportableResults } from './build-report-document';
 
 /*
@@ -136,13 +137,29 @@ function patternSummaryOf(s: SpecimenResult): string | null {
   return [s.pattern.headline, ...s.pattern.notes].filter((t) => t.trim().length > 0).map(sentence).join(' ') || null;
 }
 
+/**
+ * The reference intervals a specimen's comparisons used that were approved by the director who drafted them
+ * (a single-director laboratory that allows it), named as the methods section prints them.
+ */
+async function selfApprovedIntervals(s: SpecimenResult): Promise<string[]> {
+  const ids = new Set(s.assays.flatMap((a) => [a.activity, a.ratioCs, a.ratioCii].flatMap((c) => (c?.interval ? [c.interval.id] : []))));
+  const names: string[] = [];
+  for (const id of ids) {
+    const i = await findIntervalById(id);
+    if (i && i.approvedBy !== null && i.approvedBy === i.createdBy) names.push(`reference interval ${i.label}`);
+  }
+  return names;
+}
+
 /** Every specimen's results in the report's shape, keyed by specimen id. */
 export async function toReportableResults(caseResults: CaseResults): Promise<Map<number, ReportableResults>> {
   const descriptions = new Map<number, string>();
+  const selfApprovedDefinitions = new Set<number>();
   for (const d of caseResults.definitions) {
     if (descriptions.has(d.id)) continue;
     const stored = await findDefinitionById(d.id);
     descriptions.set(d.id, stored ? describeDefinition(stored.definition) : `${d.assay} assay definition version ${d.version}.`);
+    if (stored?.selfApproved) selfApprovedDefinitions.add(d.id);
   }
   const out = new Map<number, ReportableResults>();
   for (const s of caseResults.specimens) {
@@ -161,6 +178,12 @@ export async function toReportableResults(caseResults: CaseResults): Promise<Map
       definitions,
       criteria: results.some((r) => r.measure !== 'activity') ? criteriaFor(s, citation, s.pattern?.criteria) : null,
       notes,
+      selfApproved: [
+        ...caseResults.definitions
+          .filter((d) => used.has(d.id) && selfApprovedDefinitions.has(d.id))
+          .map((d) => `${d.assay} assay definition version ${d.version}`),
+        ...(s.accepted ? await selfApprovedIntervals(s) : []),
+      ],
       excludedReplicates: s.accepted ? excludedReplicatesOf(s) : [],
     });
   }

@@ -15,6 +15,7 @@ export function LabProfileForm({ profile }: { profile: LabProfile }) {
       accreditationNumber: profile.accreditationNumber,
       phone: profile.phone,
       timeZone: profile.timeZone,
+      allowSelfApproval: profile.allowSelfApproval,
       version: profile.version,
     },
   });
@@ -61,6 +62,20 @@ export function LabProfileForm({ profile }: { profile: LabProfile }) {
           error={errors.timeZone?.message ?? (isDirty ? undefined : (profile.timeZoneNotice ?? undefined))}
         />
       </div>
+      <fieldset className="grid gap-1 text-sm">
+        <legend className="font-semibold text-ink">Who approves new versions</legend>
+        <label className="flex items-start gap-2">
+          <input type="checkbox" className="mt-1" {...form.register('allowSelfApproval')} />
+          <span>
+            This laboratory has a single director: let a director approve the reference intervals and assay definitions
+            they drafted themselves.
+          </span>
+        </label>
+        <p className="text-xs text-ink-soft">
+          Left clear, a second director approves every new version. When a report uses a version its own author
+          approved, its methods section says so. The change is kept in the audit trail.
+        </p>
+      </fieldset>
       {message ? <Notice tone={message.tone}>{message.text}</Notice> : null}
       <div>
         <Button type="submit" disabled={save.isPending}>
