@@ -46,7 +46,7 @@ export const patientSchema = z.object({
 });
 export type Patient = z.infer<typeof patientSchema>;
 
-export const createPatientInputSchema = z
+const patientFieldsSchema = z
   .object({
     labPatientId: z
       .string()
@@ -60,16 +60,42 @@ export const createPatientInputSchema = z
     sex: sexSchema,
   })
   .strict();
+
+/**
+ * Registering (or correcting) a genuinely different person who shares a name and date of birth with a registered
+ * patient: the id of that patient and the reason, recorded in the audit trail. Both or neither.
+ */
+const distinctPersonFields = {
+  confirmDistinctFrom: z.number({ error: 'Give the id of the patient this person is not' }).int().positive().optional(),
+  distinctReason: z
+    .string()
+    .trim()
+    .min(5, 'Say how you know this is a different person')
+    .max(500, 'Use at most 500 characters')
+    .superRefine(plainText('Reason'))
+    .optional(),
+};
+function bothOrNeither(v: { confirmDistinctFrom?: number; distinctReason?: string }, ctx: z.RefinementCtx): void {
+  if (v.confirmDistinctFrom !== undefined && !v.distinctReason) {
+    ctx.addIssue({ code: 'custom', path: ['distinctReason'], message: 'Say how you know this is a different person' });
+  }
+  if (v.distinctReason !== undefined && v.confirmDistinctFrom === undefined) {
+    ctx.addIssue({ code: 'custom', path: ['confirmDistinctFrom'], message: 'Name the registered patient this person is not' });
+  }
+}
+
+export const createPatientInputSchema = patientFieldsSchema.extend(distinctPersonFields).strict().superRefine(bothOrNeither);
 export type CreatePatientInput = z.infer<typeof createPatientInputSchema>;
 
 export const patientSearchQuerySchema = z.object({ q: z.string().trim().max(80).optional() }).strict();
 export type PatientSearchQuery = z.infer<typeof patientSearchQuerySchema>;
 
 /** Corrections to a patient's details, with the version the editor saw. */
-export const updatePatientInputSchema = createPatientInputSchema
+export const updatePatientInputSchema = patientFieldsSchema
   .partial()
-  .extend({ version: z.number().int().min(0) })
-  .strict();
+  .extend({ version: z.number().int().min(0), ...distinctPersonFields })
+  .strict()
+  .superRefine(bothOrNeither);
 export type UpdatePatientInput = z.infer<typeof updatePatientInputSchema>;
 
 /**

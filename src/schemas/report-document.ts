@@ -26,6 +26,8 @@ export const reportLaboratorySchema = z.object({
   name: text,
   addressLines: z.array(text).min(1, 'At least one address line').max(6, 'At most 6 address lines'),
   accreditationNumber: text,
+  /** The laboratory's telephone number, printed under the address (absent in reports signed before it was). */
+  phone: text.optional(),
   /** IANA zone used to print date-times (receipt, signature); UTC when absent. */
   timeZone: z
     .string()
@@ -46,6 +48,8 @@ export const reportPatientSchema = z.object({
   labPatientId: text,
   dateOfBirth: isoDate,
   sex: reportSexSchema,
+  /** Age on the collection day as printed, e.g. '1 year 3 months' (absent in reports signed before it was). */
+  ageAtCollection: text.optional(),
 });
 
 export const reportCaseSchema = z.object({

@@ -60,6 +60,7 @@ export function drawFirstPageHeader(c: Composer, doc: ReportDocument): void {
   const rest = c.measure(
     [
       seg(`${laboratory.addressLines.join('\n')}\n`, STYLES.small),
+      ...(laboratory.phone ? [seg(`Telephone ${laboratory.phone}\n`, STYLES.small)] : []),
       seg(`Accreditation no. ${laboratory.accreditationNumber}`, STYLES.small),
     ],
     STYLES.small,
@@ -270,6 +271,7 @@ export function drawIdentification(c: Composer, doc: ReportDocument): void {
         ['Name', [seg(patient.name, STYLES.valueStrong)]],
         ['Patient ID', [seg(patient.labPatientId, STYLES.valueStrong)]],
         ['Date of birth', formatDate(patient.dateOfBirth)],
+        ...(patient.ageAtCollection ? [['Age at collection', patient.ageAtCollection] as [string, string]] : []),
         ['Sex', reportSexLabels[patient.sex]],
       ],
     },

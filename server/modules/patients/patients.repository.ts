@@ -24,13 +24,14 @@ export async function findPatientByLabId(labPatientId: string, transaction?: Tra
   return row ? toPatient(row) : null;
 }
 
-export async function findPatientByNameAndBirth(
+/** Every patient registered under this folded name and date of birth, oldest registration first. */
+export async function findPatientsByNameAndBirth(
   nameKey: string,
   dateOfBirth: string,
   transaction?: Transaction,
-): Promise<Patient | null> {
-  const row = await PatientModel.findOne({ where: { nameKey, dateOfBirth }, order: [['id', 'ASC']], transaction });
-  return row ? toPatient(row) : null;
+): Promise<Patient[]> {
+  const rows = await PatientModel.findAll({ where: { nameKey, dateOfBirth }, order: [['id', 'ASC']], transaction });
+  return rows.map(toPatient);
 }
 
 /**

@@ -6,7 +6,7 @@ import {
   type UpdatePatientInput,
 } from '@/schemas/case';
 import type { User } from '@/schemas/user';
-import { AppError, notFound, staleVersion } from '../../lib/errors';
+import { AppError, badInput, notFound, staleVersion } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
 import { refreshPatientOnCases } from '../cases/cases.repository';
 import { writeTransaction } from '../../db/write-transaction';
@@ -26,20 +26,42 @@ function duplicateOf(existing: Patient, fields: string[], message: string): AppE
   });
 }
 
-/** Catches a second registration of the same person: same lab ID, or same name and date of birth. */
+/** Someone confirmed as a different person from a registered patient with the same name and birth date. */
+type DistinctPerson = { confirmDistinctFrom?: number; distinctReason?: string };
+
+/**
+ * Catches a second registration of the same person: same lab ID (always refused), or same name and date of
+ * birth (refused unless the user confirms, with a reason, that this is a different person from one of them).
+ * Returns the audit note of such a confirmation, or null.
+ */
 async function assertNotDuplicate(
   candidate: { labPatientId: string; nameKey: string; dateOfBirth: string },
   exceptId: number | null,
+  distinct: DistinctPerson,
   transaction: Transaction,
-): Promise<void> {
+): Promise<string | null> {
   const byId = await repo.findPatientByLabId(candidate.labPatientId, transaction);
   if (byId && byId.id !== exceptId) {
     throw duplicateOf(byId, ['labPatientId'], `Lab patient ID ${candidate.labPatientId} is already registered`);
   }
-  const byName = await repo.findPatientByNameAndBirth(candidate.nameKey, candidate.dateOfBirth, transaction);
-  if (byName && byName.id !== exceptId) {
-    throw duplicateOf(byName, ['familyName', 'givenName', 'dateOfBirth'], 'A patient with this name and date of birth is already registered');
+  const sameName = (await repo.findPatientsByNameAndBirth(candidate.nameKey, candidate.dateOfBirth, transaction)).filter(
+    (p) => p.id !== exceptId,
+  );
+  const { confirmDistinctFrom: otherId, distinctReason: reason } = distinct;
+  if (otherId === undefined || !reason) {
+    if (sameName[0]) {
+      throw duplicateOf(sameName[0], ['familyName', 'givenName', 'dateOfBirth'], 'A patient with this name and date of birth is already registered');
+    }
+    return null;
   }
+  const other = sameName.find((p) => p.id === otherId);
+  if (!other) {
+    throw badInput({
+      confirmDistinctFrom: `Patient ${otherId} does not share this name and date of birth; leave the confirmation out`,
+    });
+  }
+  const others = sameName.map((p) => `${p.labPatientId} (id ${p.id})`).join(', ');
+  return `Confirmed a different person from ${others}, same name and date of birth: ${reason}`;
 }
 
 export async function getPatient(id: number): Promise<Patient> {
@@ -65,9 +87,9 @@ export async function registerPatient(sequelize: Sequelize, actor: User, input: 
       sex: input.sex,
       nameKey: nameKeyOf(input.familyName, input.givenName),
     };
-    await assertNotDuplicate(data, null, transaction);
+    const note = await assertNotDuplicate(data, null, input, transaction);
     const created = await repo.insertPatient(data, transaction);
-    await recordAudit(actor, { action: 'create', entity: 'patient', entityId: created.id, after: created }, transaction);
+    await recordAudit(actor, { action: 'create', entity: 'patient', entityId: created.id, after: created, note }, transaction);
     return created;
   });
 }
@@ -82,7 +104,7 @@ export async function correctPatient(
   return writeTransaction(sequelize, async (transaction) => {
     const current = await repo.findPatientById(id, transaction);
     if (!current) throw notFound('Patient', id);
-    const { version, ...changes } = input;
+    const { version, confirmDistinctFrom, distinctReason, ...changes } = input;
     const next = {
       labPatientId: changes.labPatientId !== undefined ? normaliseLabId(changes.labPatientId) : current.labPatientId,
       familyName: changes.familyName ?? current.familyName,
@@ -92,11 +114,11 @@ export async function correctPatient(
     };
     const nameKey = nameKeyOf(next.familyName, next.givenName);
     if (version !== current.version) throw staleVersion('patient');
-    await assertNotDuplicate({ ...next, nameKey }, id, transaction);
+    const note = await assertNotDuplicate({ ...next, nameKey }, id, { confirmDistinctFrom, distinctReason }, transaction);
     if (!(await repo.updatePatientIfVersion(id, version, { ...next, nameKey }, transaction))) throw staleVersion('patient');
     const after = (await repo.findPatientById(id, transaction))!;
     await refreshPatientOnCases(after, transaction);
-    await recordAudit(actor, { action: 'update', entity: 'patient', entityId: id, before: current, after }, transaction);
+    await recordAudit(actor, { action: 'update', entity: 'patient', entityId: id, before: current, after, note }, transaction);
     return after;
   });
 }

@@ -3,6 +3,7 @@ import { transportConditionLabels, type CaseDetail, type Specimen } from '@/sche
 import { specimenTypeLabels, type AssayCode } from '@/schemas/common';
 import type { LabProfile } from '@/schemas/lab-profile';
 import type { ReportDocument, ReportExcludedReplicate, ReportGraphic, ReportResult, ReportSpecimenSection } from '@/schemas/report-document';
+import { ageAtCollectionText } from '../../domain/report-pdf/age-at-collection';
 import { changedValuesBetween } from '../../domain/report-changes';
 import { wallClock } from '../cases/lab-time';
 import type { DraftFinding } from '../review/draft-interpretation';
@@ -213,6 +214,7 @@ function assemble(inputs: ReportInputs): ReportDocument {
       name: laboratory.name,
       addressLines: laboratory.addressLines.filter((l) => l.trim().length > 0).slice(0, 6),
       accreditationNumber: laboratory.accreditationNumber,
+      ...(laboratory.phone?.trim() ? { phone: laboratory.phone.trim() } : {}),
       timeZone: laboratory.timeZone,
     },
     patient: {
@@ -220,6 +222,10 @@ function assemble(inputs: ReportInputs): ReportDocument {
       labPatientId: p.labPatientId,
       dateOfBirth: p.dateOfBirth,
       sex: p.sex,
+      ageAtCollection: ageAtCollectionText(
+        p.dateOfBirth,
+        specimen.collectedAt ? labDate(new Date(specimen.collectedAt), laboratory.timeZone) : null,
+      ),
     },
     case: {
       accession: caseDetail.accession,
