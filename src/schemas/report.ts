@@ -158,6 +158,9 @@ export const amendCaseInputSchema = z
   .strict();
 export type AmendCaseInput = z.infer<typeof amendCaseInputSchema>;
 
+/** What every screen shows beside the signed reports of a reopened case (never printed in a stored PDF). */
+export const UNDER_AMENDMENT_NOTE = 'This report is being amended by the laboratory; a corrected version will follow.';
+
 /**
  * POST /api/cases/:id/correct: a new, signed version that supersedes the current one. On a case reopened with
  * /amend and submitted again, it carries the results frozen at that submission and lists the changed values.

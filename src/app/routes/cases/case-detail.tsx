@@ -15,7 +15,8 @@ import { useLabTimeZone } from './use-lab-time-zone';
  * measurements panel, e.g. <MeasurementsPanel detail={detail} timeZone={timeZone} />.
  */
 function CaseWorkSections({ detail }: { detail: CaseDetail; timeZone: string }) {
-  const signed = detail.state === 'final' || detail.state === 'corrected';
+  // A reopened case keeps its signed reports on view, with the note that a corrected version will follow.
+  const signed = detail.state === 'final' || detail.state === 'corrected' || detail.amendReason !== null;
   return (
     <>
     <section aria-labelledby="work-area-title" data-slot="case-work" className="rounded-card border border-paper-line bg-paper-raised p-5 shadow-card">
@@ -32,7 +33,7 @@ function CaseWorkSections({ detail }: { detail: CaseDetail; timeZone: string }) 
         <h2 id="reports-title" className="mb-3 text-lg font-semibold text-matrix-900">
           Signed reports
         </h2>
-        <CaseReportsPanel caseId={detail.id} />
+        <CaseReportsPanel caseId={detail.id} underAmendment={detail.amendReason !== null} />
       </section>
     ) : null}
     </>

@@ -7,6 +7,7 @@ import { reportKeys, reportPdfHref } from '@/features/reports/api/report-queries
 import { resultsQueries } from '@/features/results/api/results-queries';
 import { ResultsView } from '@/features/results/components/results-view';
 import { ReportVersions } from '@/features/reports/components/report-versions';
+import { AmendPanel } from '@/features/review/components/amend-panel';
 import { reviewQueries } from '@/features/review/api/review-queries';
 import { CaseOverview } from '@/features/review/components/case-overview';
 import { CorrectionPanel } from '@/features/review/components/correction-panel';
@@ -41,6 +42,13 @@ function ReviewCase({ caseId }: { caseId: number }) {
   };
   const c = review.case;
   const current = review.reports.find((r) => r.status !== 'superseded') ?? null;
+  // Reopened after signing: the next signature is a correction of the signed version, never a first signature.
+  const amending = c.amendReason !== null && current !== null;
+  const onAmended = async () => {
+    await qc.invalidateQueries({ queryKey: reportKeys.all });
+    setSigned(null);
+    window.scrollTo({ top: 0 });
+  };
 
   return (
     <>
@@ -62,6 +70,14 @@ function ReviewCase({ caseId }: { caseId: number }) {
             </a>
           </Notice>
         ) : null}
+        {amending ? (
+          <Notice>
+            <strong className="font-semibold">Reopened after signing.</strong> {c.amendReason}{' '}
+            {c.state === 'awaiting_review'
+              ? 'The corrected results are submitted: check them, then sign the correction below.'
+              : 'The technologists are correcting the results; when they submit the case again, you sign the correction here.'}
+          </Notice>
+        ) : null}
         <Card title="Case">
           <CaseOverview review={review} />
         </Card>
@@ -76,11 +92,18 @@ function ReviewCase({ caseId }: { caseId: number }) {
           <CaseResults caseId={c.id} />
         </Card>
         <ResultsCaution />
+        {c.state === 'awaiting_review' && amending ? (
+          <Card title="Sign the correction">
+            <CorrectionPanel key={current.id} review={review} current={current} onCorrected={onSigned} />
+          </Card>
+        ) : null}
         {c.state === 'awaiting_review' ? (
           <>
-            <Card title="Interpretation and signature">
-              <SignOutPanel review={review} onSigned={onSigned} />
-            </Card>
+            {amending ? null : (
+              <Card title="Interpretation and signature">
+                <SignOutPanel review={review} onSigned={onSigned} />
+              </Card>
+            )}
             <Card title="Not ready to sign?">
               <ReturnPanel caseDetail={c} onReturned={() => navigate(paths.review.href())} />
             </Card>
@@ -92,9 +115,12 @@ function ReviewCase({ caseId }: { caseId: number }) {
         {review.reports.length > 0 ? (
           <Card title="Signed reports">
             <div className="flex flex-col gap-4">
-              <ReportVersions reports={review.reports} showInterpretation />
+              <ReportVersions reports={review.reports} showInterpretation underAmendment={amending} />
               {current && (c.state === 'final' || c.state === 'corrected') ? (
-                <CorrectionPanel key={current.id} review={review} current={current} onCorrected={onSigned} />
+                <div className="flex flex-wrap gap-3">
+                  <AmendPanel key={`amend-${c.version}`} caseDetail={c} current={current} onAmended={onAmended} />
+                  <CorrectionPanel key={current.id} review={review} current={current} onCorrected={onSigned} />
+                </div>
               ) : null}
             </div>
           </Card>

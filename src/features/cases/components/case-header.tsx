@@ -114,7 +114,14 @@ export function CaseHeader({ detail, timeZone, onReload }: { detail: CaseDetail;
               Every specimen of this case was rejected on receipt. Ask the clinician for a new specimen, or cancel the case with the reason.
             </p>
           ) : null}
-          {detail.state === 'in_assay' && detail.returnReason ? (
+          {detail.amendReason ? (
+            <p className="mt-2">
+              <span className="font-medium text-ink">Reopened after signing to correct the results: </span>
+              {detail.amendReason} The signed report stays as it is, with a note that a corrected version will follow, until the director signs
+              the correction.
+            </p>
+          ) : null}
+          {detail.state === 'in_assay' && detail.returnReason && detail.returnReason !== detail.amendReason ? (
             <p className="mt-2">
               <span className="font-medium text-ink">Sent back by the director: </span>
               {detail.returnReason}

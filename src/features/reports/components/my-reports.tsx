@@ -5,6 +5,7 @@ import { specimenTypeLabels } from '@/schemas/common';
 import type { CaseReports } from '@/schemas/report';
 import { reportPdfHref, reportQueries } from '../api/report-queries';
 import { formatDay, formatWhen } from '@/utils/format';
+import { ChangedValues, UnderAmendmentNote } from './changed-values';
 import { ReportStatus } from './report-status';
 
 function matches(group: CaseReports, q: string): boolean {
@@ -35,6 +36,11 @@ function CaseCard({ group }: { group: CaseReports }) {
           Download report (PDF)
         </a>
       </header>
+      {group.underAmendment ? (
+        <div className="mt-3">
+          <UnderAmendmentNote />
+        </div>
+      ) : null}
       <div className="mt-3 flex flex-wrap items-center gap-2 text-sm">
         <span className="font-medium">Version {current.version}</span>
         <ReportStatus status={current.status} />
@@ -48,6 +54,7 @@ function CaseCard({ group }: { group: CaseReports }) {
           {current.correctionReason} <span className="text-ink-soft">What changed: {current.changesSummary}</span>
         </p>
       ) : null}
+      <ChangedValues report={current} />
       {current.patternSummary ? <p className="mt-3 text-sm text-ink">{current.patternSummary}</p> : null}
       <details className="mt-2 text-sm">
         <summary className="cursor-pointer text-matrix-700">Interpretation</summary>

@@ -32,10 +32,12 @@ export function CorrectionPanel({
   });
   const correct = useCorrectReport({ onDone: onCorrected });
   const { errors } = form.formState;
+  // Reopened and submitted again: the results are new, so the signed wording may no longer fit them.
+  const newResults = review.case.amendReason !== null;
   if (!open) {
     return (
       <Button variant="secondary" className="self-start" onClick={() => setOpen(true)}>
-        Issue a corrected report…
+        {newResults ? 'Sign the corrected report…' : 'Correct the wording of the report…'}
       </Button>
     );
   }
@@ -64,6 +66,14 @@ export function CorrectionPanel({
       </p>
       <TextArea label="Why the report is corrected" rows={2} error={errors.reason?.message} registration={form.register('reason')} />
       <TextArea label="What changed" rows={2} error={errors.changesSummary?.message} registration={form.register('changesSummary')} />
+      {newResults ? (
+        <div className="flex flex-wrap items-center gap-2 text-sm text-ink-soft">
+          <span>The interpretation below is the signed one; check it against the new results.</span>
+          <Button variant="quiet" onClick={() => form.setValue('interpretation', review.proposal.interpretation, { shouldDirty: true })}>
+            Start from Cristae’s proposal for the new results
+          </Button>
+        </div>
+      ) : null}
       <TextArea
         label="Interpretation of the corrected version"
         rows={10}
