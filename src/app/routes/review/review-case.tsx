@@ -45,7 +45,8 @@ function ReviewCase({ caseId }: { caseId: number }) {
   // Reopened after signing: the next signature is a correction of the signed version, never a first signature.
   const amending = c.amendReason !== null && current !== null;
   const onAmended = async () => {
-    await qc.invalidateQueries({ queryKey: reportKeys.all });
+    // The case, its results (live again while in assay) and its reports all read differently now.
+    await qc.invalidateQueries();
     setSigned(null);
     window.scrollTo({ top: 0 });
   };
