@@ -13,7 +13,8 @@ export const measurementPreviewSchema = z.object({
 });
 export type MeasurementPreview = z.infer<typeof measurementPreviewSchema>;
 
-function useRefresh(caseId: number) {
+/** After a change on the bench: the workup and the case results are read again. */
+export function useRefreshWorkup(caseId: number) {
   const qc = useQueryClient();
   return async () => {
     await qc.invalidateQueries({ queryKey: workupKeys.detail(caseId) });
@@ -29,7 +30,7 @@ export function usePreviewMeasurement(caseId: number) {
 }
 
 export function useCreateMeasurement(caseId: number) {
-  const refresh = useRefresh(caseId);
+  const refresh = useRefreshWorkup(caseId);
   return useMutation({
     mutationFn: (input: CreateMeasurementInput) => api.post(`/api/cases/${caseId}/measurements`, input, measurementSchema),
     onSuccess: refresh,
@@ -37,7 +38,7 @@ export function useCreateMeasurement(caseId: number) {
 }
 
 export function useUpdateMeasurement(caseId: number) {
-  const refresh = useRefresh(caseId);
+  const refresh = useRefreshWorkup(caseId);
   return useMutation({
     mutationFn: ({ id, input }: { id: number; input: UpdateMeasurementInput }) => api.put(`/api/measurements/${id}`, input, measurementSchema),
     onSettled: refresh,
@@ -45,7 +46,7 @@ export function useUpdateMeasurement(caseId: number) {
 }
 
 export function useDeleteMeasurement(caseId: number) {
-  const refresh = useRefresh(caseId);
+  const refresh = useRefreshWorkup(caseId);
   return useMutation({
     mutationFn: ({ id, version }: { id: number; version: number }) =>
       apiRequest(`/api/measurements/${id}?version=${version}`, undefined, { method: 'DELETE' }),

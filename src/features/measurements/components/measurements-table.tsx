@@ -1,78 +1,113 @@
-import { useState } from 'react';
+import { Fragment, useState } from 'react';
 import { Button } from '@/components/ui/button';
 import { Notice } from '@/components/ui/layout';
 import { ApiError } from '@/lib/api-client';
 import { flagSummary } from '@/schemas/assay';
 import { assayCodes } from '@/schemas/common';
 import { inputModeLabels, type CaseWorkup, type Measurement } from '@/schemas/measurement';
-import { useDeleteMeasurement, useUpdateMeasurement } from '../api/save-measurement';
+import { formatWhen } from '@/utils/format';
+import { useIncludeMeasurement } from '../api/exclude-measurement';
+import { useDeleteMeasurement } from '../api/save-measurement';
 import { fmt } from '../utils/format';
+import { ExcludeForm } from './exclude-form';
+import { MeasurementEditForm } from './measurement-edit-form';
 
-function WindowEditor({ caseId, m, onDone }: { caseId: number; m: Measurement; onDone: (tone: 'success' | 'error', text: string) => void }) {
-  const w = m.result.window;
-  const [fromS, setFromS] = useState(w ? String(w.fromS) : '');
-  const [toS, setToS] = useState(w ? String(w.toS) : '');
-  const update = useUpdateMeasurement(caseId);
-  const submit = (window: { fromS: number; toS: number } | null) => {
-    if (m.inputs.mode === 'rates') return;
-    const input =
-      m.inputs.mode === 'plate'
-        ? { mode: 'plate' as const, window, version: m.version }
-        : {
-            mode: 'traces' as const,
-            pathlengthCm: m.inputs.pathlengthCm,
-            reactionVolumeUl: m.inputs.reactionVolumeUl,
-            sampleVolumeUl: m.inputs.sampleVolumeUl,
-            total: m.inputs.total,
-            background: m.inputs.background,
-            window,
-            version: m.version,
-          };
-    update.mutate(
-      { id: m.id, input },
-      {
-        onSuccess: (after) => onDone('success', `${after.assay} replicate ${after.replicate}: ${after.activity === null ? 'no activity' : fmt(after.activity)} with the new window.`),
-        onError: (err) => onDone('error', err instanceof ApiError ? err.message : 'Not saved'),
-      },
-    );
-  };
+type Open = { id: number; form: 'edit' | 'exclude' } | null;
+type Message = { tone: 'success' | 'error'; text: string };
+
+const small = '!px-2 !py-0.5 text-xs';
+
+/** "Excluded by … on …: reason", under an excluded replicate. */
+export function ExclusionNote({ m }: { m: Pick<Measurement, 'excluded'> }) {
+  if (!m.excluded) return null;
   return (
-    <form
-      className="flex items-center gap-1"
-      onSubmit={(e) => {
-        e.preventDefault();
-        submit({ fromS: Number(fromS), toS: Number(toS) });
-      }}
-    >
-      <label className="sr-only" htmlFor={`from-${m.id}`}>
-        Window start (s) of {m.assay} replicate {m.replicate}
-      </label>
-      <input id={`from-${m.id}`} className="num w-16 rounded border border-paper-line px-1 py-0.5 text-xs" value={fromS} onChange={(e) => setFromS(e.target.value)} />
-      <span className="text-xs">–</span>
-      <label className="sr-only" htmlFor={`to-${m.id}`}>
-        Window end (s) of {m.assay} replicate {m.replicate}
-      </label>
-      <input id={`to-${m.id}`} className="num w-16 rounded border border-paper-line px-1 py-0.5 text-xs" value={toS} onChange={(e) => setToS(e.target.value)} />
-      <Button type="submit" variant="quiet" className="!px-2 !py-0.5 text-xs" disabled={update.isPending}>
-        Apply
-      </Button>
-      <Button variant="quiet" className="!px-2 !py-0.5 text-xs" disabled={update.isPending} onClick={() => submit(null)}>
-        Auto
-      </Button>
-    </form>
+    <span className="block text-xs text-caution" data-testid="exclusion-note">
+      Excluded{m.excluded.by ? ` by ${m.excluded.by}` : ''} on {formatWhen(m.excluded.at)}: {m.excluded.reason}
+    </span>
   );
 }
 
-/** The saved measurements of a case, by specimen: activity, window, flags, who entered them; windows can be moved. */
+function RowActions({
+  caseId,
+  m,
+  specimenLabel,
+  open,
+  setOpen,
+  say,
+}: {
+  caseId: number;
+  m: Measurement;
+  specimenLabel: string;
+  open: Open;
+  setOpen: (o: Open) => void;
+  say: (msg: Message) => void;
+}) {
+  const remove = useDeleteMeasurement(caseId);
+  const include = useIncludeMeasurement(caseId);
+  const toggle = (form: 'edit' | 'exclude') => setOpen(open?.id === m.id && open.form === form ? null : { id: m.id, form });
+  const fail = (fallback: string) => (err: unknown) => say({ tone: 'error', text: err instanceof ApiError ? err.message : fallback });
+  return (
+    <div className="flex flex-wrap gap-1">
+      <Button variant="quiet" className={small} onClick={() => toggle('edit')}>
+        Edit
+      </Button>
+      {m.excluded ? (
+        <Button
+          variant="quiet"
+          className={small}
+          disabled={include.isPending}
+          onClick={() =>
+            include.mutate(
+              { id: m.id, input: { version: m.version } },
+              { onSuccess: () => say({ tone: 'success', text: `${m.assay} replicate ${m.replicate} counts again.` }), onError: fail('Not saved') },
+            )
+          }
+        >
+          Include again
+        </Button>
+      ) : (
+        <Button variant="quiet" className={`${small} text-caution`} onClick={() => toggle('exclude')}>
+          Exclude
+        </Button>
+      )}
+      {m.submittedAt ? null : (
+        // Once part of a submission a replicate can only be excluded, never deleted (the server refuses it too).
+        <Button
+          variant="quiet"
+          className={`${small} text-below`}
+          onClick={() => {
+            if (!window.confirm(`Delete ${m.assay} replicate ${m.replicate} of specimen ${specimenLabel}? It has never been submitted.`)) return;
+            remove.mutate(
+              { id: m.id, version: m.version },
+              { onSuccess: () => say({ tone: 'success', text: `Deleted ${m.assay} replicate ${m.replicate}.` }), onError: fail('Not deleted') },
+            );
+          }}
+        >
+          Delete
+        </Button>
+      )}
+    </div>
+  );
+}
+
+/**
+ * The saved measurements of a case, by specimen: activity, window, flags, who entered them. While the case is
+ * open for assay work each can be edited, excluded with a reason (struck through, still listed) or included
+ * again; one never submitted can also be deleted.
+ */
 export function MeasurementsTable({ workup }: { workup: CaseWorkup }) {
-  const remove = useDeleteMeasurement(workup.caseId);
-  const [editing, setEditing] = useState<number | null>(null);
-  const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string } | null>(null);
+  const [open, setOpen] = useState<Open>(null);
+  const [message, setMessage] = useState<Message | null>(null);
   if (workup.measurements.length === 0) return <p className="text-sm text-ink-faint">No measurement saved yet.</p>;
   const label = new Map(workup.specimens.map((s) => [s.id, s.label]));
   const rows = [...workup.measurements].sort(
     (a, b) => a.specimenId - b.specimenId || assayCodes.indexOf(a.assay) - assayCodes.indexOf(b.assay) || a.replicate - b.replicate,
   );
+  const columns = workup.editable ? 9 : 8;
+  const done = (text: string) => {
+    setMessage({ tone: 'success', text });
+    setOpen(null);
+  };
   return (
     <div className="flex flex-col gap-2">
       {message ? <Notice tone={message.tone}>{message.text}</Notice> : null}
@@ -91,67 +126,69 @@ export function MeasurementsTable({ workup }: { workup: CaseWorkup }) {
           </tr>
         </thead>
         <tbody>
-          {rows.map((m) => (
-            <tr key={m.id} className="border-b border-paper-line/70 align-top" data-testid={`measurement-${m.id}`}>
-              <td className="py-1.5 pr-3">{label.get(m.specimenId)}</td>
-              <td className="py-1.5 pr-3 font-medium">{m.assay}</td>
-              <td className="num py-1.5 pr-3">{m.replicate}</td>
-              <td className="py-1.5 pr-3 text-ink-soft">
-                {inputModeLabels[m.inputMode]}
-                {m.inputs.mode === 'plate' ? <span className="block text-xs text-ink-faint">wells {[m.inputs.wells.total, m.inputs.wells.background, m.inputs.wells.blank].filter(Boolean).join(', ')}</span> : null}
-              </td>
-              <td className="num py-1.5 pr-3">{m.activity === null ? '—' : fmt(m.activity)}</td>
-              <td className="num py-1.5 pr-3 text-xs">
-                {editing === m.id ? (
-                  <WindowEditor
-                    caseId={workup.caseId}
-                    m={m}
-                    onDone={(tone, text) => {
-                      setMessage({ tone, text });
-                      if (tone === 'success') setEditing(null);
-                    }}
-                  />
-                ) : m.result.window ? (
-                  `${fmt(m.result.window.fromS)}–${fmt(m.result.window.toS)} s${m.result.windowAuto ? ' (auto)' : ''}`
-                ) : (
-                  '—'
-                )}
-              </td>
-              <td className="py-1.5 pr-3 text-xs text-caution" title={m.flags.map((f) => f.message).join('\n')}>
-                {flagSummary(m.flags) || <span className="text-within">none</span>}
-              </td>
-              <td className="py-1.5 pr-3 text-xs text-ink-soft">{m.enteredBy ?? '—'}</td>
-              {workup.editable ? (
-                <td className="py-1.5">
-                  <div className="flex gap-1">
-                    {m.inputMode !== 'rates' ? (
-                      <Button variant="quiet" className="!px-2 !py-0.5 text-xs" onClick={() => setEditing(editing === m.id ? null : m.id)}>
-                        {editing === m.id ? 'Close' : 'Window'}
-                      </Button>
+          {rows.map((m) => {
+            const struck = m.excluded ? 'line-through text-ink-faint' : '';
+            return (
+              <Fragment key={m.id}>
+                <tr
+                  className={`border-b border-paper-line/70 align-top ${m.excluded ? 'bg-paper-line/20' : ''}`}
+                  data-testid={`measurement-${m.id}`}
+                  data-excluded={m.excluded ? 'true' : undefined}
+                >
+                  <td className="py-1.5 pr-3">{label.get(m.specimenId)}</td>
+                  <td className="py-1.5 pr-3 font-medium">
+                    <span className={struck}>{m.assay}</span>
+                    <ExclusionNote m={m} />
+                  </td>
+                  <td className={`num py-1.5 pr-3 ${struck}`}>{m.replicate}</td>
+                  <td className="py-1.5 pr-3 text-ink-soft">
+                    {inputModeLabels[m.inputMode]}
+                    {m.inputs.mode === 'plate' ? (
+                      <span className="block text-xs text-ink-faint">
+                        wells {[m.inputs.wells.total, m.inputs.wells.background, m.inputs.wells.blank].filter(Boolean).join(', ')}
+                      </span>
                     ) : null}
-                    <Button
-                      variant="quiet"
-                      className="!px-2 !py-0.5 text-xs text-below"
-                      onClick={() => {
-                        if (!window.confirm(`Delete ${m.assay} replicate ${m.replicate} of specimen ${label.get(m.specimenId)}?`)) return;
-                        remove.mutate(
-                          { id: m.id, version: m.version },
-                          {
-                            onSuccess: () => setMessage({ tone: 'success', text: `Deleted ${m.assay} replicate ${m.replicate}.` }),
-                            onError: (err) => setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'Not deleted' }),
-                          },
-                        );
-                      }}
-                    >
-                      Delete
-                    </Button>
-                  </div>
-                </td>
-              ) : null}
-            </tr>
-          ))}
+                  </td>
+                  <td className={`num py-1.5 pr-3 ${struck}`}>{m.activity === null ? '—' : fmt(m.activity)}</td>
+                  <td className={`num py-1.5 pr-3 text-xs ${struck}`}>
+                    {m.result.window ? `${fmt(m.result.window.fromS)}–${fmt(m.result.window.toS)} s${m.result.windowAuto ? ' (auto)' : ''}` : '—'}
+                  </td>
+                  <td className={`py-1.5 pr-3 text-xs text-caution ${struck}`} title={m.flags.map((f) => f.message).join('\n')}>
+                    {flagSummary(m.flags) || <span className="text-within">none</span>}
+                  </td>
+                  <td className="py-1.5 pr-3 text-xs text-ink-soft">{m.enteredBy ?? '—'}</td>
+                  {workup.editable ? (
+                    <td className="py-1.5">
+                      <RowActions
+                        caseId={workup.caseId}
+                        m={m}
+                        specimenLabel={label.get(m.specimenId) ?? String(m.specimenId)}
+                        open={open}
+                        setOpen={setOpen}
+                        say={setMessage}
+                      />
+                    </td>
+                  ) : null}
+                </tr>
+                {workup.editable && open?.id === m.id ? (
+                  <tr className="border-b border-paper-line/70">
+                    <td colSpan={columns} className="py-2">
+                      {open.form === 'edit' ? (
+                        <MeasurementEditForm caseId={workup.caseId} m={m} onDone={done} onCancel={() => setOpen(null)} />
+                      ) : (
+                        <ExcludeForm caseId={workup.caseId} m={m} onDone={done} onCancel={() => setOpen(null)} />
+                      )}
+                    </td>
+                  </tr>
+                ) : null}
+              </Fragment>
+            );
+          })}
         </tbody>
       </table>
+      {rows.some((m) => m.excluded) ? (
+        <p className="text-xs text-ink-faint">Struck-through replicates are excluded: they count in no mean, SD, CV, ratio or pattern, and the report lists them with their reason.</p>
+      ) : null}
     </div>
   );
 }

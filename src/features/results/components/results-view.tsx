@@ -85,8 +85,47 @@ function bandNotes(a: AssayResult): string[] {
   return [...new Set(notes)];
 }
 
+/** The replicate values behind the mean: those that count as they are, excluded ones struck through. */
+function ReplicateValues({ a }: { a: AssayResult }) {
+  return (
+    <>
+      {a.replicates.length > 1 || a.replicates.some((r) => r.excluded) ? (
+        <>
+          {' ('}
+          {a.replicates.map((r, i) => (
+            <span key={r.measurementId}>
+              {i > 0 ? ' · ' : ''}
+              {r.excluded ? (
+                <s className="text-ink-faint" title={`Excluded: ${r.excluded.reason}`} data-testid={`excluded-replicate-${r.measurementId}`}>
+                  {fmt(r.activity, 4)}
+                </s>
+              ) : (
+                fmt(r.activity, 4)
+              )}
+            </span>
+          ))}
+          {')'}
+        </>
+      ) : null}
+    </>
+  );
+}
+
+/** Each excluded replicate of the assay with who excluded it and why. */
+function ExcludedNotes({ a }: { a: AssayResult }) {
+  const excluded = a.replicates.filter((r) => r.excluded);
+  return (
+    <>
+      {excluded.map((r) => (
+        <span key={r.measurementId} className="block text-caution">
+          Replicate {r.replicate} excluded{r.excluded!.by ? ` by ${r.excluded!.by}` : ''}: {r.excluded!.reason}
+        </span>
+      ))}
+    </>
+  );
+}
+
 function AssayRow({ a, showLabel, pctThresholds }: { a: AssayResult; showLabel: boolean; pctThresholds: Thresholds }) {
-  const values = a.replicates.map((r) => fmt(r.activity, 4)).join(' · ');
   return (
     <tr className="border-b border-paper-line/70" data-testid={`result-row-${a.assay}`}>
       <th scope="row" className="px-2 py-2 text-left align-top font-semibold text-matrix-900">
@@ -100,7 +139,8 @@ function AssayRow({ a, showLabel, pctThresholds }: { a: AssayResult; showLabel: 
         extra={
           <div className="num text-xs text-ink-soft">
             n {a.n}
-            {a.replicates.length > 1 ? ` (${values})` : ''} · SD {fmt(a.sd)} · CV {fmt(a.cvPct, 2)}%
+            <ReplicateValues a={a} /> · SD {fmt(a.sd)} · CV {fmt(a.cvPct, 2)}%
+            <ExcludedNotes a={a} />
           </div>
         }
       />
