@@ -3,12 +3,15 @@ import { Link, useParams } from 'react-router-dom';
 import { PageHeader } from '@/components/ui/layout';
 import { paths } from '@/config/paths';
 import { sessionQueries } from '@/features/auth/api/session-queries';
+import { labProfileQueries } from '@/features/lab-profile/api/lab-profile';
 import { IntervalDetail } from '@/features/reference-intervals/components/interval-detail';
 import NotFoundPage from '../not-found';
 
 export default function IntervalDetailPage() {
   const { id } = useParams();
   const { data: user } = useQuery(sessionQueries.me());
+  const isDirector = user?.role === 'director';
+  const { data: profile } = useQuery({ ...labProfileQueries.profile(), enabled: isDirector });
   const numeric = Number(id);
   if (!Number.isInteger(numeric) || numeric < 1) return <NotFoundPage />;
   return (
@@ -21,7 +24,11 @@ export default function IntervalDetailPage() {
           </Link>
         }
       />
-      <IntervalDetail key={numeric} id={numeric} canManage={user?.role === 'director'} />
+      <IntervalDetail
+        key={numeric}
+        id={numeric}
+        viewer={isDirector && user ? { userId: user.id, selfApprovalAllowed: profile?.allowSelfApproval ?? false } : null}
+      />
     </>
   );
 }

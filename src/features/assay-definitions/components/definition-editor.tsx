@@ -14,7 +14,10 @@ import { useCreateDefinitionVersion } from '../api/definition-queries';
 
 const num = { valueAsNumber: true } as const;
 
-/** Saves the edited definition as the next version; results already stored keep the version they used. */
+/**
+ * Saves the edited definition as a draft of the next version; calculations keep the version in force until a
+ * second director approves the draft. Results already stored keep the version they used.
+ */
 export function DefinitionEditor({ definition, onDone }: { definition: AssayDefinition; onDone: () => void }) {
   const { code, version, ...fields } = definition;
   const form = useZodForm(createAssayDefinitionVersionInputSchema, {
@@ -72,7 +75,7 @@ export function DefinitionEditor({ definition, onDone }: { definition: AssayDefi
       ) : null}
       <div className="flex gap-2 sm:col-span-3">
         <Button type="submit" disabled={save.isPending}>
-          {save.isPending ? 'Saving…' : `Save as version ${version + 1}`}
+          {save.isPending ? 'Saving…' : 'Save as a draft for a second director'}
         </Button>
         <Button variant="quiet" onClick={onDone}>
           Cancel

@@ -1,10 +1,12 @@
 import { useQuery } from '@tanstack/react-query';
 import { useState } from 'react';
 import { Button } from '@/components/ui/button';
+import { TextField } from '@/components/ui/field';
 import { Card, Loading, Notice } from '@/components/ui/layout';
+import { AwaitingSecondDirector, mayApprove, type ApprovalViewer } from '@/components/ui/second-director';
 import type { StoredAssayDefinition } from '@/schemas/assay';
 import type { AssayCode } from '@/schemas/common';
-import { definitionQueries } from '../api/definition-queries';
+import { definitionQueries, useApproveDefinitionVersion, useWithdrawDefinitionVersion } from '../api/definition-queries';
 import { DefinitionEditor } from './definition-editor';
 import { formatWhen } from '@/utils/format';
 
@@ -15,8 +17,9 @@ function History({ code }: { code: AssayCode }) {
     <ol className="mt-2 flex flex-col gap-1 text-xs text-ink-soft">
       {data?.map((v) => (
         <li key={v.id}>
-          <span className="font-semibold text-ink">v{v.definition.version}</span> · ε {v.definition.epsilonPerMmPerCm} ·{' '}
+          <span className="font-semibold text-ink">v{v.definition.version}</span> · {statusWords[v.status]} · ε {v.definition.epsilonPerMmPerCm} ·{' '}
           {v.definition.rateModel} · {formatWhen(v.createdAt)} · {v.createdBy ?? 'published defaults'}
+          {v.approvedBy ? ` · approved by ${v.approvedBy}${v.selfApproved ? ' (its own author)' : ''}` : ''}
           {v.changeNote ? ` — ${v.changeNote}` : ''}
         </li>
       ))}
@@ -24,7 +27,80 @@ function History({ code }: { code: AssayCode }) {
   );
 }
 
-function DefinitionCard({ stored }: { stored: StoredAssayDefinition }) {
+const statusWords: Record<StoredAssayDefinition['status'], string> = {
+  draft: 'draft, awaiting a second director',
+  approved: 'approved',
+  withdrawn: 'withdrawn draft',
+};
+
+/** Plain names of the fields a draft most often changes; any other is named by its key. */
+const changeLabels: Partial<Record<keyof StoredAssayDefinition['definition'], string>> = {
+  name: 'name',
+  wavelengthNm: 'wavelength (nm)',
+  chromophore: 'chromophore',
+  epsilonPerMmPerCm: 'ε (mM⁻¹·cm⁻¹)',
+  epsilonSource: 'source of ε',
+  direction: 'absorbance direction',
+  background: 'background',
+  backgroundNote: 'background note',
+  rateModel: 'rate model',
+  r2Threshold: 'r² flag limit',
+  minPoints: 'fewest readings',
+  linearRangeMin: 'linear range, lowest A',
+  linearRangeMax: 'linear range, highest A',
+  cvLimitPct: 'replicate CV limit (%)',
+};
+
+/** A draft of the next version: what changed, who drafted it, and approve or withdraw. */
+function PendingDraft({ draft, current, viewer }: { draft: StoredAssayDefinition; current: StoredAssayDefinition; viewer: ApprovalViewer }) {
+  const code = draft.definition.code;
+  const approve = useApproveDefinitionVersion(code);
+  const withdraw = useWithdrawDefinitionVersion(code);
+  const [reason, setReason] = useState<string | null>(null);
+  const changed = (Object.keys(draft.definition) as (keyof typeof draft.definition)[]).filter(
+    (k) => k !== 'version' && JSON.stringify(draft.definition[k]) !== JSON.stringify(current.definition[k]),
+  );
+  const error = approve.error ?? withdraw.error;
+  return (
+    <div role="group" aria-label={`Draft version ${draft.definition.version}`} className="mb-4 flex flex-col gap-2 rounded-md border border-copper-300 bg-copper-50 p-3 text-sm">
+      <p className="font-semibold text-copper-700">Draft of version {draft.definition.version}</p>
+      <AwaitingSecondDirector viewer={viewer} drafterId={draft.createdById} drafterName={draft.createdBy} draftedAt={draft.createdAt} />
+      <p className="text-ink">
+        Changes: {changed.length > 0 ? changed.map((k) => `${changeLabels[k] ?? k} ${String(current.definition[k])} → ${String(draft.definition[k])}`).join('; ') : 'none'}
+        {draft.changeNote ? `. Why: ${draft.changeNote}` : ''}
+      </p>
+      {error ? <Notice tone="error">{error.message}</Notice> : null}
+      {reason === null ? (
+        <div className="flex gap-2">
+          {mayApprove(viewer, draft.createdById) ? (
+            <Button disabled={approve.isPending} onClick={() => approve.mutate(draft.definition.version)}>
+              {approve.isPending ? 'Approving…' : `Approve version ${draft.definition.version}`}
+            </Button>
+          ) : null}
+          <Button variant="secondary" onClick={() => setReason('')}>
+            Withdraw draft…
+          </Button>
+        </div>
+      ) : (
+        <form
+          className="flex flex-col gap-2"
+          onSubmit={(e) => {
+            e.preventDefault();
+            withdraw.mutate({ version: draft.definition.version, input: { reason } }, { onSuccess: () => setReason(null) });
+          }}
+        >
+          <TextField label="Why is it withdrawn?" value={reason} onChange={(e) => setReason(e.target.value)} />
+          <div className="flex gap-2">
+            <Button type="submit" variant="danger" disabled={withdraw.isPending}>Withdraw draft</Button>
+            <Button variant="quiet" onClick={() => setReason(null)}>Cancel</Button>
+          </div>
+        </form>
+      )}
+    </div>
+  );
+}
+
+function DefinitionCard({ stored, draft, viewer }: { stored: StoredAssayDefinition; draft: StoredAssayDefinition | null; viewer: ApprovalViewer | null }) {
   const d = stored.definition;
   const [editing, setEditing] = useState(false);
   const [showHistory, setShowHistory] = useState(false);
@@ -37,9 +113,11 @@ function DefinitionCard({ stored }: { stored: StoredAssayDefinition }) {
             <Button variant="quiet" onClick={() => setShowHistory((s) => !s)}>
               {showHistory ? 'Hide versions' : 'Versions'}
             </Button>
-            <Button variant="secondary" onClick={() => setEditing(true)}>
-              New version
-            </Button>
+            {viewer && !draft ? (
+              <Button variant="secondary" onClick={() => setEditing(true)}>
+                New version
+              </Button>
+            ) : null}
           </div>
         ) : null
       }
@@ -48,6 +126,8 @@ function DefinitionCard({ stored }: { stored: StoredAssayDefinition }) {
         <DefinitionEditor definition={d} onDone={() => setEditing(false)} />
       ) : (
         <>
+          {draft && viewer ? <PendingDraft draft={draft} current={stored} viewer={viewer} /> : null}
+          {draft && !viewer ? <Notice>Version {draft.definition.version} is drafted and awaits a second director; this one stays in use until then.</Notice> : null}
           <dl className="num grid grid-cols-2 gap-x-6 gap-y-1 text-sm sm:grid-cols-4">
             <div><dt className="text-ink-faint">Version</dt><dd>v{d.version}</dd></div>
             <div><dt className="text-ink-faint">Read at</dt><dd>{d.wavelengthNm} nm ({d.chromophore})</dd></div>
@@ -69,14 +149,20 @@ function DefinitionCard({ stored }: { stored: StoredAssayDefinition }) {
   );
 }
 
-export function DefinitionsList() {
-  const { data, isPending, error } = useQuery(definitionQueries.current());
+/** Every assay's definition in force; `viewer` (a director) drafts, approves and withdraws versions. */
+export function DefinitionsList({ viewer }: { viewer: ApprovalViewer | null }) {
+  const { data, isPending, error } = useQuery(definitionQueries.withDrafts());
   if (isPending) return <Loading />;
   if (error) return <Notice tone="error">{error.message}</Notice>;
   return (
     <div className="flex flex-col gap-4">
-      {data.map((s) => (
-        <DefinitionCard key={s.id} stored={s} />
+      {data.items.map((s) => (
+        <DefinitionCard
+          key={s.id}
+          stored={s}
+          draft={data.drafts.find((x) => x.definition.code === s.definition.code) ?? null}
+          viewer={viewer}
+        />
       ))}
     </div>
   );

@@ -1,6 +1,6 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '@/lib/api-client';
-import { storedIntervalSchema, type StoredInterval } from '@/schemas/reference-interval-api';
+import { storedIntervalSchema, type EditDraftBody, type StoredInterval } from '@/schemas/reference-interval-api';
 import { intervalKeys, intervalQueries } from './interval-queries';
 
 function useAfterStatusChange() {
@@ -17,6 +17,16 @@ export function useApproveInterval() {
   return useMutation({
     mutationFn: ({ id, revision }: { id: number; revision: number }) =>
       api.post(`/api/reference-intervals/${id}/approve`, { revision }, storedIntervalSchema),
+    onSuccess: after,
+  });
+}
+
+/** The drafter's changes to a draft before approval. */
+export function useEditDraft() {
+  const after = useAfterStatusChange();
+  return useMutation({
+    mutationFn: ({ id, body }: { id: number; body: EditDraftBody }) =>
+      api.patch(`/api/reference-intervals/${id}`, body, storedIntervalSchema),
     onSuccess: after,
   });
 }

@@ -3,12 +3,14 @@ import { useState, type ReactNode } from 'react';
 import { Button } from '@/components/ui/button';
 import { TextField } from '@/components/ui/field';
 import { Card, Loading, Notice } from '@/components/ui/layout';
+import { AwaitingSecondDirector, mayApprove, type ApprovalViewer } from '@/components/ui/second-director';
 import { ApiError } from '@/lib/api-client';
 import { specimenTypeLabels } from '@/schemas/common';
 import type { StoredInterval } from '@/schemas/reference-interval-api';
 import { useApproveInterval, useRetireInterval } from '../api/change-interval-status';
 import { controlFileHref, intervalQueries } from '../api/interval-queries';
 import { ageText, measureText, methodNames, num, outlierNames, periodText } from './interval-text';
+import { EditDraftForm } from './edit-draft-form';
 import { StatusTag } from './status-tag';
 import { VersionHistory } from './version-history';
 import { formatWhen } from '@/utils/format';
@@ -43,7 +45,9 @@ function ApprovePanel({ interval, onClose }: { interval: StoredInterval; onClose
         ) : (
           <li>No earlier approved version is open for this key.</li>
         )}
-        <li>Your name and the time are recorded with the approval.</li>
+        <li>
+          Drafted by {interval.createdByName ?? 'a director'}; your name and the time are recorded with the approval.
+        </li>
       </ul>
       {approve.error ? (
         <div className="mt-3">
@@ -99,13 +103,18 @@ function RetirePanel({ interval, onClose }: { interval: StoredInterval; onClose:
   );
 }
 
-/** One version with its source, derivation and history; directors approve or retire it here. */
-export function IntervalDetail({ id, canManage }: { id: number; canManage: boolean }) {
+/**
+ * One version with its source, derivation and history. Directors (`viewer`) approve or retire it here; a draft is
+ * approved by a director other than its drafter, who may still edit it.
+ */
+export function IntervalDetail({ id, viewer }: { id: number; viewer: ApprovalViewer | null }) {
   const { data: i, isPending, error } = useQuery(intervalQueries.detail(id));
-  const [panel, setPanel] = useState<'approve' | 'retire' | null>(null);
+  const [panel, setPanel] = useState<'approve' | 'retire' | 'edit' | null>(null);
   if (isPending) return <Loading what="Loading the interval" />;
   if (error) return <Notice tone="error">{error.message}</Notice>;
   const d = i.derivation;
+  const canManage = viewer !== null;
+  const isDrafter = viewer !== null && i.createdBy !== null && i.createdBy === viewer.userId;
   return (
     <div className="flex flex-col gap-6">
       <Card
@@ -139,16 +148,30 @@ export function IntervalDetail({ id, canManage }: { id: number; canManage: boole
             </Item>
           ) : null}
         </dl>
+        {viewer && i.status === 'draft' ? (
+          <div className="mt-4">
+            <AwaitingSecondDirector viewer={viewer} drafterId={i.createdBy} drafterName={i.createdByName} draftedAt={i.createdAt} />
+          </div>
+        ) : null}
         {canManage && i.status !== 'retired' ? (
           panel === null ? (
             <div className="mt-5 flex gap-2 border-t border-paper-line pt-4">
-              {i.status === 'draft' ? <Button onClick={() => setPanel('approve')}>Approve…</Button> : null}
+              {i.status === 'draft' && mayApprove(viewer, i.createdBy) ? (
+                <Button onClick={() => setPanel('approve')}>{isDrafter ? 'Approve my own draft…' : 'Approve as second director…'}</Button>
+              ) : null}
+              {i.status === 'draft' && (isDrafter || i.createdBy === null) ? (
+                <Button variant="secondary" onClick={() => setPanel('edit')}>
+                  Edit draft…
+                </Button>
+              ) : null}
               <Button variant="secondary" onClick={() => setPanel('retire')}>
                 {i.status === 'draft' ? 'Discard draft…' : 'Retire…'}
               </Button>
             </div>
           ) : panel === 'approve' ? (
             <ApprovePanel interval={i} onClose={() => setPanel(null)} />
+          ) : panel === 'edit' ? (
+            <EditDraftForm interval={i} onClose={() => setPanel(null)} />
           ) : (
             <RetirePanel interval={i} onClose={() => setPanel(null)} />
           )

@@ -11,8 +11,8 @@ import { newIntervalFormSchema } from '@/schemas/reference-interval-api';
 import { useCreateInterval } from '../api/create-interval';
 import { assayNames, measureNames, methodNames, todayIso } from './interval-text';
 
-const optionalNumber = (v: unknown) => (v === '' || v === null || v === undefined ? null : Number(v));
-const optionalText = (v: unknown) => (v === '' || v === null || v === undefined ? null : String(v));
+export const optionalNumber = (v: unknown) => (v === '' || v === null || v === undefined ? null : Number(v));
+export const optionalText = (v: unknown) => (v === '' || v === null || v === undefined ? null : String(v));
 
 /** A draft typed in by hand, e.g. an interval adopted from a publication after local verification. */
 export function NewIntervalForm() {
@@ -96,7 +96,9 @@ export function NewIntervalForm() {
         <Button type="submit" disabled={create.isPending}>
           {create.isPending ? 'Saving…' : 'Save as draft'}
         </Button>
-        <p className="mt-2 text-xs text-ink-faint">A draft is used for nothing until a director approves it.</p>
+        <p className="mt-2 text-xs text-ink-faint">
+          A draft is used for nothing until a second director approves it. Until then you can still edit it.
+        </p>
       </div>
     </form>
   );

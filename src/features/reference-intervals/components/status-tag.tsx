@@ -11,6 +11,7 @@ const tones = {
 export function StatusTag({ interval }: { interval: Pick<StoredInterval, 'status' | 'effectiveFrom' | 'effectiveTo'> }) {
   const today = todayIso();
   let qualifier = '';
+  if (interval.status === 'draft') qualifier = ' · awaiting a second director';
   if (interval.status === 'approved') {
     if (interval.effectiveFrom > today) qualifier = ` · starts ${interval.effectiveFrom}`;
     else if (interval.effectiveTo !== null && interval.effectiveTo <= today) qualifier = ' · superseded';
