@@ -169,6 +169,9 @@ describe('reopening a signed case and correcting its numbers', () => {
     expect(move).toMatchObject({ note: REASON, before: { state: 'final' } });
     const amendEvent = items.find((e) => e.action === 'amend');
     expect(amendEvent).toMatchObject({ entity: 'report', note: REASON, before: { reportVersion: 1, pdfSha256: v1.pdfSha256 } });
+    const history = (await tech.get(`/api/cases/${c.id}/history`)).body.items as { summary: string; note: string | null }[];
+    expect(history).toContainEqual(expect.objectContaining({ summary: 'Signed version 1 reopened for amendment', note: REASON }));
+    expect(history).toContainEqual(expect.objectContaining({ summary: 'Final → In assay', note: REASON }));
   });
 
   it('while reopened and not yet resubmitted, then a second reopening, a signature, a correction and a cancellation are refused with 409', async () => {

@@ -105,6 +105,8 @@ function summarise(e: repo.StoredAuditEvent): string {
       return 'Patient registered';
     case 'patient:update':
       return 'Patient details corrected';
+    case 'report:amend':
+      return `Signed version ${String(b.reportVersion ?? '')} reopened for amendment`.replace('  ', ' ');
     default: {
       const what = e.entity.replace(/[-_]/g, ' ');
       return `${what.charAt(0).toUpperCase()}${what.slice(1)}: ${e.action.replace(/[-_]/g, ' ')}`;
