@@ -2,24 +2,15 @@ import { useState } from 'react';
 import { Button } from '@/components/ui/button';
 import { TextField } from '@/components/ui/field';
 import { ApiError } from '@/lib/api-client';
-import { excludeMeasurementInputSchema, type Measurement } from '@/schemas/measurement';
+import { excludeMeasurementInputSchema } from '@/schemas/measurement';
 import { useExcludeMeasurement } from '../api/exclude-measurement';
+import type { RowFormProps } from './measurement-edit-form';
 
 /**
  * Leaving one replicate out of the means, ratios and pattern, with the reason (it is printed in the report's
  * methods section). The replicate stays on the bench and on the results, struck through.
  */
-export function ExcludeForm({
-  caseId,
-  m,
-  onDone,
-  onCancel,
-}: {
-  caseId: number;
-  m: Measurement;
-  onDone: (text: string) => void;
-  onCancel: () => void;
-}) {
+export function ExcludeForm({ caseId, m, onDone, onCancel }: RowFormProps) {
   const [reason, setReason] = useState('');
   const [error, setError] = useState<string | undefined>();
   const exclude = useExcludeMeasurement(caseId);

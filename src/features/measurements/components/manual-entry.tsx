@@ -8,6 +8,7 @@ import { assayCodes, type AssayCode } from '@/schemas/common';
 import { createMeasurementInputSchema, parsePastedReadings, type CreateMeasurementInput, type WorkupSpecimen } from '@/schemas/measurement';
 import { useCreateMeasurement, usePreviewMeasurement, type MeasurementPreview } from '../api/save-measurement';
 import { fmt } from '../utils/format';
+import { ConditionFields, RateFields, WindowFields } from './entry-fields';
 import { ResultLine } from './result-line';
 
 type Mode = 'rates' | 'traces';
@@ -76,7 +77,6 @@ export function ManualEntry({ caseId, specimens, mode }: { caseId: number; speci
   };
 
   const label = (id: number) => ready.find((s) => s.id === id)?.label ?? String(id);
-  const windowError = errors['window.fromS'] ?? errors['window.toS'] ?? errors.window;
 
   return (
     <div className="flex flex-col gap-4">
@@ -90,33 +90,22 @@ export function ManualEntry({ caseId, specimens, mode }: { caseId: number; speci
         />
         <SelectField label="Assay" value={assay} onChange={(e) => setAssay(e.target.value as AssayCode)} options={assayCodes.map((a) => ({ value: a, label: a }))} />
         <TextField label="Replicate" inputMode="numeric" value={replicate} onChange={(e) => setReplicate(e.target.value)} error={errors.replicate} />
-        <TextField label="Pathlength (cm)" inputMode="decimal" value={pathlength} onChange={(e) => setPathlength(e.target.value)} error={errors.pathlengthCm} />
-        <TextField label="Reaction volume (µL)" inputMode="decimal" value={reaction} onChange={(e) => setReaction(e.target.value)} error={errors.reactionVolumeUl} />
-        <TextField label="Sample volume (µL)" inputMode="decimal" value={sample} onChange={(e) => setSample(e.target.value)} error={errors.sampleVolumeUl} />
+        <ConditionFields pathlength={[pathlength, setPathlength]} reaction={[reaction, setReaction]} sample={[sample, setSample]} errors={errors} />
       </div>
       {mode === 'rates' ? (
-        <div className="grid gap-3 sm:grid-cols-2">
-          <TextField label="Total rate (ΔA/min)" inputMode="decimal" value={total} onChange={(e) => setTotal(e.target.value)} error={errors.totalRatePerMin} hint="Signed: a falling absorbance is negative." />
-          <TextField
-            label="Background rate (ΔA/min)"
-            inputMode="decimal"
-            value={background}
-            onChange={(e) => setBackground(e.target.value)}
-            error={errors.backgroundRatePerMin}
-            hint="With the inhibitor, or before the starting substrate; empty when the assay subtracts nothing."
-          />
-        </div>
+        <RateFields total={[total, setTotal]} background={[background, setBackground]} errors={errors} />
       ) : (
         <>
           <div className="grid gap-3 md:grid-cols-2">
             <TextArea label="Total readings (time in s, absorbance)" value={total} onChange={(e) => setTotal(e.target.value)} error={errors.total} placeholder={'0\t0.912\n15\t0.905\n30\t0.897'} />
             <TextArea label="Background readings (optional)" value={background} onChange={(e) => setBackground(e.target.value)} error={errors.background} placeholder="Same layout" />
           </div>
-          <div className="grid gap-3 sm:grid-cols-[10rem_10rem_1fr]">
-            <TextField label="Window from (s)" inputMode="decimal" value={fromS} onChange={(e) => setFromS(e.target.value)} error={windowError} />
-            <TextField label="Window to (s)" inputMode="decimal" value={toS} onChange={(e) => setToS(e.target.value)} />
-            <p className="self-end pb-2 text-xs text-ink-faint">Leave both empty for the automatic window: the longest early stretch whose r² reaches the definition&apos;s threshold.</p>
-          </div>
+          <WindowFields
+            fromS={[fromS, setFromS]}
+            toS={[toS, setToS]}
+            errors={errors}
+            note="Leave both empty for the automatic window: the longest early stretch whose r² reaches the definition's threshold."
+          />
         </>
       )}
       {formError ? <Notice tone="error">{formError}</Notice> : null}

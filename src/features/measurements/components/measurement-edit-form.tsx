@@ -6,26 +6,20 @@ import { ApiError } from '@/lib/api-client';
 import { updateMeasurementInputSchema, type Measurement, type UpdateMeasurementInput } from '@/schemas/measurement';
 import { useUpdateMeasurement } from '../api/save-measurement';
 import { fmt } from '../utils/format';
+import { ConditionFields, RateFields, WindowFields } from './entry-fields';
 
 const numberOrNaN = (s: string) => (s.trim() === '' ? Number.NaN : Number(s));
 const text = (v: number | null | undefined) => (v === null || v === undefined ? '' : String(v));
+
+/** What a form opened under one row of the bench table receives. */
+export type RowFormProps = { caseId: number; m: Measurement; onDone: (text: string) => void; onCancel: () => void };
 
 /**
  * Changing a saved measurement: its replicate number, the cuvette conditions and typed rates, or the fitted
  * window. The server computes it again with the current assay definition and keeps the old values in the
  * audit trail. Readings stay as saved (paste them as a new replicate to replace them).
  */
-export function MeasurementEditForm({
-  caseId,
-  m,
-  onDone,
-  onCancel,
-}: {
-  caseId: number;
-  m: Measurement;
-  onDone: (text: string) => void;
-  onCancel: () => void;
-}) {
+export function MeasurementEditForm({ caseId, m, onDone, onCancel }: RowFormProps) {
   const inputs = m.inputs;
   const [replicate, setReplicate] = useState(String(m.replicate));
   const [pathlength, setPathlength] = useState(text(inputs.pathlengthCm));
@@ -66,7 +60,6 @@ export function MeasurementEditForm({
     return parsed.success ? parsed.data : null;
   }
 
-  const windowError = errors['window.fromS'] ?? errors['window.toS'] ?? errors.window;
   return (
     <form
       className="flex flex-col gap-3 rounded-md border border-paper-line bg-paper p-3"
@@ -95,31 +88,18 @@ export function MeasurementEditForm({
       <div className="grid gap-3 sm:grid-cols-4">
         <TextField label="Replicate" inputMode="numeric" value={replicate} onChange={(e) => setReplicate(e.target.value)} error={errors.replicate} />
         {inputs.mode !== 'plate' ? (
-          <>
-            <TextField label="Pathlength (cm)" inputMode="decimal" value={pathlength} onChange={(e) => setPathlength(e.target.value)} error={errors.pathlengthCm} />
-            <TextField label="Reaction volume (µL)" inputMode="decimal" value={reaction} onChange={(e) => setReaction(e.target.value)} error={errors.reactionVolumeUl} />
-            <TextField label="Sample volume (µL)" inputMode="decimal" value={sample} onChange={(e) => setSample(e.target.value)} error={errors.sampleVolumeUl} />
-          </>
+          <ConditionFields pathlength={[pathlength, setPathlength]} reaction={[reaction, setReaction]} sample={[sample, setSample]} errors={errors} />
         ) : null}
       </div>
       {inputs.mode === 'rates' ? (
-        <div className="grid gap-3 sm:grid-cols-2">
-          <TextField label="Total rate (ΔA/min)" inputMode="decimal" value={total} onChange={(e) => setTotal(e.target.value)} error={errors.totalRatePerMin} />
-          <TextField
-            label="Background rate (ΔA/min)"
-            inputMode="decimal"
-            value={background}
-            onChange={(e) => setBackground(e.target.value)}
-            error={errors.backgroundRatePerMin}
-            hint="Empty when the assay subtracts nothing."
-          />
-        </div>
+        <RateFields total={[total, setTotal]} background={[background, setBackground]} errors={errors} />
       ) : (
-        <div className="grid gap-3 sm:grid-cols-[10rem_10rem_1fr]">
-          <TextField label="Window from (s)" inputMode="decimal" value={fromS} onChange={(e) => setFromS(e.target.value)} error={windowError} />
-          <TextField label="Window to (s)" inputMode="decimal" value={toS} onChange={(e) => setToS(e.target.value)} />
-          <p className="self-end pb-2 text-xs text-ink-faint">Leave both empty for the automatic window. The readings stay as saved.</p>
-        </div>
+        <WindowFields
+          fromS={[fromS, setFromS]}
+          toS={[toS, setToS]}
+          errors={errors}
+          note="Leave both empty for the automatic window. The readings stay as saved."
+        />
       )}
       {formError ? <Notice tone="error">{formError}</Notice> : null}
       <div className="flex gap-2">
