@@ -67,7 +67,7 @@ export function SaveDraftForm({
         </Button>
       </div>
       <p className="text-xs text-ink-faint">
-        The draft records the control file, the method and the outlier rule. It is not used until a director approves it.
+        The draft records the control file, the method and the outlier rule. It is not used until a second director approves it.
       </p>
     </form>
   );
