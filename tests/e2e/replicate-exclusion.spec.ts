@@ -102,6 +102,24 @@ describe('excluding a replicate in Chromium', () => {
     await expect(page.getByTestId('pattern-summary').textContent()).resolves.toMatch(/Isolated low complex I activity/);
     await page.waitForLoadState('networkidle');
     await screenshot(page, 'exclusion-03-results');
+
+    // Back on the bench: complex I replicate 2 renumbered through the edit form, then the wild one counted again.
+    await page.goto(`${server.origin}/cases/${caseId}/assays`);
+    await row.waitFor();
+    const second = page.locator('[data-testid^="measurement-"]').filter({ hasText: /^ACI2/ });
+    await second.getByRole('button', { name: 'Edit' }).click();
+    const edit = page.getByRole('form', { name: 'Change CI replicate 2' });
+    await edit.getByLabel('Replicate').fill('3');
+    await edit.getByRole('button', { name: 'Save changes' }).click();
+    await expect(edit.getByRole('alert').first().textContent()).resolves.toMatch(/Replicate 3 of CI is already saved/);
+    await edit.getByLabel('Replicate').fill('5');
+    await screenshot(page, 'exclusion-04-edit-form');
+    await edit.getByRole('button', { name: 'Save changes' }).click();
+    await page.getByText(/CI replicate 5 saved: 6\.60? nmol\/min\/mg protein\./).waitFor();
+    await row.getByRole('button', { name: 'Include again' }).click();
+    await page.getByText('CI replicate 3 counts again.').waitFor();
+    await expect(row.getAttribute('data-excluded')).resolves.toBeNull();
+    await screenshot(page, 'exclusion-05-included-again');
     await page.close();
   });
 });
