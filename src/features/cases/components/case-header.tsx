@@ -52,6 +52,9 @@ export function CaseHeader({ detail, timeZone, onReload }: { detail: CaseDetail;
             {detail.priority === 'urgent' ? (
               <span className="rounded border border-copper-500 px-1.5 text-xs font-semibold uppercase tracking-wide text-copper-600">Urgent</span>
             ) : null}
+            {detail.amendReason ? (
+              <span className="rounded border border-copper-300 bg-copper-50 px-1.5 text-xs font-medium text-copper-700">Reopened after signing</span>
+            ) : null}
           </div>
         </div>
         <div className="flex flex-wrap gap-2">
@@ -63,9 +66,12 @@ export function CaseHeader({ detail, timeZone, onReload }: { detail: CaseDetail;
               <Button variant="secondary" onClick={() => setPanel(panel === 'edit' ? 'none' : 'edit')} aria-expanded={panel === 'edit'}>
                 Change details
               </Button>
-              <Button variant="quiet" className="text-below hover:bg-below-bg" onClick={() => setPanel(panel === 'cancel' ? 'none' : 'cancel')} aria-expanded={panel === 'cancel'}>
-                Cancel case…
-              </Button>
+              {/* A reopened case has a signed report: it is corrected, never cancelled. */}
+              {detail.amendReason === null ? (
+                <Button variant="quiet" className="text-below hover:bg-below-bg" onClick={() => setPanel(panel === 'cancel' ? 'none' : 'cancel')} aria-expanded={panel === 'cancel'}>
+                  Cancel case…
+                </Button>
+              ) : null}
             </>
           ) : null}
         </div>
