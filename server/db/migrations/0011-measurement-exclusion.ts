@@ -22,9 +22,13 @@ export async function up({ context: qi }: { context: QueryInterface }): Promise<
   );
 }
 
+/**
+ * Plain DROP COLUMN (SQLite 3.35 and later, and PostgreSQL): Sequelize's SQLite removeColumn rebuilds the table
+ * and reads the three-column unique key (specimen, assay, replicate) as a unique replicate column, so it fails
+ * on any two measurements sharing a replicate number.
+ */
 export async function down({ context: qi }: { context: QueryInterface }): Promise<void> {
-  await qi.removeColumn('measurements', 'submittedAt');
-  await qi.removeColumn('measurements', 'excludedAt');
-  await qi.removeColumn('measurements', 'excludedById');
-  await qi.removeColumn('measurements', 'excludedReason');
+  for (const column of ['submittedAt', 'excludedAt', 'excludedById', 'excludedReason']) {
+    await qi.sequelize.query(`ALTER TABLE measurements DROP COLUMN "${column}"`);
+  }
 }
