@@ -154,6 +154,14 @@ describe('excluding a replicate', () => {
     expectSummary(assayOf(restored, 'CI'), CI_REPS);
     expect(assayOf(restored, 'CI').ratioCs!.value!).toBeCloseTo(mean(CI_REPS) / mean(CS_REPS.slice(0, 2)), 9);
     expect((await auditOf(ci3.id)).some((e) => e.action === 'include' && /Air bubble/.test(e.note ?? ''))).toBe(true);
+    // The case's history says it in words, with the reason.
+    const history = (await tech.get(`/api/cases/${w.caseId}/history`)).body.items as { summary: string; note: string | null }[];
+    expect(history).toEqual(
+      expect.arrayContaining([
+        expect.objectContaining({ summary: 'CI replicate 3 excluded from the results', note: 'Air bubble in the cuvette: trace jumped at 40 s' }),
+        expect.objectContaining({ summary: 'CI replicate 3 counted again' }),
+      ]),
+    );
   });
 
   it('when the reason is missing or blank, then 400 names reason and nothing changes', async () => {

@@ -105,6 +105,10 @@ function summarise(e: repo.StoredAuditEvent): string {
       return 'Patient registered';
     case 'patient:update':
       return 'Patient details corrected';
+    case 'measurement:exclude':
+      return `${String(a.assay ?? '')} replicate ${String(a.replicate ?? '')} excluded from the results`;
+    case 'measurement:include':
+      return `${String(a.assay ?? '')} replicate ${String(a.replicate ?? '')} counted again`;
     case 'report:amend':
       return `Signed version ${String(b.reportVersion ?? '')} reopened for amendment`.replace('  ', ' ');
     default: {
