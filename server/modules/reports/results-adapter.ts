@@ -1,6 +1,7 @@
 import { criteriaRuleFor, defaultDiagnosticCriteria, type DiagnosticCriteria } from '@/schemas/assay';
 import { specimenClassOf, type Measure } from '@/schemas/common';
 import { bandThresholds } from '@/schemas/result-format';
+import type { StoredInterval } from '@/schemas/reference-interval-api';
 import type { ReportExcludedReplicate, ReportResult } from '@/schemas/report-document';
 import type { AssayResult, CaseResults, ResultComparison, SpecimenResult } from '@/schemas/results';
 import { findDefinitionById } from '../assay-definitions/assay-definitions.repository';
@@ -141,25 +142,35 @@ function patternSummaryOf(s: SpecimenResult): string | null {
  * The reference intervals a specimen's comparisons used that were approved by the director who drafted them
  * (a single-director laboratory that allows it), named as the methods section prints them.
  */
-async function selfApprovedIntervals(s: SpecimenResult): Promise<string[]> {
+async function selfApprovedIntervals(s: SpecimenResult, stored: StoredVersionReaders): Promise<string[]> {
   const ids = new Set(s.assays.flatMap((a) => [a.activity, a.ratioCs, a.ratioCii].flatMap((c) => (c?.interval ? [c.interval.id] : []))));
   const names: string[] = [];
   for (const id of ids) {
-    const i = await findIntervalById(id);
+    const i = await stored.interval(id);
     if (i && i.approvedBy !== null && i.approvedBy === i.createdBy) names.push(`reference interval ${i.label}`);
   }
   return names;
 }
 
+/** Where the stored definition and interval versions are read (the database; a test without one passes its own). */
+export type StoredVersionReaders = {
+  definition: typeof findDefinitionById;
+  interval: (id: number) => Promise<Pick<StoredInterval, 'label' | 'createdBy' | 'approvedBy'> | null>;
+};
+const fromDatabase: StoredVersionReaders = { definition: findDefinitionById, interval: (id) => findIntervalById(id) };
+
 /** Every specimen's results in the report's shape, keyed by specimen id. */
-export async function toReportableResults(caseResults: CaseResults): Promise<Map<number, ReportableResults>> {
+export async function toReportableResults(
+  caseResults: CaseResults,
+  stored: StoredVersionReaders = fromDatabase,
+): Promise<Map<number, ReportableResults>> {
   const descriptions = new Map<number, string>();
   const selfApprovedDefinitions = new Set<number>();
   for (const d of caseResults.definitions) {
     if (descriptions.has(d.id)) continue;
-    const stored = await findDefinitionById(d.id);
-    descriptions.set(d.id, stored ? describeDefinition(stored.definition) : `${d.assay} assay definition version ${d.version}.`);
-    if (stored?.selfApproved) selfApprovedDefinitions.add(d.id);
+    const found = await stored.definition(d.id);
+    descriptions.set(d.id, found ? describeDefinition(found.definition) : `${d.assay} assay definition version ${d.version}.`);
+    if (found?.selfApproved) selfApprovedDefinitions.add(d.id);
   }
   const out = new Map<number, ReportableResults>();
   for (const s of caseResults.specimens) {
@@ -182,7 +193,7 @@ export async function toReportableResults(caseResults: CaseResults): Promise<Map
         ...caseResults.definitions
           .filter((d) => used.has(d.id) && selfApprovedDefinitions.has(d.id))
           .map((d) => `${d.assay} assay definition version ${d.version}`),
-        ...(s.accepted ? await selfApprovedIntervals(s) : []),
+        ...(s.accepted ? await selfApprovedIntervals(s, stored) : []),
       ],
       excludedReplicates: s.accepted ? excludedReplicatesOf(s) : [],
     });

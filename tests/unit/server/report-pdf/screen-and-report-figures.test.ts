@@ -102,7 +102,8 @@ describe('the results screen and the report print the same figures', () => {
         .slice(1)
         .map((chunk) => [chunk.slice(0, chunk.indexOf('"')), textOf(chunk.slice(chunk.indexOf('>') + 1, chunk.indexOf('</tr>')))]),
     );
-    const reportable = (await toReportableResults(results)).get(7)!;
+    // No database here: no stored definition or interval versions to read (so no approval line either).
+    const reportable = (await toReportableResults(results, { definition: async () => null, interval: async () => null })).get(7)!;
     const doc = buildReportDocument({
       specimens: [{ ...muscleSection(), results: reportable.results, graphic: { bars: [], criterionBands: reportable.criteria } }],
     });
