@@ -23,9 +23,13 @@ export async function up({ context: qi }: { context: QueryInterface }): Promise<
   await qi.addColumn('lab_profiles', 'allowSelfApproval', { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false });
 }
 
+/**
+ * Plain DROP COLUMN (SQLite 3.35 and later, and PostgreSQL): Sequelize's SQLite removeColumn rebuilds the table
+ * and reads the two-column unique key (code, version) as a unique code, so it fails on a second version.
+ */
 export async function down({ context: qi }: { context: QueryInterface }): Promise<void> {
-  await qi.removeColumn('lab_profiles', 'allowSelfApproval');
-  await qi.removeColumn('assay_definitions', 'approvedAt');
-  await qi.removeColumn('assay_definitions', 'approvedById');
-  await qi.removeColumn('assay_definitions', 'status');
+  await qi.sequelize.query('ALTER TABLE lab_profiles DROP COLUMN "allowSelfApproval"');
+  for (const column of ['approvedAt', 'approvedById', 'status']) {
+    await qi.sequelize.query(`ALTER TABLE assay_definitions DROP COLUMN "${column}"`);
+  }
 }
