@@ -59,6 +59,7 @@ export function createAppRouter(queryClient: QueryClient) {
         page('caseHistory', () => import('./routes/cases/case-history')),
         page('caseAssays', () => import('./routes/assay-work/case-assays')),
         page('caseResults', () => import('./routes/assay-work/case-results')),
+        page('patientCorrect', () => import('./routes/patients/correct-patient')),
         page('plateMaps', () => import('./routes/assay-work/plate-layouts')),
         page('calculator', () => import('./routes/rate-check')),
         page('assayDefinitions', () => import('./routes/assay-definitions')),

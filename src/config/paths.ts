@@ -12,6 +12,11 @@ export const paths = {
   caseHistory: { path: '/cases/:id/history', href: (id: number) => `/cases/${id}/history`, roles: LAB },
   caseAssays: { path: '/cases/:id/assays', href: (id: number) => `/cases/${id}/assays`, roles: LAB },
   caseResults: { path: '/cases/:id/results', href: (id: number) => `/cases/${id}/results`, roles: LAB },
+  patientCorrect: {
+    path: '/patients/:id/correct',
+    href: (id: number, fromCase?: number) => `/patients/${id}/correct${fromCase ? `?case=${fromCase}` : ''}`,
+    roles: LAB,
+  },
   plateMaps: { path: '/plate-maps', href: () => '/plate-maps', roles: LAB },
   calculator: { path: '/rate-check', href: () => '/rate-check', roles: LAB },
   review: { path: '/review', href: () => '/review', roles: ['director'] as Role[] },

@@ -16,11 +16,11 @@ export function AppShell() {
   const items = navigation.filter((n) => canOpen(n.name, user.role));
 
   return (
-    <div className="flex min-h-screen">
-      <div className="w-rail shrink-0 bg-matrix-900">
-      <nav aria-label="Main" className="sticky top-0 flex h-screen flex-col px-4 py-5 text-matrix-100">
-        <Wordmark light className="mb-8 px-2" />
-        <ul className="flex flex-col gap-0.5">
+    <div className="flex min-h-screen flex-col md:flex-row">
+      <div className="w-full shrink-0 bg-matrix-900 md:w-rail">
+      <nav aria-label="Main" className="flex flex-col px-4 py-3 text-matrix-100 md:sticky md:top-0 md:h-screen md:py-5">
+        <Wordmark light className="mb-2 px-2 md:mb-8" />
+        <ul className="flex flex-wrap gap-0.5 md:flex-col">
           {items.map((n) => (
             <li key={n.name}>
               <NavLink
@@ -35,7 +35,7 @@ export function AppShell() {
             </li>
           ))}
         </ul>
-        <div className="mt-auto border-t border-matrix-700 px-2 pt-4 text-sm">
+        <div className="mt-2 border-t border-matrix-700 px-2 pt-2 text-sm md:mt-auto md:pt-4">
           <p className="font-medium text-white" data-testid="signed-in-name">
             {user.name}
           </p>
@@ -53,7 +53,7 @@ export function AppShell() {
         </div>
       </nav>
       </div>
-      <main className="min-w-0 flex-1 px-8 py-7">
+      <main className="min-w-0 flex-1 px-4 py-5 md:px-8 md:py-7">
         <Outlet />
       </main>
     </div>

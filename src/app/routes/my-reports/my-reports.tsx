@@ -1,4 +1,5 @@
 import { PageHeader, ResultsCaution } from '@/components/ui/layout';
+import { InProgressCases } from '@/features/reports/components/in-progress-cases';
 import { MyReports } from '@/features/reports/components/my-reports';
 
 export default function MyReportsPage() {
@@ -6,10 +7,12 @@ export default function MyReportsPage() {
     <>
       <PageHeader
         title="Reports for my patients"
-        lead="Signed reports of the cases you referred. When a report is corrected, the new version is shown first and the earlier one stays available, marked as superseded."
+        lead="The cases you referred: those the laboratory is still working on, then the signed reports. When a report is corrected, the new version is shown first and the earlier one stays available, marked as superseded."
       />
       <div className="flex flex-col gap-5">
         <ResultsCaution />
+        <InProgressCases />
+        <h2 className="text-lg font-semibold text-matrix-900">Signed reports</h2>
         <MyReports />
       </div>
     </>

@@ -85,6 +85,10 @@ export function CaseHeader({ detail, timeZone, onReload }: { detail: CaseDetail;
             </span>
             <br />
             <span className="font-mono text-xs">{p.labPatientId}</span>
+            <br />
+            <Link to={paths.patientCorrect.href(p.id, detail.id)} className="text-xs font-medium text-matrix-700 underline">
+              Correct patient details
+            </Link>
           </Fact>
           <Fact label="Born">
             <span className="num">{p.dateOfBirth}</span>, {sexWords[p.sex]}

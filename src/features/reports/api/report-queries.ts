@@ -1,12 +1,13 @@
 import { queryOptions } from '@tanstack/react-query';
 import { z } from 'zod';
 import { api } from '@/lib/api-client';
-import { caseReportsListSchema, reportDetailSchema, reportListSchema } from '@/schemas/report';
+import { caseReportsListSchema, inProgressListSchema, reportDetailSchema, reportListSchema } from '@/schemas/report';
 
 export const reportKeys = {
   all: ['reports'] as const,
   list: () => [...reportKeys.all, 'list'] as const,
   byCase: () => [...reportKeys.all, 'by-case'] as const,
+  inProgress: () => [...reportKeys.all, 'in-progress'] as const,
   ofCase: (caseId: number) => [...reportKeys.all, 'of-case', caseId] as const,
   detail: (id: number) => [...reportKeys.all, 'detail', id] as const,
 };
@@ -16,6 +17,12 @@ export const reportQueries = {
   list: () => queryOptions({ queryKey: reportKeys.list(), queryFn: () => api.get('/api/reports', reportListSchema) }),
   /** The readable reports grouped by case, with the details a reader needs. */
   byCase: () => queryOptions({ queryKey: reportKeys.byCase(), queryFn: () => api.get('/api/reports/by-case', caseReportsListSchema) }),
+  /** The clinician's own referred cases not reported yet: state in words, no results. */
+  inProgress: () =>
+    queryOptions({
+      queryKey: reportKeys.inProgress(),
+      queryFn: async () => (await api.get('/api/reports/in-progress', inProgressListSchema)).items,
+    }),
   /** Every version of one case (laboratory staff). */
   ofCase: (caseId: number) =>
     queryOptions({
