@@ -38,7 +38,7 @@ function GroupCard({
         <h4 className="font-medium text-matrix-900">{title}</h4>
         <span className="text-xs text-ink-faint">Wells: {wells}</span>
       </header>
-      {group.alreadySaved ? <Notice tone="error">This replicate is already saved for the specimen; saving the plate would clash. Change the map or delete the saved one.</Notice> : null}
+      {group.alreadySaved ? <Notice tone="error">This replicate is already saved for the specimen; saving the plate would clash. Change the map, or give the saved one another replicate number (Edit, under Saved measurements).</Notice> : null}
       <TraceChart
         label={`${title} readings`}
         height={200}
