@@ -151,8 +151,6 @@ export const reportMethodsSchema = z.object({
   ),
   /** Versions used that their own drafter approved (a single-director laboratory); absent when none were. */
   selfApproval: text.optional(),
-  /** Versions used that their own drafter approved (a single-director laboratory); absent when none were. */
-  selfApproval: text.optional(),
   /** Replicates excluded from the calculations, with reason and by whom (absent in reports signed before). */
   excludedReplicates: z.array(reportExcludedReplicateSchema).max(200).optional(),
 });

@@ -2,10 +2,10 @@ import { execFileSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
-import type { BrowserContext, Page } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { ARTIFACTS, launchBrowser, screenshot, signIn } from './support/browser';
-import { startServer, type RunningServer } from './support/server';
+import type { Page } from 'playwright-core';
+import { describe, expect, it } from 'vitest';
+import { ARTIFACTS, screenshot, signIn } from './support/browser';
+import { useAppInBrowser } from './support/app';
 
 /*
  * Correcting the numbers of a signed report, in Chromium against the real server: the director reopens a demo
@@ -16,16 +16,7 @@ import { startServer, type RunningServer } from './support/server';
  * The corrected PDF's text is read with poppler's pdftotext and its first page rendered with pdftoppm.
  */
 
-let server: RunningServer;
-let browser: BrowserContext;
-beforeAll(async () => {
-  server = await startServer();
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await server?.stop();
-});
+const app = useAppInBrowser();
 
 const NOTE = 'This report is being amended by the laboratory; a corrected version will follow.';
 const sha256 = (b: Buffer) => createHash('sha256').update(b).digest('hex');
@@ -51,12 +42,12 @@ describe('amending a signed report, in Chromium', () => {
   let firstPdfHash = '';
 
   it('when the director reopens a signed case, then a wrong password is refused in place and the right one reopens it with the note on screen', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'director@demo.test');
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'director@demo.test');
     await page.waitForURL('**/review');
-    const reports = (await (await page.request.get(`${server.origin}/api/reports`)).json()) as Item[];
+    const reports = (await (await page.request.get(`${app.server.origin}/api/reports`)).json()) as Item[];
     for (const r of reports.filter((x) => x.status === 'final')) {
-      const d = (await (await page.request.get(`${server.origin}/api/cases/${r.caseId}`)).json()) as Detail;
+      const d = (await (await page.request.get(`${app.server.origin}/api/cases/${r.caseId}`)).json()) as Detail;
       if (d.referringClinician.email === 'clinician@demo.test' && d.state === 'final' && d.specimens[0]?.proteinMgPerMl) {
         firstReport = r;
         break;
@@ -65,9 +56,9 @@ describe('amending a signed report, in Chromium', () => {
     expect(firstReport).toBeDefined();
     caseId = firstReport.caseId;
     accession = firstReport.accession;
-    firstPdfHash = sha256(Buffer.from(await (await page.request.get(`${server.origin}/api/reports/${firstReport.id}/pdf`)).body()));
+    firstPdfHash = sha256(Buffer.from(await (await page.request.get(`${app.server.origin}/api/reports/${firstReport.id}/pdf`)).body()));
 
-    await page.goto(`${server.origin}/review/${caseId}`);
+    await page.goto(`${app.server.origin}/review/${caseId}`);
     await page.getByRole('button', { name: 'Amend: reopen to correct the results…' }).click();
     const dialog = page.getByRole('dialog', { name: 'Reopen the signed case' });
     await dialog.getByRole('button', { name: 'Reopen the case' }).click();
@@ -77,31 +68,31 @@ describe('amending a signed report, in Chromium', () => {
     await dialog.getByRole('button', { name: 'Reopen the case' }).click();
     await dialog.getByText('The password is not correct').waitFor();
     await screenshot(page, 'amend-1-dialog-refused');
-    expect(((await (await page.request.get(`${server.origin}/api/cases/${caseId}`)).json()) as Detail).state).toBe('final');
+    expect(((await (await page.request.get(`${app.server.origin}/api/cases/${caseId}`)).json()) as Detail).state).toBe('final');
 
     await dialog.getByLabel('Your password, to confirm').fill('cristae-demo');
     await dialog.getByRole('button', { name: 'Reopen the case' }).click();
     await page.getByText('Reopened after signing.').waitFor();
     await page.getByRole('note').filter({ hasText: NOTE }).waitFor();
     await screenshot(page, 'amend-2-reopened');
-    expect(((await (await page.request.get(`${server.origin}/api/cases/${caseId}`)).json()) as Detail).state).toBe('in_assay');
+    expect(((await (await page.request.get(`${app.server.origin}/api/cases/${caseId}`)).json()) as Detail).state).toBe('in_assay');
     await signOut(page);
     await page.close();
   });
 
   it('when the technologist records the right protein and submits again, then the case page shows why it was reopened', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'technologist@demo.test');
-    const d = (await (await page.request.get(`${server.origin}/api/cases/${caseId}`)).json()) as Detail;
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'technologist@demo.test');
+    const d = (await (await page.request.get(`${app.server.origin}/api/cases/${caseId}`)).json()) as Detail;
     const s = d.specimens[0]!;
-    const put = await page.request.put(`${server.origin}/api/specimens/${s.id}/protein`, {
+    const put = await page.request.put(`${app.server.origin}/api/specimens/${s.id}/protein`, {
       data: { kind: 'direct', proteinMgPerMl: 2 * s.proteinMgPerMl!, proteinSource: 'BCA worksheet, re-read (demo)', version: s.version },
-      headers: { Origin: server.origin },
+      headers: { Origin: app.server.origin },
     });
     expect(put.status()).toBe(200);
-    const fresh = (await (await page.request.get(`${server.origin}/api/cases/${caseId}`)).json()) as Detail;
-    expect((await page.request.post(`${server.origin}/api/cases/${caseId}/submit`, { data: { version: fresh.version }, headers: { Origin: server.origin } })).status()).toBe(200);
-    await page.goto(`${server.origin}/cases/${caseId}`);
+    const fresh = (await (await page.request.get(`${app.server.origin}/api/cases/${caseId}`)).json()) as Detail;
+    expect((await page.request.post(`${app.server.origin}/api/cases/${caseId}/submit`, { data: { version: fresh.version }, headers: { Origin: app.server.origin } })).status()).toBe(200);
+    await page.goto(`${app.server.origin}/cases/${caseId}`);
     await page.getByText('Reopened after signing to correct the results:').waitFor();
     await page.getByRole('note').filter({ hasText: NOTE }).waitFor();
     await screenshot(page, 'amend-3-case-page');
@@ -110,22 +101,22 @@ describe('amending a signed report, in Chromium', () => {
   });
 
   it('when Dr Quenby looks meanwhile, then the signed report is still there, unchanged, with the note', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'clinician@demo.test');
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'clinician@demo.test');
     await page.waitForURL('**/my-reports');
     const card = page.getByRole('article', { name: `Accession ${accession}` });
     await card.getByRole('note').filter({ hasText: NOTE }).waitFor();
     await screenshot(page, 'amend-4-clinician-note');
-    const bytes = Buffer.from(await (await page.request.get(`${server.origin}/api/reports/${firstReport.id}/pdf`)).body());
+    const bytes = Buffer.from(await (await page.request.get(`${app.server.origin}/api/reports/${firstReport.id}/pdf`)).body());
     expect(sha256(bytes)).toBe(firstPdfHash);
     await signOut(page);
     await page.close();
   });
 
   it('when the director signs the correction, then the new version lists the changed values and its PDF carries the new numbers', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'director@demo.test');
-    await page.goto(`${server.origin}/review/${caseId}`);
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'director@demo.test');
+    await page.goto(`${app.server.origin}/review/${caseId}`);
     await page.getByRole('button', { name: 'Sign the corrected report…' }).click();
     const form = page.getByRole('form', { name: 'Issue a corrected report' });
     await form.getByLabel('Why the report is corrected').fill('Protein was entered at half its value (demo).');
@@ -139,7 +130,7 @@ describe('amending a signed report, in Chromium', () => {
     await expect(page.getByRole('note').filter({ hasText: NOTE }).count()).resolves.toBe(0);
     await screenshot(page, 'amend-5-corrected');
 
-    const reports = (await (await page.request.get(`${server.origin}/api/cases/${caseId}/reports`)).json()) as {
+    const reports = (await (await page.request.get(`${app.server.origin}/api/cases/${caseId}/reports`)).json()) as {
       items: (Item & { changedValues: { item: string; before: string; after: string }[] })[];
     };
     const [newest, previous] = reports.items;
@@ -153,7 +144,7 @@ describe('amending a signed report, in Chromium', () => {
 
     fs.mkdirSync(ARTIFACTS, { recursive: true });
     const pdfPath = path.join(ARTIFACTS, 'amend-corrected-report.pdf');
-    fs.writeFileSync(pdfPath, Buffer.from(await (await page.request.get(`${server.origin}/api/reports/${newest!.id}/pdf`)).body()));
+    fs.writeFileSync(pdfPath, Buffer.from(await (await page.request.get(`${app.server.origin}/api/reports/${newest!.id}/pdf`)).body()));
     const text = execFileSync('pdftotext', ['-layout', pdfPath, '-']).toString('utf8').replace(/\s+/g, ' ');
     expect(text).toContain(`Values changed since version ${firstReport.version}`);
     expect(text).toContain(`CS activity ${cs.before} ${cs.after}`);

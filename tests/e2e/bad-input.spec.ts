@@ -1,29 +1,19 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import type { BrowserContext } from 'playwright-core';
 import { Sequelize } from 'sequelize';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { launchBrowser, screenshot, signIn } from './support/browser';
-import { startServer, type RunningServer } from './support/server';
+import { describe, expect, it } from 'vitest';
+import { screenshot, signIn } from './support/browser';
+import { useAppInBrowser } from './support/app';
 
-let server: RunningServer;
-let browser: BrowserContext;
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'cristae-e2e-bad-input-'));
-beforeAll(async () => {
-  server = await startServer({}, { dataDir });
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await server?.stop();
-});
+const app = useAppInBrowser({}, { dataDir });
 
 describe('bad input, in Chromium', () => {
   it('when a director pastes values with decimal commas to verify an interval, then the line is named beside the values and no verdict is shown', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'director@demo.test');
-    await page.goto(`${server.origin}/intervals/verify`);
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'director@demo.test');
+    await page.goto(`${app.server.origin}/intervals/verify`);
     await page.getByLabel('Adopted lower limit').fill('30');
     await page.getByLabel('Adopted upper limit').fill('50');
     const invented = Array.from({ length: 20 }, (_, i) => `${37 + (i % 7)},${(i * 3) % 10}`).join('\n');
@@ -41,17 +31,17 @@ describe('bad input, in Chromium', () => {
     await db.query(`UPDATE lab_profiles SET timeZone = 'Europe/Londn'`);
     await db.close();
 
-    const tech = await browser.newPage();
-    await signIn(tech, server.origin, 'technologist@demo.test');
-    await tech.goto(`${server.origin}/cases`);
+    const tech = await app.browser.newPage();
+    await signIn(tech, app.server.origin, 'technologist@demo.test');
+    await tech.goto(`${app.server.origin}/cases`);
     await tech.getByText(/"Europe\/Londn" is not a known IANA zone/).waitFor();
     await tech.getByRole('table').waitFor();
     await screenshot(tech, 'bad-input-zone-case-list');
     await tech.close();
 
-    const admin = await browser.newPage();
-    await signIn(admin, server.origin, 'admin@demo.test');
-    await admin.goto(`${server.origin}/admin/laboratory`);
+    const admin = await app.browser.newPage();
+    await signIn(admin, app.server.origin, 'admin@demo.test');
+    await admin.goto(`${app.server.origin}/admin/laboratory`);
     await admin.getByText(/"Europe\/Londn" is not a known IANA zone/).waitFor();
     await admin.getByLabel('Time zone (IANA)').fill('Europe/Lndon');
     await admin.getByRole('button', { name: 'Save profile' }).click();

@@ -1,18 +1,9 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { BrowserContext, Page } from 'playwright-core';
-import { launchBrowser, screenshot, signIn } from './support/browser';
-import { startServer, type RunningServer } from './support/server';
+import { describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import { screenshot, signIn } from './support/browser';
+import { useAppInBrowser } from './support/app';
 
-let server: RunningServer;
-let browser: BrowserContext;
-beforeAll(async () => {
-  server = await startServer();
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await server?.stop();
-});
+const app = useAppInBrowser();
 
 const TEMPORARY = 'handed-over-at-desk-7';
 const CHOSEN = 'my bench has a blue stool';
@@ -24,10 +15,10 @@ async function signOut(page: Page) {
 
 describe("an administrator's reset and the person's own password, in Chromium", () => {
   it('when an admin sets a temporary password, then the technologist must choose their own before any page opens, and can change it again from the account menu', async () => {
-    const page = await browser.newPage();
+    const page = await app.browser.newPage();
 
     // The administrator sets a temporary password from the Accounts page.
-    await signIn(page, server.origin, 'admin@demo.test');
+    await signIn(page, app.server.origin, 'admin@demo.test');
     await page.waitForURL('**/admin/accounts');
     const row = page.getByRole('row').filter({ hasText: 'technologist@demo.test' });
     await row.getByRole('button', { name: 'Reset password' }).click();
@@ -39,10 +30,10 @@ describe("an administrator's reset and the person's own password, in Chromium", 
     await signOut(page);
 
     // The technologist signs in with it: the change screen replaces every page, with no navigation.
-    await signIn(page, server.origin, 'technologist@demo.test', TEMPORARY);
+    await signIn(page, app.server.origin, 'technologist@demo.test', TEMPORARY);
     await page.getByRole('heading', { name: 'Choose your own password' }).waitFor();
     await expect(page.getByRole('navigation', { name: 'Main' }).count()).resolves.toBe(0);
-    await page.goto(`${server.origin}/cases`);
+    await page.goto(`${app.server.origin}/cases`);
     await page.getByRole('heading', { name: 'Choose your own password' }).waitFor();
     await screenshot(page, 'password-change-required');
 
@@ -79,7 +70,7 @@ describe("an administrator's reset and the person's own password, in Chromium", 
     await page.getByLabel('Password').fill(CHOSEN);
     await page.getByRole('button', { name: 'Sign in' }).click();
     await page.getByRole('alert').filter({ hasText: 'not correct' }).waitFor();
-    await signIn(page, server.origin, 'technologist@demo.test', 'a second good sentence');
+    await signIn(page, app.server.origin, 'technologist@demo.test', 'a second good sentence');
     await page.waitForURL('**/cases');
     await page.close();
   });

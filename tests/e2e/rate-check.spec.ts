@@ -1,18 +1,8 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { BrowserContext } from 'playwright-core';
-import { launchBrowser, screenshot, signIn } from './support/browser';
-import { startServer, type RunningServer } from './support/server';
+import { describe, expect, it } from 'vitest';
+import { screenshot, signIn } from './support/browser';
+import { useAppInBrowser } from './support/app';
 
-let server: RunningServer;
-let browser: BrowserContext;
-beforeAll(async () => {
-  server = await startServer();
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await server?.stop();
-});
+const app = useAppInBrowser();
 
 // The CI worked example [derived] (docs/domain.md §1): specific ΔA/min 0.0248 with 40 µg protein in 1 mL, 1 cm
 // -> 100.0 nmol/min/mg. Total falls 0.0348 A/min, the rotenone trace 0.0100 A/min.
@@ -20,8 +10,8 @@ const lines = (a0: number, perMin: number) => Array.from({ length: 13 }, (_, i) 
 
 describe('rate check, in Chromium', () => {
   it('when a technologist pastes two traces, then the activity, the fitted lines and the window are shown, and moving the window recomputes', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'technologist@demo.test');
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'technologist@demo.test');
     await page.getByRole('link', { name: 'Rate check' }).click();
     await page.getByLabel(/Total trace/).fill(lines(1.2, -0.0348));
     await page.getByLabel(/Background trace/).fill(lines(1.1, -0.01));
@@ -48,8 +38,8 @@ describe('rate check, in Chromium', () => {
     // A = 0.6 + 0.7·e^(−0.5·t/min) every 10 s for 300 s: initial rate 0.35 A/min [analytic]; every 5-reading
     // window already loses about 15% of it, so no straight stretch exists.
     const decay = Array.from({ length: 31 }, (_, i) => `${i * 10}\t${(0.6 + 0.7 * Math.exp((-0.5 * i * 10) / 60)).toFixed(6)}`).join('\n');
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'technologist@demo.test');
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'technologist@demo.test');
     await page.getByRole('link', { name: 'Rate check' }).click();
     await page.getByLabel('Assay').selectOption('CIV');
     await page.getByLabel(/Total trace/).fill(decay);

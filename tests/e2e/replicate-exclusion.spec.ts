@@ -1,22 +1,13 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { BrowserContext, Page } from 'playwright-core';
+import { describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
 import { defaultAssayDefinitions } from '@/schemas/assay';
 import type { AssayCode } from '@/schemas/common';
 import { buildPatientInput, buildRegisterCaseInput } from '../factories/cases';
 import { WORKUP_PROTEIN_MG_PER_ML, isolatedComplexI, ratesFor } from '../factories/workup';
-import { launchBrowser, screenshot, signIn } from './support/browser';
-import { startServer, type RunningServer } from './support/server';
+import { screenshot, signIn } from './support/browser';
+import { useAppInBrowser } from './support/app';
 
-let server: RunningServer;
-let browser: BrowserContext;
-beforeAll(async () => {
-  server = await startServer();
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await server?.stop();
-});
+const app = useAppInBrowser();
 
 /*
  * A technologist excludes a wild replicate on the bench, with a reason, and sees it struck through there and on
@@ -27,7 +18,7 @@ afterAll(async () => {
 const CI_REPS = [6, 6.6, 120];
 
 async function api<T>(page: Page, method: 'GET' | 'POST' | 'PUT', path: string, data?: unknown): Promise<T> {
-  const res = await page.request.fetch(`${server.origin}${path}`, { method, data, headers: { Origin: server.origin } });
+  const res = await page.request.fetch(`${app.server.origin}${path}`, { method, data, headers: { Origin: app.server.origin } });
   if (!res.ok()) throw new Error(`${method} ${path}: ${res.status()} ${await res.text()}`);
   return (await res.json()) as T;
 }
@@ -62,11 +53,11 @@ async function caseWithWildReplicate(page: Page): Promise<{ caseId: number; wild
 
 describe('excluding a replicate in Chromium', () => {
   it('excludes the wild complex I replicate with a reason on the bench; it is struck through there and on the results, and left out of the mean', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'technologist@demo.test');
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'technologist@demo.test');
     const { caseId, wildId } = await caseWithWildReplicate(page);
 
-    await page.goto(`${server.origin}/cases/${caseId}/assays`);
+    await page.goto(`${app.server.origin}/cases/${caseId}/assays`);
     const row = page.getByTestId(`measurement-${wildId}`);
     await row.waitFor();
     await screenshot(page, 'exclusion-01-bench-before');
@@ -88,7 +79,7 @@ describe('excluding a replicate in Chromium', () => {
     await screenshot(page, 'exclusion-02-bench-struck-through');
 
     // The results: the value struck through, the reason beside it, n = 2.
-    await page.goto(`${server.origin}/cases/${caseId}/results`);
+    await page.goto(`${app.server.origin}/cases/${caseId}/results`);
     const ci = page.getByTestId('result-row-CI');
     await ci.waitFor();
     const struck = ci.getByTestId(`excluded-replicate-${wildId}`);
@@ -104,7 +95,7 @@ describe('excluding a replicate in Chromium', () => {
     await screenshot(page, 'exclusion-03-results');
 
     // Back on the bench: complex I replicate 2 renumbered through the edit form, then the wild one counted again.
-    await page.goto(`${server.origin}/cases/${caseId}/assays`);
+    await page.goto(`${app.server.origin}/cases/${caseId}/assays`);
     await row.waitFor();
     const second = page.locator('[data-testid^="measurement-"]').filter({ hasText: /^ACI2/ });
     await second.getByRole('button', { name: 'Edit' }).click();

@@ -1,11 +1,10 @@
 import { execFileSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
-import type { BrowserContext } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { readPdf } from '../factories/pdf-text';
-import { ARTIFACTS, launchBrowser, screenshot, signIn } from './support/browser';
-import { startServer, type RunningServer } from './support/server';
+import { ARTIFACTS, screenshot, signIn } from './support/browser';
+import { useAppInBrowser } from './support/app';
 
 /*
  * The results of the demo cases (invented values, fictitious Fernhollow laboratory), in
@@ -15,22 +14,13 @@ import { startServer, type RunningServer } from './support/server';
  * [common practice].
  */
 
-let server: RunningServer;
-let browser: BrowserContext;
-beforeAll(async () => {
-  server = await startServer();
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await server?.stop();
-});
+const app = useAppInBrowser();
 
 describe('criterion bands on the results page, in Chromium', () => {
   it('when the director opens a demo case with a band, then it stands on the ratio to CS in words, with the rule it follows', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'director@demo.test');
-    const body = (await (await page.request.get(`${server.origin}/api/cases?pageSize=100`)).json()) as
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'director@demo.test');
+    const body = (await (await page.request.get(`${app.server.origin}/api/cases?pageSize=100`)).json()) as
       | { items: { id: number; patternCode: string | null }[] }
       | { id: number; patternCode: string | null }[];
     const cases = Array.isArray(body) ? body : body.items;
@@ -38,7 +28,7 @@ describe('criterion bands on the results page, in Chromium', () => {
     type Cmp = { measure: string; band: string | null } | null;
     const banded: { id: number; assay: string; band: string }[] = [];
     for (const c of cases.filter((x) => x.patternCode !== null)) {
-      const r = (await (await page.request.get(`${server.origin}/api/cases/${c.id}/results`)).json()) as {
+      const r = (await (await page.request.get(`${app.server.origin}/api/cases/${c.id}/results`)).json()) as {
         specimens: { assays: { assay: string; activity: Cmp; ratioCs: Cmp; ratioCii: Cmp }[] }[];
       };
       for (const a of r.specimens.flatMap((s) => s.assays)) {
@@ -52,7 +42,7 @@ describe('criterion bands on the results page, in Chromium', () => {
     expect(banded.length).toBeGreaterThan(0);
     // The first banded case of the deterministic demo seed is a signed one (a report exists).
     const shown = banded[0]!;
-    await page.goto(`${server.origin}/cases/${shown.id}/results`);
+    await page.goto(`${app.server.origin}/cases/${shown.id}/results`);
     await page.getByTestId('pattern-summary').waitFor();
     await screenshot(page, 'result-bands');
 
@@ -74,10 +64,10 @@ describe('criterion bands on the results page, in Chromium', () => {
     // The demo case's signed report prints the same % of mean for that ratio as the screen (read back with
     // pdfjs-dist; first page rendered with poppler's pdftoppm to look at).
     const screenPct = /([\d.]+%) of mean/.exec((await row.locator('td').nth(1).textContent())!)![1]!;
-    const { items } = (await (await page.request.get(`${server.origin}/api/cases/${shown.id}/reports`)).json()) as { items: { id: number; version: number }[] };
+    const { items } = (await (await page.request.get(`${app.server.origin}/api/cases/${shown.id}/reports`)).json()) as { items: { id: number; version: number }[] };
     expect(items.length).toBeGreaterThan(0);
     const latest = items.reduce((a, b) => (b.version > a.version ? b : a));
-    const bytes = Buffer.from(await (await page.request.get(`${server.origin}/api/reports/${latest.id}/pdf`)).body());
+    const bytes = Buffer.from(await (await page.request.get(`${app.server.origin}/api/reports/${latest.id}/pdf`)).body());
     const file = path.join(ARTIFACTS, 'result-bands-report.pdf');
     fs.writeFileSync(file, bytes);
     execFileSync('pdftoppm', ['-png', '-r', '80', '-f', '1', '-l', '1', file, path.join(ARTIFACTS, 'result-bands-report')]);

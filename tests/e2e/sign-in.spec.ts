@@ -1,18 +1,8 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { BrowserContext } from 'playwright-core';
-import { launchBrowser, screenshot, signIn } from './support/browser';
-import { startServer, type RunningServer } from './support/server';
+import { describe, expect, it } from 'vitest';
+import { screenshot, signIn } from './support/browser';
+import { useAppInBrowser } from './support/app';
 
-let server: RunningServer;
-let browser: BrowserContext;
-beforeAll(async () => {
-  server = await startServer();
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await server?.stop();
-});
+const app = useAppInBrowser();
 
 // Each demo role lands on its own start page and sees only its own navigation.
 const cases = [
@@ -24,8 +14,8 @@ const cases = [
 
 describe('signing in, in Chromium', () => {
   it.each(cases)('when $email signs in, then they land on $landing and see only their role’s pages', async ({ email, landing, sees, never }) => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, email);
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, email);
     await page.waitForURL(`**${landing}`);
     const nav = page.getByRole('navigation', { name: 'Main' });
     // The shell renders after the session loads: wait for each expected link before counting the others.
@@ -37,17 +27,17 @@ describe('signing in, in Chromium', () => {
   });
 
   it('when a clinician opens an admin address directly, then they see the 403 page, not the admin page', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'clinician@demo.test');
-    await page.goto(`${server.origin}/admin/accounts`);
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'clinician@demo.test');
+    await page.goto(`${app.server.origin}/admin/accounts`);
     await page.getByRole('heading', { name: 'This page is not part of your role' }).waitFor();
     await expect(page.getByRole('heading', { name: 'Accounts' }).count()).resolves.toBe(0);
     await page.close();
   });
 
   it('when the password is wrong, then the form says so and stays on the sign-in page', async () => {
-    const page = await browser.newPage();
-    await page.goto(`${server.origin}/sign-in`);
+    const page = await app.browser.newPage();
+    await page.goto(`${app.server.origin}/sign-in`);
     await page.getByLabel('E-mail address').fill('director@demo.test');
     await page.getByLabel('Password').fill('wrong-password');
     await page.getByRole('button', { name: 'Sign in' }).click();

@@ -2,10 +2,10 @@ import { execFileSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
-import type { BrowserContext, Page } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { ARTIFACTS, launchBrowser, screenshot, signIn } from './support/browser';
-import { startServer, type RunningServer } from './support/server';
+import type { Page } from 'playwright-core';
+import { describe, expect, it } from 'vitest';
+import { ARTIFACTS, screenshot, signIn } from './support/browser';
+import { useAppInBrowser } from './support/app';
 
 /*
  * The sign-out flow as its people live it, in Chromium against the real server and its local SMTP stand-in:
@@ -15,16 +15,7 @@ import { startServer, type RunningServer } from './support/server';
  * and kept in test-artifacts/.
  */
 
-let server: RunningServer;
-let browser: BrowserContext;
-beforeAll(async () => {
-  server = await startServer();
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await server?.stop();
-});
+const app = useAppInBrowser();
 
 const sha256 = (b: Buffer) => createHash('sha256').update(b).digest('hex');
 
@@ -39,8 +30,8 @@ describe('signing out a report, in Chromium', () => {
   let patientIdentifiers: string[] = [];
 
   it('when the director signs a case from the queue, then it is stored as version 1 and leaves the queue', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'director@demo.test');
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'director@demo.test');
     await page.waitForURL('**/review');
     const row = page.getByRole('row').filter({ hasText: 'Dr Rafael Quenby' }).first();
     const link = row.getByRole('link').first();
@@ -63,16 +54,16 @@ describe('signing out a report, in Chromium', () => {
     await page.getByText(/Version 1 is signed and stored/).waitFor();
     await screenshot(page, 'sign-out-2-signed');
 
-    const reports = (await (await page.request.get(`${server.origin}/api/reports`)).json()) as { id: number; accession: string; status: string }[];
+    const reports = (await (await page.request.get(`${app.server.origin}/api/reports`)).json()) as { id: number; accession: string; status: string }[];
     const mine = reports.find((r) => r.accession === accession) as { id: number; caseId: number; status: string } | undefined;
     expect(mine?.status).toBe('final');
     reportId = mine!.id;
-    const detail = (await (await page.request.get(`${server.origin}/api/cases/${mine!.caseId}`)).json()) as {
+    const detail = (await (await page.request.get(`${app.server.origin}/api/cases/${mine!.caseId}`)).json()) as {
       patient: { familyName: string; givenName: string; labPatientId: string; dateOfBirth: string };
     };
     patientIdentifiers = [detail.patient.familyName, detail.patient.givenName, detail.patient.labPatientId, detail.patient.dateOfBirth];
 
-    await page.goto(`${server.origin}/review`);
+    await page.goto(`${app.server.origin}/review`);
     // Once the signed list shows the new version, the queue (loaded alongside) no longer holds the case.
     await page.getByRole('table', { name: 'Signed reports' }).getByRole('link', { name: accession }).first().waitFor();
     await page.waitForLoadState('networkidle');
@@ -84,16 +75,16 @@ describe('signing out a report, in Chromium', () => {
   });
 
   it('when the administrator opens "Sent e-mail", then the notice to Dr Quenby is there, with the accession and no patient name', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'admin@demo.test');
-    await page.goto(`${server.origin}/admin/outbox`);
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'admin@demo.test');
+    await page.goto(`${app.server.origin}/admin/outbox`);
     const message = page.getByRole('list', { name: 'Received messages' }).getByRole('listitem').filter({ hasText: accession });
     await message.first().waitFor({ timeout: 30_000 });
     await expect(message.first().textContent()).resolves.toContain('clinician@demo.test');
     await message.first().locator('summary').click();
     const body = (await message.first().textContent()) ?? '';
     expect(body).toContain('/my-reports');
-    const review = (await (await page.request.get(`${server.origin}/api/outbox`)).json()) as { messages: { subject: string; text: string }[] };
+    const review = (await (await page.request.get(`${app.server.origin}/api/outbox`)).json()) as { messages: { subject: string; text: string }[] };
     const mail = review.messages.find((m) => m.subject.includes(accession))!;
     // None of the patient's identifiers may travel by e-mail.
     expect(patientIdentifiers).toHaveLength(4);
@@ -104,8 +95,8 @@ describe('signing out a report, in Chromium', () => {
   });
 
   it('when Dr Quenby signs in, then the report is on their page and the PDF downloads with the bytes the server signed', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'clinician@demo.test');
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'clinician@demo.test');
     await page.waitForURL('**/my-reports');
     const card = page.getByRole('article', { name: `Accession ${accession}` });
     await card.waitFor();
@@ -116,7 +107,7 @@ describe('signing out a report, in Chromium', () => {
     await download.saveAs(pdfPath);
     const bytes = fs.readFileSync(pdfPath);
     expect(bytes.subarray(0, 5).toString('latin1')).toBe('%PDF-');
-    const head = await page.request.get(`${server.origin}/api/reports/${reportId}/pdf`);
+    const head = await page.request.get(`${app.server.origin}/api/reports/${reportId}/pdf`);
     expect(head.headers().etag).toBe(`"${sha256(bytes)}"`);
 
     execFileSync('pdftoppm', ['-png', '-r', '80', '-f', '1', '-l', '1', '-singlefile', pdfPath, path.join(ARTIFACTS, 'sign-out-report-page-1')]);
@@ -126,14 +117,14 @@ describe('signing out a report, in Chromium', () => {
   });
 
   it('when Dr Halvorsen (clinician2) tries the same report, then it is neither listed nor reachable', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'clinician2@demo.test');
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'clinician2@demo.test');
     await page.waitForURL('**/my-reports');
     // Wait until the page has its answer (their own reports, or none) before looking for the other one.
     await page.getByRole('article').first().or(page.getByText('No signed reports yet')).waitFor();
     await expect(page.getByRole('article', { name: `Accession ${accession}` }).count()).resolves.toBe(0);
     for (const url of [`/api/reports/${reportId}`, `/api/reports/${reportId}/pdf`]) {
-      const res = await page.request.get(`${server.origin}${url}`);
+      const res = await page.request.get(`${app.server.origin}${url}`);
       expect(res.status()).toBe(404);
     }
     await screenshot(page, 'sign-out-5-other-clinician');

@@ -1,21 +1,12 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { BrowserContext, Page } from 'playwright-core';
+import { describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
 import { defaultAssayDefinitions } from '@/schemas/assay';
 import type { AssayCode } from '@/schemas/common';
 import { makePlateFile } from '../factories/plate-file';
-import { launchBrowser, screenshot, signIn } from './support/browser';
-import { startServer, type RunningServer } from './support/server';
+import { screenshot, signIn } from './support/browser';
+import { useAppInBrowser } from './support/app';
 
-let server: RunningServer;
-let browser: BrowserContext;
-beforeAll(async () => {
-  server = await startServer();
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await server?.stop();
-});
+const app = useAppInBrowser();
 
 /*
  * A plate for the demo layout "Seven assays in duplicate, one blank (demo)": rows A–G hold CS, CI, CII, CIII,
@@ -71,7 +62,7 @@ function plateFile(): string {
 }
 
 async function registerCase(page: Page): Promise<number> {
-  await page.goto(`${server.origin}/cases/new`);
+  await page.goto(`${app.server.origin}/cases/new`);
   await page.getByRole('button', { name: /Register a new patient/ }).click();
   const patient = page.getByRole('form', { name: 'New patient' });
   await patient.getByLabel('Lab patient ID').fill('E2E-WORKUP-1');
@@ -100,8 +91,8 @@ async function registerCase(page: Page): Promise<number> {
 
 describe('a technologist works up a case in Chromium', () => {
   it('registers a case, records protein, uploads a plate, moves a window, reads the flagged results and submits for review', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'technologist@demo.test');
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'technologist@demo.test');
 
     const caseId = await registerCase(page);
     await page.getByTestId('workup-summary').waitFor();
@@ -139,7 +130,7 @@ describe('a technologist works up a case in Chromium', () => {
     await expect(page.getByRole('link', { name: 'e2e-run.csv' }).isVisible()).resolves.toBe(true);
 
     // Results: computed live, with the flags and the pattern.
-    await page.goto(`${server.origin}/cases/${caseId}/results`);
+    await page.goto(`${app.server.origin}/cases/${caseId}/results`);
     await page.getByTestId('pattern-summary').waitFor();
     await expect(page.getByRole('complementary', { name: 'Caution' }).isVisible()).resolves.toBe(true);
     await expect(page.getByTestId('pattern-summary').textContent()).resolves.toMatch(/Isolated low complex I activity/);
@@ -156,7 +147,7 @@ describe('a technologist works up a case in Chromium', () => {
     await screenshot(page, 'workup-05-submitted');
 
     // Back on the case page: the state has moved on and the kept file is listed.
-    await page.goto(`${server.origin}/cases/${caseId}`);
+    await page.goto(`${app.server.origin}/cases/${caseId}`);
     await page.getByTestId('case-files').getByRole('link', { name: 'e2e-run.csv' }).waitFor();
     await expect(page.getByTestId('workup-summary').textContent()).resolves.toMatch(/Results frozen at submission/);
     await screenshot(page, 'workup-06-case-page-after');
