@@ -3,6 +3,8 @@ import type { CaseDetail } from '@/schemas/case';
 import { inProgressListSchema, type InProgressCase } from '@/schemas/report';
 import { createCase } from '../factories/cases';
 import { accountId, createCaseAwaitingReview } from '../factories/workup';
+import type { Agent } from '../setup/lab-staff';
+import { signInAll } from '../setup/signed-in-agents';
 import { DEMO_PASSWORD, makeTestApp, type TestApp } from '../setup/test-app';
 
 /*
@@ -11,7 +13,6 @@ import { DEMO_PASSWORD, makeTestApp, type TestApp } from '../setup/test-app';
  * 493.1291(f) [confirmed, docs/domain.md §5]; unsigned results are not released at all [common practice].
  */
 
-type Agent = Awaited<ReturnType<TestApp['signedIn']>>;
 let t: TestApp;
 let tech: Agent;
 let director: Agent;
@@ -34,13 +35,7 @@ async function listOf(agent: Agent): Promise<InProgressCase[]> {
 
 beforeAll(async () => {
   t = await makeTestApp();
-  [tech, director, clinician, clinician2, admin] = await Promise.all([
-    t.signedIn('technologist'),
-    t.signedIn('director'),
-    t.signedIn('clinician'),
-    t.signedIn('clinician2'),
-    t.signedIn('admin'),
-  ]);
+  [tech, director, clinician, clinician2, admin] = await signInAll(t, ['technologist', 'director', 'clinician', 'clinician2', 'admin']);
   const clinicianId = await accountId(admin, 'clinician@demo.test');
   const clinician2Id = await accountId(admin, 'clinician2@demo.test');
   received = await createCase(tech, { referringClinicianId: clinicianId });

@@ -6,6 +6,8 @@ import type { ReportDetail } from '@/schemas/report';
 import { buildPatientInput, buildSpecimenInput, createPatient } from '../factories/cases';
 import { collapse, readPdf, type PdfPage } from '../factories/pdf-text';
 import { accountId, createCaseAwaitingReview } from '../factories/workup';
+import type { Agent } from '../setup/lab-staff';
+import { signInAll } from '../setup/signed-in-agents';
 import { DEMO_PASSWORD, countRows, makeTestApp, type TestApp } from '../setup/test-app';
 
 /*
@@ -18,7 +20,6 @@ import { DEMO_PASSWORD, countRows, makeTestApp, type TestApp } from '../setup/te
  * node:crypto, not with the server's code.
  */
 
-type Agent = Awaited<ReturnType<TestApp['signedIn']>>;
 let t: TestApp;
 let tech: Agent;
 let director: Agent;
@@ -28,12 +29,7 @@ let clinicianId: number;
 
 beforeAll(async () => {
   t = await makeTestApp();
-  [tech, director, clinician, admin] = await Promise.all([
-    t.signedIn('technologist'),
-    t.signedIn('director'),
-    t.signedIn('clinician'),
-    t.signedIn('admin'),
-  ]);
+  [tech, director, clinician, admin] = await signInAll(t, ['technologist', 'director', 'clinician', 'admin']);
   clinicianId = await accountId(admin, 'clinician@demo.test');
 });
 afterAll(() => t.close());

@@ -60,6 +60,32 @@ describe('patient correction and the clinician’s cases in progress, in Chromiu
     await page.close();
   });
 
+  it('registering someone with the same name and birth date as a patient asks: the same patient, or a different person with a reason', async () => {
+    const page = await browser.newPage();
+    const found = (await (await page.request.get(`${server.origin}/api/patients/search?q=Applebeck`)).json()) as {
+      items: { id: number; familyName: string; givenName: string; dateOfBirth: string }[];
+    };
+    const twin = found.items.find((p) => p.id !== patientId)!;
+    await page.goto(`${server.origin}/cases/new`);
+    await page.getByRole('button', { name: /^Register a new patient/ }).click();
+    const form = page.getByRole('form', { name: 'New patient' });
+    await form.getByLabel('Lab patient ID').fill('E2E-TWIN-01');
+    await form.getByLabel('Family name').fill(twin.familyName);
+    await form.getByLabel('Given name(s)').fill(twin.givenName);
+    await form.getByLabel('Date of birth').fill(twin.dateOfBirth);
+    await form.getByRole('button', { name: 'Register the patient' }).click();
+    const group = form.getByRole('group', { name: 'Already registered' });
+    await group.getByRole('button', { name: 'Use this patient' }).waitFor();
+    await group.getByRole('button', { name: 'This is a different person…' }).click();
+    await group.getByLabel('How do you know this is a different person?').fill('Other family, different hospital number (demo)');
+    await screenshot(page, 'register-patient-different-person');
+    await group.getByRole('button', { name: 'Register as a different person' }).click();
+    await form.waitFor({ state: 'detached' });
+    const after = (await (await page.request.get(`${server.origin}/api/patients/search?q=E2E-TWIN-01`)).json()) as { items: { labPatientId: string }[] };
+    expect(after.items.map((p) => p.labPatientId)).toEqual(['E2E-TWIN-01']);
+    await page.close();
+  });
+
   it('a correction that makes the name and birth date match another patient asks for a reason, then saves', async () => {
     const page = await browser.newPage();
     const other = (await (await page.request.get(`${server.origin}/api/patients/search?q=a`)).json()) as {

@@ -28,7 +28,7 @@ export function CorrectPatientForm({ patient }: { patient: Patient }) {
   const [message, setMessage] = useState<{ tone: 'error' | 'success'; text: string } | null>(null);
   const form = useZodForm(updatePatientInputSchema, { defaultValues: fieldsOf(patient) });
   const { errors, isDirty } = form.formState;
-  const { confirming, readClash, clearClash, reset: resetClash, checkProps } = useSameNameStep(form);
+  const { confirming, messageAfter, reset: resetClash, checkProps } = useSameNameStep(form);
   useUnsavedChangesPrompt(isDirty && !correct.isSuccess);
 
   return (
@@ -45,13 +45,11 @@ export function CorrectPatientForm({ patient }: { patient: Patient }) {
             setMessage({ tone: 'success', text: 'Patient details corrected. Reports signed from now on print them; signed reports stay as they were signed.' });
           },
           onError: async (err) => {
-            const text = applyServerError(form, err);
-            if (!values.confirmDistinctFrom) clearClash();
-            if (await readClash(err)) {
-              setMessage({ tone: 'error', text: values.confirmDistinctFrom ? (text ?? 'Not saved.') : 'Not saved: these details match another registered patient.' });
-            } else if (err instanceof ApiError && err.code === 'STALE_VERSION') {
-              setMessage({ tone: 'error', text: 'Someone else changed this patient while you were editing. Reload the page to see their change, then correct again.' });
-            } else setMessage(text ? { tone: 'error', text } : null);
+            const stale = err instanceof ApiError && err.code === 'STALE_VERSION';
+            const text = stale
+              ? 'Someone else changed this patient while you were editing. Reload the page to see their change, then correct again.'
+              : await messageAfter(err, !!values.confirmDistinctFrom, applyServerError(form, err), 'Not saved: these details match another registered patient.');
+            setMessage(text ? { tone: 'error', text } : null);
           },
         });
       })}

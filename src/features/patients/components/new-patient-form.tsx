@@ -27,7 +27,7 @@ export function NewPatientForm({
     defaultValues: { labPatientId: '', familyName: '', givenName: '', dateOfBirth: '', sex: 'unknown', ...initial },
   });
   const { errors, isDirty } = form.formState;
-  const { confirming, readClash, clearClash, checkProps } = useSameNameStep(form);
+  const { confirming, messageAfter, checkProps } = useSameNameStep(form);
   useUnsavedChangesPrompt(isDirty && !registerPatient.isSuccess);
 
   return (
@@ -43,10 +43,7 @@ export function NewPatientForm({
             onChosen(p);
           },
           onError: async (err) => {
-            const text = applyServerError(form, err);
-            if (!values.confirmDistinctFrom) clearClash();
-            if (await readClash(err)) setMessage(values.confirmDistinctFrom ? text : 'This person may already be registered.');
-            else setMessage(text);
+            setMessage(await messageAfter(err, !!values.confirmDistinctFrom, applyServerError(form, err), 'This person may already be registered.'));
           },
         });
       })}

@@ -60,7 +60,16 @@ export function useSameNameStep(form: DistinctFields) {
     clear();
     setConfirming(false);
   };
-  return { clash, confirming, readClash: read, clearClash: clear, reset, checkProps };
+  /**
+   * After a refused save: shows the clashing patient (kept while confirming) and returns the message for the form,
+   * `text` being what applyServerError left unplaced.
+   */
+  async function messageAfter(err: unknown, confirmed: boolean, text: string | null, clashText: string): Promise<string | null> {
+    if (!confirmed) clear();
+    if (await read(err)) return confirmed ? text : clashText;
+    return text;
+  }
+  return { confirming, reset, messageAfter, checkProps };
 }
 
 /**
