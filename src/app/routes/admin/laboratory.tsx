@@ -7,7 +7,7 @@ export default function LaboratoryPage() {
   const { data, isPending, error } = useQuery(labProfileQueries.profile());
   return (
     <>
-      <PageHeader title="Laboratory profile" lead="The performing laboratory's name, address and accreditation number, as every report prints them." />
+      <PageHeader title="Laboratory profile" lead="The performing laboratory's name, address, telephone and accreditation number, as every report prints them." />
       <Card>
         {isPending ? <Loading /> : error ? <Notice tone="error">{error.message}</Notice> : <LabProfileForm profile={data} />}
       </Card>
