@@ -105,6 +105,13 @@ describe('the clinician’s cases in progress', () => {
     expect((reports.body as { caseId: number }[]).map((g) => g.caseId)).toContain(awaiting.id);
   });
 
+  it('a signed case reopened for amendment stays among the reports, not in this list', async () => {
+    const amend = await director.post(`/api/cases/${awaiting.id}/amend`).send({ reason: 'Protein concentration mistyped', password: DEMO_PASSWORD });
+    expect(amend.status).toBe(200);
+    expect((await tech.get(`/api/cases/${awaiting.id}`)).body.state).toBe('in_assay');
+    expect((await listOf(clinician)).map((i) => i.caseId)).not.toContain(awaiting.id);
+  });
+
   it('a cancelled case is not listed', async () => {
     const current = await tech.get(`/api/cases/${received.id}`);
     const res = await tech.post(`/api/cases/${received.id}/cancel`).send({ reason: 'Duplicate request', version: current.body.version });
