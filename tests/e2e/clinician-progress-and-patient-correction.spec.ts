@@ -1,7 +1,7 @@
-import type { BrowserContext, Page } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { launchBrowser, screenshot, signIn } from './support/browser';
-import { startServer, type RunningServer } from './support/server';
+import type { Page } from 'playwright-core';
+import { describe, expect, it } from 'vitest';
+import { screenshot, signIn } from './support/browser';
+import { useAppInBrowser } from './support/app';
 
 /*
  * In Chromium against the real server with the demo data: a technologist corrects a patient's name from the case
@@ -10,16 +10,7 @@ import { startServer, type RunningServer } from './support/server';
  * results, and never a case another clinician referred.
  */
 
-let server: RunningServer;
-let browser: BrowserContext;
-beforeAll(async () => {
-  server = await startServer();
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await server?.stop();
-});
+const app = useAppInBrowser();
 
 type Summary = { id: number; accession: string; state: string; patientName: string; referringClinicianName: string | null };
 
@@ -33,15 +24,15 @@ describe('patient correction and the clinician’s cases in progress, in Chromiu
   let patientId = 0;
 
   it('a technologist corrects the patient’s family name from the case page', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'technologist@demo.test');
-    const list = (await (await page.request.get(`${server.origin}/api/cases?state=received&pageSize=200`)).json()) as { items: Summary[] };
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'technologist@demo.test');
+    const list = (await (await page.request.get(`${app.server.origin}/api/cases?state=received&pageSize=200`)).json()) as { items: Summary[] };
     kase = list.items.find((c) => c.referringClinicianName === 'Dr Rafael Quenby')!;
     expect(kase).toBeDefined();
-    const detail = (await (await page.request.get(`${server.origin}/api/cases/${kase.id}`)).json()) as { patient: { id: number; familyName: string } };
+    const detail = (await (await page.request.get(`${app.server.origin}/api/cases/${kase.id}`)).json()) as { patient: { id: number; familyName: string } };
     patientId = detail.patient.id;
 
-    await page.goto(`${server.origin}/cases/${kase.id}`);
+    await page.goto(`${app.server.origin}/cases/${kase.id}`);
     await page.getByRole('link', { name: 'Correct patient details' }).click();
     await page.waitForURL(`**/patients/${patientId}/correct?case=${kase.id}`);
     const family = page.getByLabel('Family name');
@@ -61,12 +52,12 @@ describe('patient correction and the clinician’s cases in progress, in Chromiu
   });
 
   it('registering someone with the same name and birth date as a patient asks: the same patient, or a different person with a reason', async () => {
-    const page = await browser.newPage();
-    const found = (await (await page.request.get(`${server.origin}/api/patients/search?q=Applebeck`)).json()) as {
+    const page = await app.browser.newPage();
+    const found = (await (await page.request.get(`${app.server.origin}/api/patients/search?q=Applebeck`)).json()) as {
       items: { id: number; familyName: string; givenName: string; dateOfBirth: string }[];
     };
     const twin = found.items.find((p) => p.id !== patientId)!;
-    await page.goto(`${server.origin}/cases/new`);
+    await page.goto(`${app.server.origin}/cases/new`);
     await page.getByRole('button', { name: /^Register a new patient/ }).click();
     const form = page.getByRole('form', { name: 'New patient' });
     await form.getByLabel('Lab patient ID').fill('E2E-TWIN-01');
@@ -81,18 +72,18 @@ describe('patient correction and the clinician’s cases in progress, in Chromiu
     await screenshot(page, 'register-patient-different-person');
     await group.getByRole('button', { name: 'Register as a different person' }).click();
     await form.waitFor({ state: 'detached' });
-    const after = (await (await page.request.get(`${server.origin}/api/patients/search?q=E2E-TWIN-01`)).json()) as { items: { labPatientId: string }[] };
+    const after = (await (await page.request.get(`${app.server.origin}/api/patients/search?q=E2E-TWIN-01`)).json()) as { items: { labPatientId: string }[] };
     expect(after.items.map((p) => p.labPatientId)).toEqual(['E2E-TWIN-01']);
     await page.close();
   });
 
   it('a correction that makes the name and birth date match another patient asks for a reason, then saves', async () => {
-    const page = await browser.newPage();
-    const other = (await (await page.request.get(`${server.origin}/api/patients/search?q=a`)).json()) as {
+    const page = await app.browser.newPage();
+    const other = (await (await page.request.get(`${app.server.origin}/api/patients/search?q=a`)).json()) as {
       items: { id: number; familyName: string; givenName: string; dateOfBirth: string }[];
     };
     const target = other.items.find((p) => p.id !== patientId)!;
-    await page.goto(`${server.origin}/patients/${patientId}/correct`);
+    await page.goto(`${app.server.origin}/patients/${patientId}/correct`);
     await page.getByLabel('Family name').fill(target.familyName);
     await page.getByLabel('Given name(s)').fill(target.givenName);
     await page.getByLabel('Date of birth').fill(target.dateOfBirth);
@@ -107,7 +98,7 @@ describe('patient correction and the clinician’s cases in progress, in Chromiu
     await screenshot(page, 'patient-correction-2-different-person');
     await group.getByRole('button', { name: 'Save: a different person' }).click();
     await page.getByText(/Patient details corrected/).waitFor();
-    const audit = (await (await page.request.get(`${server.origin}/api/patients/${patientId}`)).json()) as { familyName: string };
+    const audit = (await (await page.request.get(`${app.server.origin}/api/patients/${patientId}`)).json()) as { familyName: string };
     expect(audit.familyName).toBe(target.familyName);
     // Put the test name back for the clinician's view below.
     await page.getByLabel('Family name').fill('Corrigendum-Vale');
@@ -118,13 +109,13 @@ describe('patient correction and the clinician’s cases in progress, in Chromiu
   });
 
   it('the clinician sees the case under “Being worked on”, in plain words, on a phone-sized screen, with no results', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'clinician2@demo.test');
-    const theirs = (await (await page.request.get(`${server.origin}/api/reports/in-progress`)).json()) as { items: { accession: string }[] };
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'clinician2@demo.test');
+    const theirs = (await (await page.request.get(`${app.server.origin}/api/reports/in-progress`)).json()) as { items: { accession: string }[] };
     await signOut(page);
 
     await page.setViewportSize({ width: 390, height: 844 });
-    await signIn(page, server.origin, 'clinician@demo.test');
+    await signIn(page, app.server.origin, 'clinician@demo.test');
     await page.waitForURL('**/my-reports');
     const card = page.getByRole('listitem', { name: `Accession ${kase.accession}, in progress` });
     await card.waitFor();
