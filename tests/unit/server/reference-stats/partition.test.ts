@@ -61,6 +61,32 @@ describe('checkPartition', () => {
   });
 });
 
+describe('checkPartition at its boundaries', () => {
+  // Harris & Boyd 1990 [confirmed]: partition when z EXCEEDS 3·√((n₁+n₂)/240). With n₁ + n₂ = 240 the critical
+  // value is exactly 3; n 144 / SD 6 and n 96 / SD 24 give SE² = 36/144 + 576/96 = 6.25, SE = 2.5 exactly
+  // [derived by hand], so a mean difference of 7.5 is z = 3 exactly. (SD ratio limit raised to isolate z.)
+  const a = { label: 'a', n: 144, mean: 0, sd: 6 };
+  const b = { label: 'b', n: 96, mean: 7.5, sd: 24 };
+
+  it('when z equals the critical value exactly, then the groups are combined', () => {
+    const r = checkPartition(a, b, { sdRatioLimit: 10 });
+    expect(r.z).toBe(3);
+    expect(r.zCritical).toBe(3);
+    expect(r.decision).toBe('combine');
+  });
+
+  it('when z is just above the critical value, then they are partitioned', () => {
+    expect(checkPartition(a, { ...b, mean: 7.5001 }, { sdRatioLimit: 10 }).decision).toBe('partition');
+  });
+
+  it('when one SD is exactly 1.5 times the other, then that alone does not partition; just above, it does', () => {
+    // The SD rule is "more than 1.5 times" [from memory]; 3 / 2 is exactly 1.5 in binary floating point.
+    const same = { label: 'x', n: 120, mean: 10, sd: 2 };
+    expect(checkPartition(same, { ...same, label: 'y', sd: 3 }).decision).toBe('combine');
+    expect(checkPartition(same, { ...same, label: 'y', sd: 3.0001 }).decision).toBe('partition');
+  });
+});
+
 describe('summarizeGroup', () => {
   it('matches simple-statistics mean and sampleStandardDeviation', () => {
     const values = [12.1, 14.8, 9.7, 11.2, 13.3, 10.9];
