@@ -1,5 +1,6 @@
 import type { TracePoint } from '@/schemas/assay';
 import { studentTQuantile } from '../reference-stats/distributions';
+import { fitTraceRange } from './regression';
 
 /*
  * Is a stretch of a kinetic trace straight? r² cannot tell: it compares the signal's range with the noise,
@@ -206,7 +207,7 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
   let lag: FoundWindow['lag'] = null;
   if (chosen.lo > 0) {
     // The opening readings' own rate, from a line through them and the window's first reading.
-    const opening = lineSlopePerMin(trace, 0, chosen.lo);
+    const opening = fitTraceRange(trace, 0, chosen.lo).slope * 60;
     lag = {
       readings: chosen.lo,
       toS: trace[chosen.lo]!.t,
@@ -219,26 +220,6 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
 
 function finiteOr0(x: number): number {
   return Number.isFinite(x) ? x : 0;
-}
-
-/** Least-squares slope per minute of trace[lo..hi] (two readings or more). */
-function lineSlopePerMin(trace: readonly TracePoint[], lo: number, hi: number): number {
-  let st = 0;
-  let sa = 0;
-  const n = hi - lo + 1;
-  for (let i = lo; i <= hi; i += 1) {
-    st += trace[i]!.t;
-    sa += trace[i]!.a;
-  }
-  const mt = st / n;
-  const ma = sa / n;
-  let sxx = 0;
-  let sxy = 0;
-  for (let i = lo; i <= hi; i += 1) {
-    sxx += (trace[i]!.t - mt) ** 2;
-    sxy += (trace[i]!.t - mt) * (trace[i]!.a - ma);
-  }
-  return sxx > 0 ? (sxy / sxx) * 60 : 0;
 }
 
 export interface OutlierReading {
