@@ -223,7 +223,9 @@ export function wrapSegments(doc: Doc, segments: Segment[], maxWidth: number): L
     for (const piece of pieces) {
       const prev = current[current.length - 1];
       const gap = prev ? prev.space.reduce((w, r) => w + runWidth(doc, r), 0) : 0;
-      if (current.length > 0 && width + gap + piece.width > maxWidth) {
+      // Joined runs are shaped as one, so the line can measure a little wider than its pieces added up: the
+      // joined line is what must fit.
+      if (current.length > 0 && (width + gap + piece.width > maxWidth || finishLine(doc, [...current, piece]).width > maxWidth)) {
         lines.push(finishLine(doc, current));
         current = [piece];
         width = piece.width;
