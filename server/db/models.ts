@@ -12,6 +12,8 @@ import { initUploadModel } from '../modules/uploads/upload.model';
 import { initUserModel } from '../modules/users/user.model';
 import { initReportModels } from '../modules/reports/report.model';
 import { initMailModels } from '../modules/mail/outbox.model';
+import { initQcModels } from '../modules/qc/qc.model';
+import { initRunModel } from '../modules/runs/run.model';
 import { associate } from './associate';
 
 /** Binds every model class to this database. Called once per database, by createApp's callers. */
@@ -29,5 +31,7 @@ export function initModels(sequelize: Sequelize): void {
   initReferenceIntervalModel(sequelize);
   initReportModels(sequelize);
   initMailModels(sequelize);
+  initRunModel(sequelize);
+  initQcModels(sequelize);
   associate();
 }

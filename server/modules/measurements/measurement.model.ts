@@ -23,6 +23,8 @@ export class MeasurementModel extends Model<InferAttributes<MeasurementModel>, I
   declare activity: number | null;
   declare flags: CreationOptional<string>;
   declare uploadId: number | null;
+  /** The analytical run the measurement came from (null for bench entry and single-case imports). */
+  declare runId: CreationOptional<number | null>;
   declare createdById: number | null;
   declare excludedReason: CreationOptional<string | null>;
   declare excludedById: CreationOptional<number | null>;
@@ -49,6 +51,7 @@ export function initMeasurementModel(sequelize: Sequelize): void {
       activity: { type: DataTypes.FLOAT, allowNull: true },
       flags: { type: DataTypes.TEXT, allowNull: false, defaultValue: '[]' },
       uploadId: { type: DataTypes.INTEGER, allowNull: true },
+      runId: { type: DataTypes.INTEGER, allowNull: true },
       createdById: { type: DataTypes.INTEGER, allowNull: true },
       excludedReason: { type: DataTypes.TEXT, allowNull: true },
       excludedById: { type: DataTypes.INTEGER, allowNull: true },
