@@ -1,10 +1,11 @@
 import { mean, sampleStandardDeviation } from 'simple-statistics';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { defaultAssayDefinitions, demoReferenceIntervals } from '@/schemas/assay';
+import { demoReferenceIntervals } from '@/schemas/assay';
 import type { AssayCode, Measure } from '@/schemas/common';
 import { caseResultsSchema, type AssayResult, type CaseResults } from '@/schemas/results';
 import { createCase } from '../factories/cases';
 import { cuvette, recordDirectProtein } from '../factories/measurements';
+import { typedRates } from '../factories/published-factors';
 import { makeAppWithLabStaff, type Agent } from '../setup/lab-staff';
 import type { TestApp } from '../setup/test-app';
 
@@ -18,22 +19,15 @@ afterAll(() => t.close());
 
 /*
  * Activities are entered as typed rates in a 1 mL, 1 cm cuvette with 10 µL of a 4 mg/mL homogenate
- * (40 µg protein), so |ΔA/min| = activity × ε × 40 / 10⁶ (docs/domain.md §1 formula [derived]). The
+ * (40 µg protein), so |ΔA/min| = activity / the consensus factor at 40 µg (docs/domain.md §1 [confirmed]). The
  * comparisons are checked against the invented demo interval set the seed approves (src/schemas/assay.ts,
  * mean ± 2 SD), and the criteria bands against Bernier et al. 2002 tissue thresholds (< 20% major,
  * 20–30% minor of the control mean) [from memory, docs/domain.md §2].
  */
-const def = (a: AssayCode) => defaultAssayDefinitions.find((d) => d.code === a)!;
 const demo = (a: AssayCode, m: Measure) => demoReferenceIntervals.find((i) => i.assay === a && i.measure === m)!;
 
-function ratesFor(assay: AssayCode, activity: number) {
-  const d = def(assay);
-  const magnitude = (activity * d.epsilonPerMmPerCm * 40) / 1e6;
-  return {
-    totalRatePerMin: d.direction === 'rises' ? magnitude : -magnitude,
-    backgroundRatePerMin: d.background === 'none' ? null : 0,
-  };
-}
+/** Typed rates from the consensus factors at 40 µg (hand-worked literals in tests/factories/published-factors.ts). */
+const ratesFor = typedRates;
 
 /** A case whose muscle specimen carries these activities (one replicate each unless a list is given). */
 async function caseWith(activities: Partial<Record<AssayCode, number | number[]>>) {

@@ -3,15 +3,15 @@ import { storedAssayDefinitionSchema, type AssayDefinition } from '@/schemas/ass
 import type { CaseDetail, RegisterCaseInput } from '@/schemas/case';
 import type { AssayCode } from '@/schemas/common';
 import { createCase } from './cases';
+import { assert40UgCuvette, typedRates } from './published-factors';
 
 type Agent = request.Agent;
 
 /*
  * A whole workup through the laboratory's own API, as a technologist does it: register the case, record the
  * protein, type one rate per assay, submit for review. Rates are worked back from the wanted activity with the
- * Beer–Lambert relation of docs/domain.md §1 [derived]:
- *   activity = |ΔA/min| × V_reaction × 1000 / (ε × l × V_sample × protein)
- * so |ΔA/min| = activity × ε × l × V_sample × protein / (V_reaction × 1000).
+ * consensus calculation factors for 40 µg protein in a 1 mL, 1 cm cuvette (./published-factors.ts, hand-worked
+ * literals, never recomputed from the definition), so a wrong ε or Beer–Lambert factor in the server shows.
  * All values are invented fixtures.
  */
 
@@ -47,19 +47,13 @@ function check(res: request.Response, status: number, what: string): void {
 /** The protein every workup of this factory records (mg/mL). */
 export const WORKUP_PROTEIN_MG_PER_ML = PROTEIN_MG_PER_ML;
 
-/** Typed rates that give `wanted` nmol/min/mg by the relation above (background 0 where the assay subtracts one). */
+/**
+ * Typed rates that give `wanted` nmol/min/mg under the published factors (background 0 where the assay subtracts
+ * one). The definition is only named: its ε must be the published one the factors were worked from.
+ */
 export function ratesFor(def: AssayDefinition, wanted: number, specimenId: number, replicate: number) {
-  const slope = (wanted * def.epsilonPerMmPerCm * CONDITIONS.pathlengthCm * CONDITIONS.sampleVolumeUl * PROTEIN_MG_PER_ML) /
-    (CONDITIONS.reactionVolumeUl * 1000);
-  return {
-    specimenId,
-    assay: def.code,
-    replicate,
-    mode: 'rates' as const,
-    ...CONDITIONS,
-    totalRatePerMin: def.direction === 'rises' ? slope : -slope,
-    backgroundRatePerMin: def.background === 'none' ? null : 0,
-  };
+  assert40UgCuvette(CONDITIONS, PROTEIN_MG_PER_ML);
+  return { specimenId, assay: def.code, replicate, mode: 'rates' as const, ...CONDITIONS, ...typedRates(def.code, wanted) };
 }
 
 /** The current assay definitions, read through the API. */
