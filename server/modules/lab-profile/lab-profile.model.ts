@@ -18,6 +18,8 @@ export class LabProfileModel extends Model<InferAttributes<LabProfileModel>, Inf
   declare phone: string | null;
   declare timeZone: string;
   declare allowSelfApproval: CreationOptional<boolean>;
+  /** JSON array of the Westgard rules switched on; null for all of them (migration 0015). */
+  declare qcRules: CreationOptional<string | null>;
   declare version: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -33,6 +35,7 @@ export function initLabProfileModel(sequelize: Sequelize): void {
       phone: { type: DataTypes.STRING(40), allowNull: true },
       timeZone: { type: DataTypes.STRING(60), allowNull: false },
       allowSelfApproval: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+      qcRules: { type: DataTypes.TEXT, allowNull: true },
       version: editVersionColumn,
       ...timestampColumns,
     },
