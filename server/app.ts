@@ -19,6 +19,7 @@ import { casesRouter } from './modules/cases/cases.router';
 import { labProfileRouter } from './modules/lab-profile/lab-profile.router';
 import { patientsRouter } from './modules/patients/patients.router';
 import { referenceIntervalsRouter } from './modules/reference-intervals/reference-intervals.router';
+import { qcRouter } from './modules/qc/qc.router';
 import { specimensRouter } from './modules/specimens/specimens.router';
 import { usersRouter } from './modules/users/users.router';
 import { measurementsRouter } from './modules/measurements/measurements.router';
@@ -121,6 +122,7 @@ export function createApp(opts: AppOptions): Express {
   app.use(casesRouter(sequelize));
   app.use(specimensRouter(sequelize));
   app.use(referenceIntervalsRouter(sequelize));
+  app.use(qcRouter(sequelize));
 
   const mailer = opts.mailer ?? createDisabledMailer(config.mail.from);
   app.use(reportsRouter(sequelize, { publicOrigin: config.publicOrigin }));

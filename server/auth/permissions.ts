@@ -63,6 +63,19 @@ export const permissions = {
   'PATCH /api/reference-intervals/:id': DIRECTOR,
   'POST /api/reference-intervals/:id/approve': DIRECTOR,
   'POST /api/reference-intervals/:id/retire': DIRECTOR,
+  // Quality control: the stateless Westgard evaluation and the laboratory's rules; control materials and their
+  // targets (technologists read them, directors create, edit, retire, set and approve targets).
+  'POST /api/qc/evaluate': LAB,
+  'GET /api/qc/rules': LAB,
+  'PUT /api/qc/rules': DIRECTOR,
+  'GET /api/control-materials': LAB,
+  'POST /api/control-materials': DIRECTOR,
+  'GET /api/control-materials/:id': LAB,
+  'PATCH /api/control-materials/:id': DIRECTOR,
+  'GET /api/control-materials/:id/chart': LAB,
+  'POST /api/control-materials/:id/targets': DIRECTOR,
+  'POST /api/control-materials/:id/targets/establish': DIRECTOR,
+  'POST /api/control-targets/:id/approve': DIRECTOR,
   // Signed reports: laboratory staff read all; a clinician reads the cases they referred (the service filters,
   // and answers 404 for anything else); administrators none. Only a director signs or corrects.
   'GET /api/reports': [...LAB, 'clinician'],
