@@ -31,7 +31,7 @@ export default {
           700: '#7a421d',
         },
         paper: { DEFAULT: '#f7f5f0', raised: '#ffffff', sunk: '#eeebe3', line: '#dcd7cb' },
-        ink: { DEFAULT: '#1e2522', soft: '#4a5550', faint: '#77817c' },
+        ink: { DEFAULT: '#1e2522', soft: '#4a5550', faint: '#5f6964' },
         below: { DEFAULT: '#9b2c3a', bg: '#f9e9eb' },
         above: { DEFAULT: '#6b4aa0', bg: '#efe9f8' },
         within: { DEFAULT: '#2f6b3a', bg: '#e7f3e8' },

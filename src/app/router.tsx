@@ -6,6 +6,7 @@ import { AppShell } from './routes/app-shell';
 import ForbiddenPage from './routes/forbidden';
 import { RequireRole } from './routes/require-role';
 import { RouteError } from './routes/route-error';
+import { StartingUp } from './routes/starting-up';
 
 /** A lazily loaded page behind the role check of its entry in paths. */
 function page(name: PathName, load: () => Promise<{ default: React.ComponentType }>): RouteObject {
@@ -39,12 +40,15 @@ export function createAppRouter(queryClient: QueryClient) {
       path: paths.signIn.path,
       lazy: () => import('./routes/sign-in').then((m) => ({ Component: m.default })),
       errorElement: <RouteError />,
+      hydrateFallbackElement: <StartingUp />,
     },
     {
       path: '/',
       loader: requireSession,
       element: <AppShell />,
       errorElement: <RouteError />,
+      // Shown while the first page's session check and code load (without it React Router warns on every load).
+      hydrateFallbackElement: <StartingUp />,
       children: [
         {
           index: true,

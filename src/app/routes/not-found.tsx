@@ -1,7 +1,9 @@
 import { Link } from 'react-router-dom';
 import { paths } from '@/config/paths';
+import { usePageTitle } from '@/hooks/use-page-title';
 
 export default function NotFoundPage() {
+  usePageTitle('Page not found');
   return (
     <div className="mx-auto max-w-xl py-16 text-center">
       <p className="font-mono text-sm text-copper-600">404</p>

@@ -1,6 +1,8 @@
 import { isRouteErrorResponse, useRouteError } from 'react-router-dom';
+import { usePageTitle } from '@/hooks/use-page-title';
 
 export function RouteError() {
+  usePageTitle('Page could not be shown');
   const err = useRouteError();
   const text = isRouteErrorResponse(err) ? `${err.status} ${err.statusText}` : err instanceof Error ? err.message : 'Unknown error';
   return (

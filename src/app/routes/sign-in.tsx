@@ -2,8 +2,10 @@ import { useNavigate, useSearchParams } from 'react-router-dom';
 import { Wordmark } from '@/components/ui/wordmark';
 import { landingFor } from '@/config/paths';
 import { SignInForm } from '@/features/auth/components/sign-in-form';
+import { usePageTitle } from '@/hooks/use-page-title';
 
 export default function SignInPage() {
+  usePageTitle('Sign in');
   const navigate = useNavigate();
   const [params] = useSearchParams();
   const next = params.get('next');

@@ -1,6 +1,9 @@
 import type { ReactNode } from 'react';
+import { usePageTitle } from '@/hooks/use-page-title';
 
-export function PageHeader({ title, lead, actions }: { title: string; lead?: ReactNode; actions?: ReactNode }) {
+/** The page's heading; it also names the browser tab ("<docTitle or title> · Cristae"). */
+export function PageHeader({ title, lead, actions, docTitle }: { title: string; lead?: ReactNode; actions?: ReactNode; docTitle?: string }) {
+  usePageTitle(docTitle ?? title);
   return (
     <header className="mb-6 flex flex-wrap items-end justify-between gap-4 border-b border-paper-line pb-4">
       <div>

@@ -1,11 +1,13 @@
 import { Wordmark } from '@/components/ui/wordmark';
 import { ChangePasswordForm } from '@/features/auth/components/change-password-form';
+import { usePageTitle } from '@/hooks/use-page-title';
 
 /**
  * Shown instead of every page while the account's password is one an administrator set: the person chooses
  * their own before anything else (the server refuses every other request with PASSWORD_CHANGE_REQUIRED).
  */
 export function PasswordRequiredScreen({ name, onSignOut }: { name: string; onSignOut: () => void }) {
+  usePageTitle('Choose your password');
   return (
     <div className="flex min-h-screen items-center justify-center bg-paper p-8">
       <div className="w-full max-w-md rounded-card border border-paper-line bg-paper-raised p-8 shadow-card">

@@ -34,6 +34,7 @@ export default function CaseAssaysPage() {
     <>
       <PageHeader
         title={`Assay bench · ${workup.accession}`}
+        docTitle={`${workup.accession} assay bench`}
         lead={`${workup.patientName} · ${caseStateLabels[workup.state as CaseState] ?? workup.state}`}
         actions={
           <>

@@ -23,6 +23,7 @@ export default function CaseResultsPage() {
     <>
       <PageHeader
         title={`Results · ${results.accession}`}
+        docTitle={`${results.accession} results`}
         lead={`${caseStateLabels[results.state]} · ${results.frozen ? 'frozen at submission' : 'live'}`}
         actions={
           <>

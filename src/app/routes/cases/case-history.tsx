@@ -14,11 +14,11 @@ export default function CaseHistoryPage() {
   return (
     <>
       <nav aria-label="Breadcrumb" className="mb-2 text-sm text-ink-soft">
-        <Link to={paths.cases.href()} className="text-matrix-700 hover:underline">
+        <Link to={paths.cases.href()} className="text-matrix-700 underline">
           Cases
         </Link>
         <span aria-hidden="true"> / </span>
-        <Link to={paths.caseDetail.href(id)} className="font-mono text-matrix-700 hover:underline">
+        <Link to={paths.caseDetail.href(id)} className="font-mono text-matrix-700 underline">
           {detail.data?.accession ?? `case ${id}`}
         </Link>
         <span aria-hidden="true"> / </span>
@@ -26,6 +26,7 @@ export default function CaseHistoryPage() {
       </nav>
       <PageHeader
         title={detail.data ? `History of ${detail.data.accession}` : 'Case history'}
+        docTitle={detail.data ? `${detail.data.accession} history` : undefined}
         lead="Every change to this case, its specimens and its patient's record, newest first. The trail cannot be edited or deleted."
         actions={detail.data ? <StatePill state={detail.data.state} /> : null}
       />

@@ -55,6 +55,7 @@ function ReviewCase({ caseId }: { caseId: number }) {
     <>
       <PageHeader
         title={`${c.accession} · ${c.patient.familyName}, ${c.patient.givenName}`}
+        docTitle={`${c.accession} sign-out review`}
         lead={
           <Link className="text-matrix-700 underline" to={paths.review.href()}>
             ← Back to the queue

@@ -40,7 +40,7 @@ export function CaseDetailLayout({
   return (
     <div className="flex flex-col gap-6">
       <nav aria-label="Breadcrumb" className="-mb-2 text-sm text-ink-soft">
-        <Link to={paths.cases.href()} className="text-matrix-700 hover:underline">
+        <Link to={paths.cases.href()} className="text-matrix-700 underline">
           Cases
         </Link>
         <span aria-hidden="true"> / </span>

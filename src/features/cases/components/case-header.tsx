@@ -2,6 +2,7 @@ import { useState } from 'react';
 import { Link } from 'react-router-dom';
 import { Button } from '@/components/ui/button';
 import { paths } from '@/config/paths';
+import { usePageTitle } from '@/hooks/use-page-title';
 import type { CaseDetail, Patient } from '@/schemas/case';
 import { formatLabDateTime } from '../utils/lab-time';
 import { CancelCaseForm } from './cancel-case-form';
@@ -32,6 +33,7 @@ function Fact({ label, children, wide = false }: { label: string; children: Reac
 
 /** The case at a glance: accession, state in words, patient, referral; and the edits allowed in this state. */
 export function CaseHeader({ detail, timeZone, onReload }: { detail: CaseDetail; timeZone: string; onReload: () => void }) {
+  usePageTitle(`${detail.accession} case`);
   const [panel, setPanel] = useState<'none' | 'edit' | 'cancel'>('none');
   const p = detail.patient;
   const canChange = editable.has(detail.state);

@@ -33,9 +33,9 @@ function IntervalRows({ items }: { items: StoredInterval[] }) {
             <Link
               className="font-medium text-matrix-700 underline hover:text-matrix-900"
               to={paths.intervalDetail.href(i.id)}
-              aria-label={`${i.assay} ${measureNames[i.measure].toLowerCase()}, ${ageText(i.ageBand)}, version ${i.version}: details and history`}
             >
               v{i.version}
+              <span className="sr-only">{` of ${i.assay} ${measureNames[i.measure].toLowerCase()}, ${ageText(i.ageBand)}: details and history`}</span>
             </Link>
           </td>
           <td className="py-1.5 pr-3">
