@@ -30,6 +30,7 @@ import { createDisabledMailer, type Mailer } from './modules/mail/mailer';
 import { mailRouter } from './modules/mail/mail.router';
 import { reportsRouter } from './modules/reports/reports.router';
 import { reviewRouter } from './modules/review/review.router';
+import { registryRouter } from './modules/registry/registry.router';
 
 export type AppOptions = {
   sequelize: Sequelize;
@@ -133,6 +134,7 @@ export function createApp(opts: AppOptions): Express {
   app.use(uploadsRouter(sequelize));
   app.use(plateMapsRouter(sequelize));
   app.use(resultsRouter(sequelize));
+  app.use(registryRouter(sequelize));
 
   app.use('/api', (req, _res, next) => next(notFound('API route', `${req.method} ${req.path}`)));
 

@@ -117,6 +117,12 @@ export const permissions = {
   'DELETE /api/plate-maps/:id': LAB,
   'GET /api/cases/:id/results': LAB,
   'POST /api/cases/:id/submit': LAB,
+  // Cohorts: signed results searched as a group, their plots, and each user's own saved searches.
+  'GET /api/registry/cohort': LAB,
+  'GET /api/registry/cohort/plots': LAB,
+  'GET /api/registry/saved-searches': LAB,
+  'POST /api/registry/saved-searches': LAB,
+  'DELETE /api/registry/saved-searches/:id': LAB,
 } as const satisfies Record<string, Access>;
 
 export type RouteKey = keyof typeof permissions;

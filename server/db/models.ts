@@ -14,6 +14,7 @@ import { initReportModels } from '../modules/reports/report.model';
 import { initMailModels } from '../modules/mail/outbox.model';
 import { initQcModels } from '../modules/qc/qc.model';
 import { initRunModel } from '../modules/runs/run.model';
+import { initSavedSearchModel } from '../modules/registry/saved-search.model';
 import { associate } from './associate';
 
 /** Binds every model class to this database. Called once per database, by createApp's callers. */
@@ -33,5 +34,6 @@ export function initModels(sequelize: Sequelize): void {
   initMailModels(sequelize);
   initRunModel(sequelize);
   initQcModels(sequelize);
+  initSavedSearchModel(sequelize);
   associate();
 }

@@ -22,6 +22,7 @@ import { prepareReportNotice, queueReportNotice, type NoticeDeps, type PreparedN
 import { nudgeNoticeWorkers } from '../mail/notice-worker';
 import { getCaseResults } from '../results/results.service';
 import { findUserById } from '../users/users.repository';
+import { recordSignedCohort } from '../registry/cohort-signing';
 import { proposeInterpretation } from '../review/draft-interpretation';
 import {
   buildReportDocument,
@@ -218,6 +219,7 @@ export async function signCase(
       },
       t,
     );
+    await recordSignedCohort(sequelize, { reportId, version: 1, status: 'final', document: r.document }, detail, material.resultsBySpecimen, t);
     if (notice) await queueReportNotice(notice, reportId, t);
     return { reportId, after };
   });
@@ -320,6 +322,7 @@ export async function correctReport(
       },
       t,
     );
+    await recordSignedCohort(sequelize, { reportId, version, status: 'corrected', document: r.document }, detail, material.resultsBySpecimen, t);
     if (notice) await queueReportNotice(notice, reportId, t);
     return { reportId, after };
   });
