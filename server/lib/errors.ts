@@ -19,6 +19,7 @@ const defaultStatus: Record<ErrorCode, number> = {
   CONFLICT: 409,
   STALE_VERSION: 409,
   INVALID_STATE: 409,
+  QC_NOT_ACCEPTED: 409,
   TOO_LARGE: 413,
   TOO_MANY_REQUESTS: 429,
   INTERNAL: 500,

@@ -15,6 +15,8 @@ export const errorCodes = [
   'CONFLICT',
   'STALE_VERSION',
   'INVALID_STATE',
+  /** A result to be submitted comes from an analytical run whose quality control was rejected or not evaluated. */
+  'QC_NOT_ACCEPTED',
   'TOO_LARGE',
   'TOO_MANY_REQUESTS',
   'FILE_REJECTED',

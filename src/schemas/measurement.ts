@@ -7,7 +7,7 @@ import {
   tracePointSchema,
 } from './assay';
 import { assayCodeSchema, plainText } from './common';
-import { plateMapWellsSchema, wellIdSchema } from './plate';
+import { anyWellIdSchema, plateMapWellsSchema } from './plate';
 
 /*
  * Assay entry on a case: one measurement is one replicate of one assay on one specimen, entered as typed
@@ -146,7 +146,7 @@ export const storedInputsSchema = z.discriminatedUnion('mode', [
     uploadId: z.number().int(),
     filename: z.string(),
     specimenRef: z.string(),
-    wells: z.object({ total: wellIdSchema, background: wellIdSchema.nullable(), blank: wellIdSchema.nullable() }),
+    wells: z.object({ total: anyWellIdSchema, background: anyWellIdSchema.nullable(), blank: anyWellIdSchema.nullable() }),
     total: z.array(tracePointSchema),
     background: z.array(tracePointSchema).nullable(),
     blank: z.array(tracePointSchema).nullable(),
@@ -352,7 +352,7 @@ export const plateGroupPreviewSchema = z.object({
   specimenLabel: z.string(),
   assay: assayCodeSchema,
   replicate: z.number().int(),
-  wells: z.object({ total: wellIdSchema, background: wellIdSchema.nullable(), blank: wellIdSchema.nullable() }),
+  wells: z.object({ total: anyWellIdSchema, background: anyWellIdSchema.nullable(), blank: anyWellIdSchema.nullable() }),
   total: z.array(tracePointSchema),
   background: z.array(tracePointSchema).nullable(),
   blank: z.array(tracePointSchema).nullable(),

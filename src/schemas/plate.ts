@@ -28,6 +28,58 @@ export const plateWellIds: readonly string[] = plateRowLetters.flatMap((row) =>
   Array.from({ length: plateColumnCount }, (_, i) => `${row}${i + 1}`),
 );
 
+/** Plate formats Cristae reads: 24, 96 and 384 wells. */
+export const plateFormats = [24, 96, 384] as const;
+export type PlateFormat = (typeof plateFormats)[number];
+export const plateFormatSchema = z.literal(plateFormats, { error: 'Plate format must be 24, 96 or 384 wells' });
+
+// Rows × columns of the standard footprints, A1 top left (ANSI/SLAS 4-2004 well positions) [from memory]:
+// 24 wells = 4 × 6 (A–D, 1–6), 96 = 8 × 12 (A–H, 1–12), 384 = 16 × 24 (A–P, 1–24).
+export const plateDimensions: Record<PlateFormat, { rows: number; columns: number }> = {
+  24: { rows: 4, columns: 6 },
+  96: { rows: 8, columns: 12 },
+  384: { rows: 16, columns: 24 },
+};
+
+const ROW_LETTERS = 'ABCDEFGHIJKLMNOP';
+
+/** The row letters of a plate format, A first. */
+export function plateRowsOf(format: PlateFormat): string[] {
+  return [...ROW_LETTERS.slice(0, plateDimensions[format].rows)];
+}
+
+/** Every well id of a plate format in reading order (A1, A2, …, then B1, …). */
+export function wellIdsOf(format: PlateFormat): string[] {
+  const { columns } = plateDimensions[format];
+  return plateRowsOf(format).flatMap((row) => Array.from({ length: columns }, (_, i) => `${row}${i + 1}`));
+}
+
+/** "A1 to H12 (row letter A–H, column 1–12)" for messages. */
+export function describeWellRange(format: PlateFormat): string {
+  const { rows, columns } = plateDimensions[format];
+  const lastRow = ROW_LETTERS[rows - 1]!;
+  return `A1 to ${lastRow}${columns} (row letter A–${lastRow}, column 1–${columns})`;
+}
+
+/**
+ * Reads a well name as people and programs write it ("B3", "b3", "B03", " B3 ") and returns the canonical id,
+ * or null when it is not a well of a plate of this format.
+ */
+export function normaliseWellIdFor(raw: string, format: PlateFormat): string | null {
+  const m = /^([A-Za-z])0*(\d{1,2})$/.exec(raw.trim());
+  if (!m) return null;
+  const row = ROW_LETTERS.indexOf(m[1]!.toUpperCase());
+  const col = Number(m[2]);
+  const { rows, columns } = plateDimensions[format];
+  if (row < 0 || row >= rows || col < 1 || col > columns) return null;
+  return `${ROW_LETTERS[row]}${col}`;
+}
+
+/** A well of the largest plate (384: A1 to P24) in canonical form; shapes that hold wells of any format. */
+export const anyWellIdSchema = z
+  .string()
+  .regex(/^[A-P](?:[1-9]|1\d|2[0-4])$/, 'Well must be A1 to P24 (row A–P, column 1–24)');
+
 const canonicalWellPattern = /^[A-H](?:[1-9]|1[0-2])$/;
 
 /** A well in canonical form: capital row letter, column number without leading zero. */
@@ -41,11 +93,7 @@ export type WellId = z.infer<typeof wellIdSchema>;
  * canonical id, or null when it is not a well of a 96-well plate.
  */
 export function normaliseWellId(raw: string): WellId | null {
-  const m = /^([A-Ha-h])0*(\d{1,2})$/.exec(raw.trim());
-  if (!m) return null;
-  const col = Number(m[2]);
-  if (col < 1 || col > plateColumnCount) return null;
-  return `${m[1]!.toUpperCase()}${col}`;
+  return normaliseWellIdFor(raw, 96);
 }
 
 /** What a mapped well holds within its specimen × assay × replicate group. */
@@ -85,57 +133,56 @@ export function plateGroupKey(e: GroupFields): string {
   return `${e.specimenRef}\u0000${e.assay}\u0000${e.replicate}`;
 }
 
+/** An entry as the cross-entry rules see it. */
+type CheckedEntry = GroupFields & { well: string; role: WellRole };
+
 /**
- * Rules across entries:
+ * Rules across entries (the single-case plate map and the run layout share them):
  * - a well is listed once, except a shared blank: a well may serve as the blank of several groups
  *   if every listing of it has role "blank";
  * - each specimen × assay × replicate group has exactly one total and at most one background and
  *   one blank.
+ * Each problem is reported with the entry's index and field; `describeGroup` names a group (default "S1 CI replicate 1").
  */
+export function refinePlateEntries<E extends CheckedEntry>(
+  entries: E[],
+  report: (index: number, field: 'well' | 'role', message: string) => void,
+  describeGroup: (e: E) => string = groupLabel,
+): void {
+  const byWell = new Map<string, number>();
+  const byGroupRole = new Map<string, number>();
+  const groupsWithTotal = new Set<string>();
+  entries.forEach((e, i) => {
+    const firstIndex = byWell.get(e.well);
+    if (firstIndex === undefined) {
+      byWell.set(e.well, i);
+    } else {
+      const first = entries[firstIndex]!;
+      if (first.role !== 'blank' || e.role !== 'blank') {
+        report(i, 'well', `Well ${e.well} is already mapped (entry ${firstIndex + 1}); only a blank can be shared`);
+      }
+    }
+    const group = describeGroup(e);
+    const key = `${plateGroupKey(e)}\u0000${e.role}`;
+    const seen = byGroupRole.get(key);
+    if (seen === undefined) byGroupRole.set(key, i);
+    else report(i, 'role', `${group} already has a ${e.role} well (${entries[seen]!.well})`);
+    if (e.role === 'total') groupsWithTotal.add(plateGroupKey(e));
+  });
+  entries.forEach((e, i) => {
+    if (e.role !== 'total' && !groupsWithTotal.has(plateGroupKey(e))) {
+      report(i, 'role', `${describeGroup(e)} has a ${e.role} well (${e.well}) but no total well`);
+    }
+  });
+}
+
 export const plateMapWellsSchema = z
   .array(plateMapEntrySchema)
   .min(1, 'A plate map needs at least one well')
   .max(384, 'A plate map lists at most 384 entries')
-  .superRefine((entries, ctx) => {
-    const byWell = new Map<string, number>();
-    const byGroupRole = new Map<string, number>();
-    const groupsWithTotal = new Set<string>();
-    entries.forEach((e, i) => {
-      const firstIndex = byWell.get(e.well);
-      if (firstIndex === undefined) {
-        byWell.set(e.well, i);
-      } else {
-        const first = entries[firstIndex]!;
-        if (first.role !== 'blank' || e.role !== 'blank') {
-          ctx.addIssue({
-            code: 'custom',
-            path: [i, 'well'],
-            message: `Well ${e.well} is already mapped (entry ${firstIndex + 1}); only a blank can be shared`,
-          });
-        }
-      }
-      const group = groupLabel(e);
-      const key = `${plateGroupKey(e)}\u0000${e.role}`;
-      const seen = byGroupRole.get(key);
-      if (seen === undefined) byGroupRole.set(key, i);
-      else
-        ctx.addIssue({
-          code: 'custom',
-          path: [i, 'role'],
-          message: `${group} already has a ${e.role} well (${entries[seen]!.well})`,
-        });
-      if (e.role === 'total') groupsWithTotal.add(plateGroupKey(e));
-    });
-    entries.forEach((e, i) => {
-      if (e.role !== 'total' && !groupsWithTotal.has(plateGroupKey(e))) {
-        ctx.addIssue({
-          code: 'custom',
-          path: [i, 'role'],
-          message: `${groupLabel(e)} has a ${e.role} well (${e.well}) but no total well`,
-        });
-      }
-    });
-  });
+  .superRefine((entries, ctx) =>
+    refinePlateEntries(entries, (i, field, message) => ctx.addIssue({ code: 'custom', path: [i, field], message })),
+  );
 
 export const plateMapSchema = z.object({
   name: z.string().trim().min(1, 'Name is required').max(120, 'Name is at most 120 characters').superRefine(plainText('Name')),
@@ -220,7 +267,7 @@ export const plateDelimiterSchema = z.enum(['comma', 'tab']);
 export type PlateDelimiter = z.infer<typeof plateDelimiterSchema>;
 
 export const parsedWellSchema = z.object({
-  well: wellIdSchema,
+  well: anyWellIdSchema,
   /** The header cell as written in the file (e.g. "b03"). */
   header: z.string(),
   columnNumber: z.number().int().min(2),
@@ -270,9 +317,9 @@ export const mappedTraceGroupSchema = z.object({
   assay: assayCodeSchema,
   replicate: z.number().int().min(1),
   wells: z.object({
-    total: wellIdSchema,
-    background: wellIdSchema.optional(),
-    blank: wellIdSchema.optional(),
+    total: anyWellIdSchema,
+    background: anyWellIdSchema.optional(),
+    blank: anyWellIdSchema.optional(),
   }),
   total: z.array(tracePointSchema),
   background: z.array(tracePointSchema).optional(),

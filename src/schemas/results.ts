@@ -3,6 +3,7 @@ import { diagnosticCriteriaSchema, flagSchema, patternKinds, valueBasisSchema } 
 import { caseStateSchema } from './case';
 import { assayCodeSchema, measureSchema, specimenTypeSchema, type AssayCode } from './common';
 import { measurementExclusionSchema } from './measurement';
+import { runQcStampSchema } from './run';
 
 /*
  * The results of one case: every assay of every specimen with its replicates, ratios and comparisons with
@@ -74,6 +75,8 @@ export const replicateResultSchema = z.object({
   flags: z.array(flagSchema),
   /** Set when the replicate is left out of the mean, SD, CV, ratios and pattern; absent in older snapshots. */
   excluded: measurementExclusionSchema.nullable().optional(),
+  /** The analytical run the replicate was read on and its quality-control release; null when not from a run. */
+  run: runQcStampSchema.nullable().optional(),
 });
 export type ReplicateResult = z.infer<typeof replicateResultSchema>;
 
