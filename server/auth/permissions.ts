@@ -84,6 +84,8 @@ export const permissions = {
   'GET /api/reports/in-progress': ['clinician'],
   'GET /api/reports/:id': [...LAB, 'clinician'],
   'GET /api/reports/:id/pdf': [...LAB, 'clinician'],
+  // The same signed version as an HL7 FHIR R4 Bundle: the PDF's readers.
+  'GET /api/reports/:id/fhir': [...LAB, 'clinician'],
   'GET /api/cases/:id/reports': LAB,
   'POST /api/cases/:id/sign': DIRECTOR,
   'POST /api/cases/:id/correct': DIRECTOR,

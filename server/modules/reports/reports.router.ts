@@ -5,6 +5,7 @@ import { amendCaseInputSchema, correctReportInputSchema, signCaseInputSchema } f
 import { route } from '../../lib/route';
 import type { NoticeDeps } from '../mail/notices.service';
 import { amendCase } from './report-amendment.service';
+import { getReportFhirFor } from './report-fhir.service';
 import { correctReport, signCase } from './report-signing.service';
 import * as reports from './reports.service';
 
@@ -33,6 +34,16 @@ export function reportsRouter(sequelize: Sequelize, notices: NoticeDeps): Router
       'Cache-Control': 'private, no-cache',
     });
     res.send(file.pdf);
+  });
+  route(r, 'GET /api/reports/:id/fhir', { params: idParamsSchema }, async ({ params }, req, res) => {
+    const { bundle, filename } = await getReportFhirFor(req.user!, params.id);
+    // The FHIR JSON media type (hl7.org/fhir/R4/http.html#mime-type).
+    res.set({
+      'Content-Type': 'application/fhir+json; charset=utf-8',
+      'Content-Disposition': `attachment; filename="${filename}"`,
+      'Cache-Control': 'private, no-cache',
+    });
+    res.send(JSON.stringify(bundle));
   });
   route(r, 'GET /api/cases/:id/reports', { params: idParamsSchema }, async ({ params }, _req, res) => {
     res.json({ items: await reports.listReportsOfCase(params.id) });

@@ -68,14 +68,17 @@ export async function getReportFor(user: User, id: number): Promise<ReportDetail
   return (await details([report]))[0]!;
 }
 
-/** The stored PDF, exactly as rendered at signing. */
-export async function getReportPdfFor(user: User, id: number): Promise<{ pdf: Buffer; sha256: string; filename: string }> {
+/** The stored PDF, exactly as rendered at signing, with the report it belongs to (same readers as the report). */
+export async function getReportPdfFor(
+  user: User,
+  id: number,
+): Promise<{ pdf: Buffer; sha256: string; filename: string; report: repo.StoredReport }> {
   const report = await repo.findReport(id);
   if (!report || !mayRead(user, report)) throw notFound('Report', id);
   const file = await repo.findReportPdf(id);
   if (!file) throw notFound('Report', id);
   const safeAccession = report.accession.replace(/[^A-Za-z0-9._-]+/g, '-');
-  return { pdf: file.pdf, sha256: file.pdfSha256, filename: `report-${safeAccession}-v${report.version}.pdf` };
+  return { pdf: file.pdf, sha256: file.pdfSha256, filename: `report-${safeAccession}-v${report.version}.pdf`, report };
 }
 
 /** Every version of one case's report (laboratory pages). */
