@@ -1,3 +1,4 @@
+import { CsvError, parse } from 'csv-parse/sync';
 import type { ControlCsvIssue } from '@/schemas/reference-interval';
 
 export interface CsvRecord {
@@ -7,58 +8,31 @@ export interface CsvRecord {
 }
 
 /**
- * Splits comma-separated text into records (RFC 4180 quoting: "a,b" and "" for a literal quote;
- * CRLF, LF or CR line ends). Returns an issue instead of records when a quote is never closed.
+ * Splits comma-separated text into records with csv-parse (RFC 4180 quoting: "a,b" and "" for a literal quote;
+ * CRLF, LF or CR line ends, mixed in one file too). Rows may differ in length (the caller says which row is off);
+ * blank lines are kept as records so row numbers stay those of the file; a quote inside an unquoted cell is kept
+ * as a character. Returns an issue instead of records when a quote is never closed.
  */
 export function splitCsvRecords(text: string): { records: CsvRecord[] } | { issue: ControlCsvIssue } {
-  const records: CsvRecord[] = [];
-  let cells: string[] = [];
-  let cell = '';
-  let inQuotes = false;
-  let quoteRow = 0;
-  let i = 0;
-  const endRecord = (): void => {
-    cells.push(cell);
-    records.push({ row: records.length + 1, cells });
-    cells = [];
-    cell = '';
-  };
-  while (i < text.length) {
-    const ch = text[i];
-    if (inQuotes) {
-      if (ch === '"') {
-        if (text[i + 1] === '"') {
-          cell += '"';
-          i += 2;
-          continue;
-        }
-        inQuotes = false;
-      } else {
-        cell += ch;
-      }
-      i++;
-      continue;
+  try {
+    const parsed = parse(text, {
+      relax_column_count: true,
+      relax_quotes: true,
+      skip_empty_lines: false,
+      ltrim: true,
+      record_delimiter: ['\r\n', '\n', '\r'],
+      info: true,
+    }) as { record: string[]; info: { records: number } }[];
+    return { records: parsed.map(({ record, info }) => ({ row: info.records, cells: record })) };
+  } catch (err) {
+    if (err instanceof CsvError && err.code === 'CSV_QUOTE_NOT_CLOSED') {
+      // The quote opened in the record after the last complete one.
+      const complete = Number((err as CsvError & { records?: number }).records ?? 0);
+      return { issue: { row: complete + 1, column: null, message: 'A quoted cell is never closed' } };
     }
-    if (ch === '"' && cell.trim() === '') {
-      inQuotes = true;
-      quoteRow = records.length + 1;
-      cell = '';
-    } else if (ch === ',') {
-      cells.push(cell);
-      cell = '';
-    } else if (ch === '\r' || ch === '\n') {
-      endRecord();
-      if (ch === '\r' && text[i + 1] === '\n') i++;
-    } else {
-      cell += ch;
-    }
-    i++;
+    if (err instanceof CsvError) return { issue: { row: null, column: null, message: `The file cannot be read as CSV: ${err.message}` } };
+    throw err;
   }
-  if (inQuotes) {
-    return { issue: { row: quoteRow, column: null, message: 'A quoted cell is never closed' } };
-  }
-  if (cell !== '' || cells.length > 0) endRecord();
-  return { records };
 }
 
 export function isBlankRecord(record: CsvRecord): boolean {
