@@ -41,6 +41,12 @@ function expected(method: string, path: string): Expected {
     // derive, verify and partition are calculations a director does while managing intervals.
     return method === 'get' ? LAB : ['director'];
   }
+  // Quality control (issue 12): the stateless Westgard evaluation is for technologists and directors; the rule
+  // selection, control materials and their targets are read by the laboratory and changed only by a director.
+  if (path === '/api/qc/evaluate') return LAB;
+  if (path === '/api/qc/rules' || path.startsWith('/api/control-materials') || path.startsWith('/api/control-targets')) {
+    return method === 'get' ? LAB : ['director'];
+  }
   // Everything else is assay work on cases: the laboratory only.
   return LAB;
 }
