@@ -41,6 +41,10 @@ function expected(method: string, path: string): Expected {
     // derive, verify and partition are calculations a director does while managing intervals.
     return method === 'get' ? LAB : ['director'];
   }
+  // The registry export, identified or de-identified, is the director's alone (issue 13: "directors only; others 403").
+  if (path === '/api/registry/export.csv') return ['director'];
+  // Cohort search, its plots and saved searches: directors and technologists (issue 13), never clinicians or admins.
+  if (path.startsWith('/api/registry/cohort') || path.startsWith('/api/registry/saved-searches')) return LAB;
   // Quality control (issue 12): the stateless Westgard evaluation is for technologists and directors; the rule
   // selection, control materials and their targets are read by the laboratory and changed only by a director.
   if (path === '/api/qc/evaluate') return LAB;
