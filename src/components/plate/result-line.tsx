@@ -1,5 +1,5 @@
 import type { CalculationResult } from '@/schemas/assay';
-import { fmt } from '../utils/format';
+import { fmt } from '@/utils/format';
 import { FlagList } from '@/components/ui/flag-list';
 
 /** One computed result: the activity, the slopes behind it, the window and the flags. */

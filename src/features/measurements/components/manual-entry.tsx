@@ -9,7 +9,7 @@ import { createMeasurementInputSchema, parsePastedReadings, type CreateMeasureme
 import { useCreateMeasurement, usePreviewMeasurement, type MeasurementPreview } from '../api/save-measurement';
 import { fmt } from '../utils/format';
 import { ConditionFields, RateFields, WindowFields } from './entry-fields';
-import { ResultLine } from './result-line';
+import { ResultLine } from '@/components/plate/result-line';
 
 type Mode = 'rates' | 'traces';
 const numberOrNaN = (s: string) => (s.trim() === '' ? Number.NaN : Number(s));

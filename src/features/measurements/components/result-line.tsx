@@ -1,0 +1,1 @@
+export { ResultLine } from '@/components/plate/result-line';
