@@ -9,7 +9,8 @@ import type { AppConfig } from './config';
 import { requireSameOrigin } from './auth/origin-check';
 import { createPassport } from './auth/passport';
 import { notFound, toHttpError } from './lib/errors';
-import { cacheSessionReads } from './auth/session-cache';
+import { cacheSessionReads, extendSessions } from './auth/session-cache';
+import { serveClient, serveClientIndex } from './client-assets';
 import { logError } from './lib/log';
 import { route } from './lib/route';
 import { assayDefinitionsRouter } from './modules/assay-definitions/assay-definitions.router';
@@ -87,6 +88,10 @@ export function createApp(opts: AppOptions): Express {
   if (!opts.expireSessions) store.stopExpiringSessions();
   cacheSessionReads(store);
 
+  // The built client is answered before any API middleware (no session, body parsing or routing for assets).
+  const client = opts.clientDir && fs.existsSync(path.join(opts.clientDir, 'index.html')) ? opts.clientDir : null;
+  if (client) app.use(serveClient(client));
+
   app.use('/api', requireSameOrigin(config.allowedOrigins));
   app.use('/api', express.json({ limit: JSON_BODY_LIMIT }));
   app.use(
@@ -97,7 +102,8 @@ export function createApp(opts: AppOptions): Express {
       store,
       resave: false,
       saveUninitialized: false,
-      rolling: true,
+      // Rolling expiry in coarse steps (extendSessions): the cookie is not re-signed and re-sent on every answer.
+      rolling: false,
       cookie: {
         httpOnly: true,
         sameSite: 'lax',
@@ -106,6 +112,7 @@ export function createApp(opts: AppOptions): Express {
       },
     }),
   );
+  app.use('/api', extendSessions());
   const passport = createPassport(sequelize);
   app.use('/api', passport.initialize(), passport.session());
 
@@ -138,11 +145,7 @@ export function createApp(opts: AppOptions): Express {
 
   app.use('/api', (req, _res, next) => next(notFound('API route', `${req.method} ${req.path}`)));
 
-  if (opts.clientDir && fs.existsSync(path.join(opts.clientDir, 'index.html'))) {
-    const indexHtml = path.join(opts.clientDir, 'index.html');
-    app.use(express.static(opts.clientDir, { index: false, maxAge: '1h' }));
-    app.get('/{*splat}', (_req, res) => res.sendFile(indexHtml));
-  }
+  if (client) app.get('/{*splat}', serveClientIndex(client));
 
   const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
     const { status, body } = toHttpError(err);

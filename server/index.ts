@@ -1,3 +1,4 @@
+import fs from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { createApp } from './app';
@@ -8,8 +9,15 @@ import { ensureDefaultDefinitions } from './modules/assay-definitions/assay-defi
 import { openDatabase } from './db/sequelize';
 import { logError, logInfo } from './lib/log';
 import { startMail } from './modules/mail/mail-setup';
+import { warmUpReportRendering } from './domain/report-pdf/warm-up';
 
-const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
+/** The project folder: the nearest one above this file with a package.json (server/ from sources, dist/server/ compiled). */
+function projectRoot(): string {
+  let dir = path.dirname(fileURLToPath(import.meta.url));
+  while (!fs.existsSync(path.join(dir, 'package.json')) && path.dirname(dir) !== dir) dir = path.dirname(dir);
+  return dir;
+}
+const root = projectRoot();
 
 async function main(): Promise<void> {
   const config = loadConfigOrExit();
@@ -26,6 +34,8 @@ async function main(): Promise<void> {
   const app = createApp({ sequelize, config, clientDir: path.join(root, 'dist', 'client'), expireSessions: true, mailer: mail.mailer });
   const server = app.listen(config.port, () => {
     logInfo(`Cristae is serving on http://localhost:${config.port}`);
+    // The first report after a start should be as quick as the rest (bench: first PDF).
+    void warmUpReportRendering().catch((err: unknown) => logError(err, 'warming up report rendering'));
   });
 
   const stop = (signal: string) => {

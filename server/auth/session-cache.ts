@@ -1,74 +1,93 @@
+import type { RequestHandler } from 'express';
 import type { Store } from 'express-session';
 
 type SessionStoreLike = Pick<Store, 'get' | 'set' | 'destroy' | 'touch'>;
 
-const TOUCH_EVERY_MS = 60_000;
+/** How often a session's expiry is pushed forward (and its cookie sent again): at most once per interval. */
+export const SESSION_EXTEND_EVERY_MS = 5 * 60_000;
 const MAX_ENTRIES = 10_000;
 
+type Plain = null | boolean | number | string | Plain[] | { [key: string]: Plain };
+type Entry = { data: { [key: string]: Plain }; expiresAt: number };
+
 // Every cache made in this process, so ending an account's sessions can drop them from all of them.
-const caches = new Set<{ cache: Map<string, string>; lastTouch: Map<string, number> }>();
+const caches = new Set<Map<string, Entry>>();
 
 /** Drops these sessions from every in-memory cache (their rows have been deleted). */
 export function forgetCachedSessions(sids: readonly string[]): void {
-  for (const c of caches) {
-    for (const sid of sids) {
-      c.cache.delete(sid);
-      c.lastTouch.delete(sid);
-    }
-  }
+  for (const cache of caches) for (const sid of sids) cache.delete(sid);
+}
+
+/** A deep copy of JSON-shaped data: express-session and passport mutate the object they are handed. */
+function copy<T extends Plain>(value: T): T {
+  if (value === null || typeof value !== 'object') return value;
+  if (Array.isArray(value)) return value.map(copy) as T;
+  const out: { [key: string]: Plain } = {};
+  for (const key in value) out[key] = copy(value[key]!);
+  return out as T;
 }
 
 /**
- * Sessions stay in SQLite (they survive a restart), but a single server process need not read the same row on
- * every request nor write its expiry each time: reads are served from memory, written through on every change
- * and dropped on sign-out; a rolling expiry is written at most once a minute per session, which keeps the
- * eight-hour idle limit to within a minute.
+ * Sessions stay in the database (they survive a restart and are shared by every application process), but a
+ * process need not read the same row on every request: reads are served from memory as copies of plain data
+ * (no JSON round trip), writes go through to the store and refresh the copy, sign-out drops it. Expiry is not
+ * written on every request: `extendSessions` re-saves a session once per SESSION_EXTEND_EVERY_MS, so the
+ * store's per-request touch is not needed.
  */
 export function cacheSessionReads(store: SessionStoreLike): void {
-  const cache = new Map<string, string>();
-  const lastTouch = new Map<string, number>();
-  caches.add({ cache, lastTouch });
-  const remember = (sid: string, data: unknown) => {
+  const cache = new Map<string, Entry>();
+  caches.add(cache);
+  const remember = (sid: string, data: { [key: string]: Plain }) => {
+    const expires = (data.cookie as { expires?: string } | null)?.expires;
     if (cache.size >= MAX_ENTRIES) cache.clear();
-    cache.set(sid, JSON.stringify(data));
+    cache.set(sid, { data, expiresAt: expires ? Date.parse(expires) : Infinity });
   };
 
   const get = store.get.bind(store);
   const set = store.set.bind(store);
   const destroy = store.destroy.bind(store);
-  const touch = store.touch!.bind(store);
 
   store.get = (sid, callback) => {
     const hit = cache.get(sid);
-    if (hit !== undefined) {
-      const data = JSON.parse(hit) as { cookie?: { expires?: string } };
+    if (hit) {
       // An expired session is not served from memory: the store decides, as it would without the cache.
-      if (!data.cookie?.expires || new Date(data.cookie.expires) > new Date()) return callback(null, data as never);
+      if (hit.expiresAt > Date.now()) return callback(null, copy(hit.data) as never);
       cache.delete(sid);
     }
     get(sid, (err, session) => {
-      if (!err && session) remember(sid, session);
+      if (!err && session) remember(sid, copy(session as never));
       callback(err, session);
     });
   };
   store.set = (sid, session, callback) => {
     cache.delete(sid);
+    // The session object carries a Cookie instance; its JSON form is what the store keeps and reads back.
+    const data = JSON.parse(JSON.stringify(session)) as { [key: string]: Plain };
     set(sid, session, (err?: unknown) => {
-      if (!err) remember(sid, session);
+      if (!err) remember(sid, data);
       callback?.(err);
     });
   };
   store.destroy = (sid, callback) => {
     cache.delete(sid);
-    lastTouch.delete(sid);
     destroy(sid, callback);
   };
-  store.touch = (sid, session, callback) => {
-    if (cache.has(sid)) remember(sid, session);
-    const now = Date.now();
-    if (now - (lastTouch.get(sid) ?? 0) < TOUCH_EVERY_MS) return callback?.();
-    if (lastTouch.size >= MAX_ENTRIES) lastTouch.clear();
-    lastTouch.set(sid, now);
-    touch(sid, session, callback);
+  store.touch = (_sid, _session, callback) => callback?.();
+}
+
+/**
+ * Rolling expiry with a coarse step, for express-session with `rolling: false`: a stored session whose expiry
+ * was last pushed forward SESSION_EXTEND_EVERY_MS or more ago is marked changed, so express-session saves it
+ * once and sends the cookie with a fresh expiry; on every other request the cookie is neither re-signed nor
+ * re-sent and nothing is written. The eight-hour idle limit therefore holds to within the step.
+ */
+export function extendSessions(everyMs = SESSION_EXTEND_EVERY_MS): RequestHandler {
+  return (req, _res, next) => {
+    const session = req.session as (typeof req.session & { extendedAt?: number }) | undefined;
+    const { expires, originalMaxAge } = session?.cookie ?? {};
+    if (session && expires && originalMaxAge && originalMaxAge - (expires.getTime() - Date.now()) >= everyMs) {
+      session.extendedAt = Date.now();
+    }
+    next();
   };
 }

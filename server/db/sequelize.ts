@@ -2,6 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import sqlite3 from 'sqlite3';
 import { Sequelize } from 'sequelize';
+import { tuneSqliteConnections } from './sqlite-connections';
 
 /**
  * Opens the SQLite database. Sequelize's sqlite dialect turns foreign keys on for every connection it opens;
@@ -23,6 +24,7 @@ export async function openDatabase(storage: string): Promise<Sequelize> {
   if (!inMemory) {
     await sequelize.query('PRAGMA journal_mode = WAL');
     await sequelize.query('PRAGMA busy_timeout = 5000');
+    await tuneSqliteConnections(sequelize);
   }
   return sequelize;
 }

@@ -1,3 +1,5 @@
+import { sourceMappedStack } from './source-mapped-stack';
+
 /** Minimal structured logging to stdout/stderr; quiet in tests unless something fails on the server. */
 const quiet = () => process.env.CRISTAE_QUIET === '1';
 
@@ -12,6 +14,9 @@ export function logWarn(message: string, extra: Record<string, unknown> = {}): v
 }
 
 export function logError(err: unknown, context: string): void {
-  const detail = err instanceof Error ? { name: err.name, message: err.message, stack: err.stack } : { value: String(err) };
+  const detail =
+    err instanceof Error
+      ? { name: err.name, message: err.message, stack: err.stack && sourceMappedStack(err.stack) }
+      : { value: String(err) };
   console.error(JSON.stringify({ level: 'error', at: new Date().toISOString(), context, ...detail }));
 }

@@ -1,6 +1,7 @@
 import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { inflateSync } from 'node:zlib';
+import { create as openFont, type Font } from 'fontkit';
 
 /**
  * IBM Plex Sans from @fontsource, shipped with the app. pdfkit embeds one font file per face and
@@ -22,6 +23,12 @@ export interface FontFace {
   subset: Subset;
   /** The unwrapped OpenType font. */
   data: Buffer;
+  /**
+   * The font parsed once per process and handed to every document (pdfkit accepts a fontkit font as well as
+   * bytes), so a report no longer parses the faces again and fontkit's glyph and layout caches stay warm.
+   * Each document still makes its own subset of the glyphs it uses.
+   */
+  font: Font;
   covers: (codePoint: number) => boolean;
 }
 
@@ -154,6 +161,7 @@ export function fontChains(): Record<Weight, FontFace[]> {
         weight,
         subset,
         data,
+        font: openFont(data),
         covers: (cp: number) => coverage.has(cp),
       };
     });

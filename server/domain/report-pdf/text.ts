@@ -48,10 +48,31 @@ const REPLACEMENTS: Record<string, string> = {
 
 const SCRIPT_SCALE = 0.68;
 
+/*
+ * pdfkit shapes every space-separated piece of text with fontkit and keeps the result in a cache on its font
+ * object, which is made anew for each document. The faces are shared by every document (fonts.ts) and a shaped
+ * piece depends only on the face and the text, so each face gets one cache for the whole process (emptied past
+ * LAYOUT_CACHE_MAX pieces): a report re-uses what earlier reports and the start-up warm-up shaped. The glyph
+ * runs in it are only read after shaping (pdfkit copies them into each document's subset).
+ */
+const LAYOUT_CACHE_MAX = 20_000;
+const layoutCaches = new Map<string, Record<string, unknown>>();
+
+/** Selects the face on the document and hands its pdfkit font the process-wide layout cache. */
+function useFace(doc: Doc, key: string): Doc {
+  doc.font(key);
+  const font = (doc as unknown as { _font: { layoutCache?: Record<string, unknown> } })._font;
+  let cache = layoutCaches.get(key);
+  if (!cache) layoutCaches.set(key, (cache = Object.create(null) as Record<string, unknown>));
+  if (font.layoutCache !== cache) font.layoutCache = cache;
+  return doc;
+}
+
 /** Registers every face of both chains; pdfkit embeds only the faces that end up used. */
 export function registerFonts(doc: Doc): void {
   const chains = fontChains();
-  for (const face of [...chains[400], ...chains[600]]) doc.registerFont(face.key, face.data);
+  for (const face of [...chains[400], ...chains[600]]) doc.registerFont(face.key, face.font as never);
+  for (const [key, cache] of layoutCaches) if (Object.keys(cache).length > LAYOUT_CACHE_MAX) layoutCaches.delete(key);
 }
 
 function scriptShift(cp: number): 'sup' | 'sub' | null {
@@ -100,20 +121,32 @@ export function uncoveredCharacters(text: string, weight: Weight = 400): string[
   return [...new Set([...text])].filter((ch) => faceFor(weight, ch.codePointAt(0) ?? 0) === null);
 }
 
-// Measuring goes through fontkit's shaper and dominates the render time; the same strings recur a lot.
-const widthCache = new WeakMap<Doc, Map<string, number>>();
+/*
+ * Measuring goes through fontkit's shaper and dominated the render time; the same strings recur within a report
+ * and from one report to the next. A width depends only on the face, the size and the text (every document
+ * shares the same parsed faces), so the measurements are kept for the whole process, up to WIDTH_CACHE_MAX.
+ */
+const WIDTH_CACHE_MAX = 50_000;
+const widthCache = new Map<string, number>();
+
+// Faces a document has opened. A document opens each face it measures or draws with, in the order first used,
+// exactly as when every document measured for itself: that order names pdfkit's font resources, so it is what
+// keeps a document's bytes the same whatever was rendered before it in the process.
+const openedFaces = new WeakMap<Doc, Set<string>>();
 
 function runWidth(doc: Doc, run: Run): number {
-  let cache = widthCache.get(doc);
-  if (!cache) {
-    cache = new Map();
-    widthCache.set(doc, cache);
+  let opened = openedFaces.get(doc);
+  if (!opened) openedFaces.set(doc, (opened = new Set()));
+  if (!opened.has(run.face)) {
+    opened.add(run.face);
+    useFace(doc, run.face);
   }
   const key = `${run.face}\u0000${run.size}\u0000${run.text}`;
-  let width = cache.get(key);
+  let width = widthCache.get(key);
   if (width === undefined) {
-    width = doc.font(run.face).fontSize(run.size).widthOfString(run.text);
-    cache.set(key, width);
+    width = useFace(doc, run.face).fontSize(run.size).widthOfString(run.text);
+    if (widthCache.size >= WIDTH_CACHE_MAX) widthCache.clear();
+    widthCache.set(key, width);
   }
   return width;
 }
@@ -258,8 +291,7 @@ export function drawLine(
 ): void {
   let cx = align === 'right' ? x + boxWidth - line.width : align === 'center' ? x + (boxWidth - line.width) / 2 : x;
   for (const run of line.runs) {
-    doc
-      .font(run.face)
+    useFace(doc, run.face)
       .fontSize(run.size)
       .fillColor(run.color)
       .text(run.text, cx, baseline - run.rise, { lineBreak: false, baseline: 'alphabetic' });

@@ -1,0 +1,81 @@
+import { load, ms, p50p95, percentile, type LoadResult } from './support/load';
+import { signIn, startBenchServer, startFloorServer } from './support/server';
+import type { BenchResult } from './types';
+
+/*
+ * The request path against its floor, in one run: 20 concurrent clients on loopback, first against a bare
+ * Express handler that answers without reading the request (bench/floor-server.mjs), then against the
+ * application signed in as the demo technologist: the activity preview (POST /api/calculations/activity with
+ * two 60-point traces, the same body sent to the floor) and the case list (GET /api/cases). Goal: each within
+ * 3× its floor's p95 and under 25 ms at p95.
+ */
+
+const CONNECTIONS = 20;
+const DURATION_S = Number(process.env.BENCH_SECONDS ?? 10);
+const GOAL_P95_MS = 25;
+const GOAL_RATIO = 3;
+
+const trace = (a0: number, perMin: number) =>
+  Array.from({ length: 60 }, (_, i) => ({ t: i * 5, a: +(a0 + (perMin / 60) * i * 5 + Math.sin(i) * 0.0003).toFixed(5) }));
+
+export const previewBody = JSON.stringify({
+  assay: 'CI',
+  pathlengthCm: 1,
+  reactionVolumeUl: 1000,
+  sampleVolumeUl: 10,
+  proteinMgPerMl: 4,
+  total: trace(1.2, -0.0348),
+  background: trace(1.1, -0.01),
+});
+
+export default async function run(): Promise<BenchResult> {
+  const floor = await startFloorServer();
+  const app = await startBenchServer();
+  try {
+    const cookie = await signIn(app.origin, 'technologist@demo.test');
+    const json = { 'content-type': 'application/json' };
+    const measure = (origin: string, method: 'GET' | 'POST', path: string, withSession: boolean) =>
+      load({
+        url: `${origin}${path}`,
+        method,
+        connections: CONNECTIONS,
+        durationS: DURATION_S,
+        headers: { ...json, origin, ...(withSession ? { cookie } : {}) },
+        body: method === 'POST' ? previewBody : undefined,
+      });
+    // Warm both processes so the first timed run does not pay for JIT compilation.
+    await load({ url: `${app.origin}/api/cases`, connections: 4, durationS: 2, headers: { cookie } });
+    await load({ url: `${floor.origin}/api/cases`, connections: 4, durationS: 1 });
+
+    const floorGet = await measure(floor.origin, 'GET', '/api/cases', false);
+    const list = await measure(app.origin, 'GET', '/api/cases', true);
+    const floorPost = await measure(floor.origin, 'POST', '/api/calculations/activity', false);
+    const preview = await measure(app.origin, 'POST', '/api/calculations/activity', true);
+
+    const rows: BenchResult['rows'] = [];
+    const pair = (label: string, r: LoadResult, f: LoadResult) => {
+      const p95 = percentile(r.latencies, 95);
+      const floorP95 = percentile(f.latencies, 95);
+      const ratio = p95 / floorP95;
+      rows.push(
+        { metric: `floor for ${label} (bare Express)`, value: `${p50p95(f)}; ${f.perSecond} req/s`, goal: '—', met: f.errors === 0 },
+        { metric: label, value: `${p50p95(r)}; ${r.perSecond} req/s; ${r.errors} errors`, goal: `p95 < ${GOAL_P95_MS} ms, no errors`, met: p95 < GOAL_P95_MS && r.errors === 0 },
+        { metric: `${label}: p95 ÷ floor p95`, value: `${ratio.toFixed(2)}× (${ms(p95)} ÷ ${ms(floorP95)})`, goal: `≤ ${GOAL_RATIO}×`, met: ratio <= GOAL_RATIO },
+      );
+    };
+    pair('POST /api/calculations/activity (preview)', preview, floorPost);
+    pair('GET /api/cases (case list, demo data)', list, floorGet);
+    return {
+      title: `Request path against an empty-handler floor: ${CONNECTIONS} concurrent clients, ${DURATION_S} s each (autocannon, loopback)`,
+      rows,
+      notes:
+        `Server: ${app.kind === 'compiled' ? 'the compiled server (dist/server, as npm start runs it)' : 'TypeScript sources through tsx'}. ` +
+        'Floor and application run in separate processes, measured one after the other in the same run, with the load generator in ' +
+        'the benchmark process (on this 2-core machine it competes with the server for CPU, in both measurements alike). ' +
+        'The preview sends two 60-point traces (about 4 kB); the floor receives the same body and does not read it.',
+    };
+  } finally {
+    await app.stop();
+    await floor.stop();
+  }
+}

@@ -1,0 +1,68 @@
+import autocannon from 'autocannon';
+
+export type LoadResult = {
+  /** Latency of every answered request, ms, sorted. */
+  latencies: number[];
+  /** Answers with a 2xx status. */
+  ok: number;
+  /** Answers with any other status, plus socket errors and timeouts. */
+  errors: number;
+  statuses: Record<number, number>;
+  perSecond: number;
+};
+
+export type LoadOptions = {
+  url: string;
+  connections: number;
+  durationS: number;
+  method?: 'GET' | 'POST';
+  headers?: Record<string, string>;
+  body?: string;
+  /** A request sequence each connection cycles through (autocannon's `requests`). */
+  requests?: autocannon.Request[];
+};
+
+/** autocannon on loopback; latency per answer from its 'response' event. */
+export async function load(opts: LoadOptions): Promise<LoadResult> {
+  const latencies: number[] = [];
+  const statuses: Record<number, number> = {};
+  let ok = 0;
+  const result = await new Promise<autocannon.Result>((resolve, reject) => {
+    const instance = autocannon(
+      {
+        url: opts.url,
+        method: opts.method ?? 'GET',
+        connections: opts.connections,
+        duration: opts.durationS,
+        headers: opts.headers,
+        body: opts.body,
+        requests: opts.requests,
+        timeout: 30,
+      },
+      (err, res) => (err ? reject(err) : resolve(res)),
+    );
+    instance.on('response', (_client: unknown, status: number, _bytes: number, ms: number) => {
+      latencies.push(ms);
+      statuses[status] = (statuses[status] ?? 0) + 1;
+      if (status >= 200 && status < 300) ok++;
+    });
+  });
+  latencies.sort((a, b) => a - b);
+  return {
+    latencies,
+    ok,
+    errors: latencies.length - ok + result.errors + result.timeouts,
+    statuses,
+    perSecond: Math.round(latencies.length / opts.durationS),
+  };
+}
+
+/** Nearest-rank percentile of sorted values. */
+export function percentile(sorted: number[], p: number): number {
+  if (sorted.length === 0) return NaN;
+  const idx = Math.min(sorted.length - 1, Math.max(0, Math.ceil((p / 100) * sorted.length) - 1));
+  return sorted[idx]!;
+}
+
+export const ms = (v: number) => `${v.toFixed(1)} ms`;
+export const p50p95 = (r: LoadResult) => `p50 ${ms(percentile(r.latencies, 50))}, p95 ${ms(percentile(r.latencies, 95))}`;

@@ -1,0 +1,72 @@
+import type { Sequelize } from 'sequelize';
+
+/** What this module uses of a node-sqlite3 Database. */
+type SqliteConnection = {
+  uuid?: string;
+  filename?: string;
+  run: (sql: string, callback: (err: Error | null) => void) => void;
+  close: (callback?: (err: Error | null) => void) => void;
+};
+type ConnectionManager = {
+  connections: Record<string, SqliteConnection>;
+  getConnection: (options?: { uuid?: string }) => Promise<SqliteConnection>;
+  releaseConnection: (connection: SqliteConnection, force?: boolean) => unknown;
+};
+
+/**
+ * Settings every connection to a SQLite file gets (each is per connection, not per file):
+ * - busy_timeout: a connection that finds the file locked waits up to 5 s instead of failing at once;
+ * - synchronous = NORMAL: under WAL, a commit is durable against a crash of the process (the WAL is written
+ *   before the commit returns) and the file cannot be corrupted; only a power cut or kernel crash can lose
+ *   the last commits before a checkpoint. FULL would fsync the WAL on every commit.
+ */
+export const SQLITE_CONNECTION_PRAGMAS = ['PRAGMA busy_timeout = 5000', 'PRAGMA synchronous = NORMAL'];
+const MAX_IDLE = 4;
+
+const run = (connection: SqliteConnection, sql: string) =>
+  new Promise<void>((resolve, reject) => connection.run(sql, (err) => (err ? reject(err) : resolve())));
+
+/**
+ * Sequelize's sqlite dialect opens a new connection for every transaction and closes it at the end, so each
+ * write paid for opening the file and reading its schema again. Here a transaction's connection goes back to a
+ * small idle list when the transaction ends and the next transaction takes it (one transaction per connection
+ * at a time, as before), and every connection opened gets SQLITE_CONNECTION_PRAGMAS. A file database only;
+ * an in-memory database keeps its one shared connection.
+ */
+export async function tuneSqliteConnections(sequelize: Sequelize): Promise<void> {
+  if (sequelize.getDialect() !== 'sqlite' || (sequelize.options as { storage?: string }).storage === ':memory:') return;
+  const manager = sequelize.connectionManager as unknown as ConnectionManager;
+  const open = manager.getConnection.bind(manager);
+  const release = manager.releaseConnection.bind(manager);
+  const idle: SqliteConnection[] = [];
+
+  manager.getConnection = async (options) => {
+    const uuid = options?.uuid;
+    if (uuid && uuid !== 'default' && !manager.connections[uuid]) {
+      const reused = idle.pop();
+      if (reused) {
+        manager.connections[uuid] = reused;
+        return reused;
+      }
+      const fresh = await open(options);
+      for (const pragma of SQLITE_CONNECTION_PRAGMAS) await run(fresh, pragma);
+      return fresh;
+    }
+    return open(options);
+  };
+  manager.releaseConnection = (connection, force) => {
+    if (!force && connection.uuid && connection.uuid !== 'default' && connection.filename !== ':memory:' && idle.length < MAX_IDLE) {
+      delete manager.connections[connection.uuid];
+      idle.push(connection);
+      return;
+    }
+    return release(connection, force);
+  };
+  // The shared connection for queries outside a transaction.
+  for (const pragma of SQLITE_CONNECTION_PRAGMAS) await sequelize.query(pragma);
+  const close = sequelize.close.bind(sequelize);
+  sequelize.close = async () => {
+    await Promise.all(idle.splice(0).map((c) => new Promise<void>((resolve) => c.close(() => resolve()))));
+    return close();
+  };
+}
