@@ -72,6 +72,8 @@ export function createAppRouter(queryClient: QueryClient) {
         page('intervalDerive', () => import('./routes/intervals/derive')),
         page('intervalVerify', () => import('./routes/intervals/verify')),
         page('intervalDetail', () => import('./routes/intervals/interval-detail')),
+        page('qc', () => import('./routes/qc/qc')),
+        page('qcMaterial', () => import('./routes/qc/control-material')),
         page('adminUsers', () => import('./routes/admin/accounts')),
         page('adminLab', () => import('./routes/admin/laboratory')),
         page('review', () => import('./routes/review/review-queue')),

@@ -71,7 +71,7 @@ describe('POST /api/qc/evaluate', () => {
   });
 
   it('refuses an SD of 0 or less, an unknown level and no runs with a 400 naming the field', async () => {
-    const cases: [unknown, string][] = [
+    const cases: [object, string][] = [
       [{ levels: [{ id: 'L1', mean: 100, sd: 0 }], runs: [{ id: 1, results: { L1: 100 } }] }, 'levels.0.sd'],
       [{ levels: [{ id: 'L1', mean: 100, sd: -2 }], runs: [{ id: 1, results: { L1: 100 } }] }, 'levels.0.sd'],
       [{ levels, runs: [{ id: 1, results: { L1: 100 } }, { id: 2, results: { L3: 1 } }] }, 'runs.1.results.L3'],

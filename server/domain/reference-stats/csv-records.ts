@@ -22,7 +22,7 @@ export function splitCsvRecords(text: string): { records: CsvRecord[] } | { issu
       ltrim: true,
       record_delimiter: ['\r\n', '\n', '\r'],
       info: true,
-    }) as { record: string[]; info: { records: number } }[];
+    }) as unknown as { record: string[]; info: { records: number } }[];
     return { records: parsed.map(({ record, info }) => ({ row: info.records, cells: record })) };
   } catch (err) {
     if (err instanceof CsvError && err.code === 'CSV_QUOTE_NOT_CLOSED') {

@@ -1,0 +1,88 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { BrowserContext } from 'playwright-core';
+import { launchBrowser, screenshot, signIn } from './support/browser';
+import { startServer, type RunningServer } from './support/server';
+
+let server: RunningServer;
+let browser: BrowserContext;
+/** The demo's second director approves what the first one drafts. */
+let browser2: BrowserContext;
+beforeAll(async () => {
+  server = await startServer();
+  browser = await launchBrowser();
+  browser2 = await launchBrowser();
+});
+afterAll(async () => {
+  await browser?.close();
+  await browser2?.close();
+  await server?.stop();
+});
+
+describe('quality control materials, in Chromium', () => {
+  it('when a director adds two levels and enters CI targets, and a second director approves them, then each level shows its Levey–Jennings chart', async () => {
+    const page = await browser.newPage();
+    await signIn(page, server.origin, 'director@demo.test');
+    await page.getByRole('link', { name: 'Quality control' }).click();
+    await page.getByRole('heading', { name: 'Control materials' }).waitFor();
+
+    const materialUrls: string[] = [];
+    // Invented material and lot (a fictitious in-house pool).
+    for (const [level, mean, sd] of [
+      ['Low', '42.5', '3.1'],
+      ['High', '118', '7.4'],
+    ] as const) {
+      await page.goto(`${server.origin}/qc`);
+      await page.getByRole('button', { name: 'New control material' }).click();
+      const form = page.getByRole('form', { name: 'New control material' });
+      await form.getByLabel('Material').fill('Fernhollow pooled muscle homogenate');
+      await form.getByLabel('Lot').fill('FH-2607');
+      await form.getByLabel('Level').fill(level);
+      await form.getByLabel('Expires on').fill('2027-03-31');
+      await form.getByRole('button', { name: 'Add the material' }).click();
+      const link = page.getByRole('row', { name: new RegExp(`FH-2607 ${level}`) }).getByRole('link');
+      await link.click();
+      await page.waitForURL(/\/qc\/materials\/\d+$/);
+      materialUrls.push(page.url());
+
+      const target = page.getByRole('form', { name: 'Enter a target' });
+      await target.getByLabel('Assay').selectOption('CI');
+      await target.getByLabel('Target mean').fill(mean);
+      await target.getByLabel('Target SD').fill(sd);
+      await target.getByLabel('Source (optional)').fill('Value sheet of the invented lot');
+      await target.getByRole('button', { name: 'Save as draft' }).click();
+      await page.getByText('Draft, not in use').waitFor();
+      // The drafter cannot approve their own target: no approve button, and the page says why.
+      await page.getByText(/Waiting for a second director/).waitFor();
+      await expect(page.getByRole('button', { name: /^Approve/ }).count()).resolves.toBe(0);
+    }
+    // Establishing needs 20 results; a fresh material has none, and the page says how many exist.
+    await page.getByRole('button', { name: 'Compute from the first 20' }).click();
+    await page.getByText(/^0 control results of this material for CI exist; 20 are needed/).waitFor();
+    await screenshot(page, 'qc-material-draft-target');
+
+    const page2 = await browser2.newPage();
+    await signIn(page2, server.origin, 'director2@demo.test');
+    for (const url of materialUrls) {
+      await page2.goto(url);
+      await page2.getByRole('button', { name: 'Approve v1' }).click();
+      await page2.getByText('In force').waitFor();
+    }
+
+    await page.goto(materialUrls[1]!);
+    await page.getByText('In force').waitFor();
+    const chart = page.getByRole('figure', { name: /Levey–Jennings chart of Fernhollow pooled muscle homogenate High, CI/ });
+    await chart.waitFor();
+    await chart.getByText(/target mean; dotted ±1 SD, dashed ±2 SD, long dashes ±3 SD/).waitFor();
+    // Seven lines of the target: mean and ±1, ±2, ±3 SD, labelled on the right.
+    for (const label of ['mean', '+1 SD', '−1 SD', '+2 SD', '−2 SD', '+3 SD', '−3 SD']) {
+      await expect(chart.locator('text', { hasText: label }).count(), label).resolves.toBeGreaterThan(0);
+    }
+    await screenshot(page, 'qc-material-chart');
+
+    await page.goto(`${server.origin}/qc`);
+    await page.getByRole('row', { name: /FH-2607 High .* CI/ }).waitFor();
+    await screenshot(page, 'qc-overview');
+    await page.close();
+    await page2.close();
+  });
+});
