@@ -50,13 +50,17 @@ export function cacheSessionReads(store: SessionStoreLike): void {
   store.get = (sid, callback) => {
     const hit = cache.get(sid);
     if (hit) {
-      // An expired session is not served from memory: the store decides, as it would without the cache.
       if (hit.expiresAt > Date.now()) return callback(null, copy(hit.data) as never);
       cache.delete(sid);
     }
     get(sid, (err, session) => {
-      if (!err && session) remember(sid, copy(session as never));
-      callback(err, session);
+      if (err || !session) return callback(err, session);
+      const data = copy(session as never);
+      // The table's periodic clean-up may not have run yet: an expired row is ended here, never served.
+      const expires = (data.cookie as { expires?: string } | null)?.expires;
+      if (expires && Date.parse(expires) <= Date.now()) return destroy(sid, () => callback(null, null));
+      remember(sid, data);
+      callback(null, session);
     });
   };
   store.set = (sid, session, callback) => {

@@ -63,6 +63,15 @@ describe('session read cache', () => {
     expect(calls.get).toBe(1);
   });
 
+  it('when a stored session has expired but the clean-up has not run yet, then it is not served and its row is deleted', async () => {
+    const { store, calls, rows } = countingStore();
+    cacheSessionReads(store as never);
+    rows.set('x', JSON.stringify({ cookie: { expires: new Date(Date.now() - 1000).toISOString() }, passport: { user: 3 } }));
+    expect(await get(store, 'x')).toBeNull();
+    expect(calls.destroy).toBe(1);
+    expect(rows.has('x')).toBe(false);
+  });
+
   it('when express-session touches a session on every request, then nothing is written (extendSessions moves the expiry)', () => {
     const { store, calls } = countingStore();
     cacheSessionReads(store as never);
