@@ -32,6 +32,7 @@ import { mailRouter } from './modules/mail/mail.router';
 import { reportsRouter } from './modules/reports/reports.router';
 import { reviewRouter } from './modules/review/review.router';
 import { registryRouter } from './modules/registry/registry.router';
+import { registryExportRouter } from './modules/registry/export.router';
 
 export type AppOptions = {
   sequelize: Sequelize;
@@ -142,6 +143,7 @@ export function createApp(opts: AppOptions): Express {
   app.use(plateMapsRouter(sequelize));
   app.use(resultsRouter(sequelize));
   app.use(registryRouter(sequelize));
+  app.use(registryExportRouter(sequelize));
 
   app.use('/api', (req, _res, next) => next(notFound('API route', `${req.method} ${req.path}`)));
 

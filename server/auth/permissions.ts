@@ -125,6 +125,8 @@ export const permissions = {
   'GET /api/registry/saved-searches': LAB,
   'POST /api/registry/saved-searches': LAB,
   'DELETE /api/registry/saved-searches/:id': LAB,
+  // The registry export, identified or de-identified (?deidentified=true): directors only, every export audited.
+  'GET /api/registry/export.csv': DIRECTOR,
 } as const satisfies Record<string, Access>;
 
 export type RouteKey = keyof typeof permissions;

@@ -157,6 +157,16 @@ export type CohortFilter = z.infer<typeof cohortFilterSchema>;
 /** The filter without paging and order: what a saved search keeps and an export applies. */
 export type CohortCriteria = Omit<CohortFilter, 'page' | 'pageSize' | 'sort' | 'dir'>;
 
+/**
+ * GET /api/registry/export.csv: the cohort criteria (no paging or order: every member is exported) and whether to
+ * de-identify ('true': HIPAA Safe Harbor, docs/registry-export.md; anything else absent: the identified export).
+ */
+export const registryExportQuerySchema = cohortFilterBaseSchema
+  .omit({ page: true, pageSize: true, sort: true, dir: true })
+  .extend({ deidentified: z.enum(['true', 'false'], { message: 'deidentified is true or false' }).optional() })
+  .superRefine(refineCohortFilter);
+export type RegistryExportQuery = z.infer<typeof registryExportQuerySchema>;
+
 /* ---------------------------------------------------------------- answers */
 
 /** One value of a cohort member as signed. */
