@@ -1,3 +1,5 @@
+import path from 'node:path';
+import { Sequelize } from 'sequelize';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BrowserContext } from 'playwright-core';
 import { launchBrowser, screenshot, signIn } from './support/browser';
@@ -82,7 +84,58 @@ describe('quality control materials, in Chromium', () => {
     await page.goto(`${server.origin}/qc`);
     await page.getByRole('row', { name: /FH-2607 High .* CI/ }).waitFor();
     await screenshot(page, 'qc-overview');
-    await page.close();
     await page2.close();
+
+    // Runs as the runs module stores them (written straight into the server's database file): an accepted run,
+    // a 1-2s warning, a rejection and a rejection released by override. Values invented around mean 118, SD 7.4.
+    const materialId = Number(materialUrls[1]!.split('/').pop());
+    const runIds = await storeRuns(materialId, [
+      ['2026-11-02T09:00:00Z', 119.1, 'accept', false],
+      ['2026-11-03T09:00:00Z', 134.0, 'warn', false],
+      ['2026-11-04T09:00:00Z', 145.5, 'reject', false],
+      ['2026-11-05T09:00:00Z', 96.0, 'reject', true],
+      ['2026-11-06T09:00:00Z', 116.2, 'accept', false],
+    ]);
+    await page.goto(materialUrls[1]!);
+    const withPoints = page.getByRole('figure', { name: /Levey–Jennings chart of .* High, CI/ });
+    for (const words of ['run accepted (2)', 'run accepted with a 1-2s warning (1)', 'run rejected (1)', 'run rejected, released by a director’s override (1)']) {
+      await withPoints.getByText(words).waitFor();
+    }
+    await screenshot(page, 'qc-material-chart-with-runs');
+    // A point opens its run's page.
+    await withPoints.locator('.recharts-scatter-symbol').first().click();
+    await page.waitForURL(new RegExp(`/runs/${runIds[0]}$`));
+    await page.close();
   });
 });
+
+/** Inserts runs with one control result each for the material (CI), judged against its approved target. */
+async function storeRuns(materialId: number, runs: [string, number, 'accept' | 'warn' | 'reject', boolean][]): Promise<number[]> {
+  const db = new Sequelize({ dialect: 'sqlite', storage: path.join(server.dataDir, 'cristae.sqlite'), logging: false });
+  try {
+    const [[target]] = (await db.query(
+      `SELECT id, mean, sd FROM control_targets WHERE "controlMaterialId" = ? AND "assayCode" = 'CI' AND status = 'approved'`,
+      { replacements: [materialId] },
+    )) as [{ id: number; mean: number; sd: number }[], unknown];
+    const ids: number[] = [];
+    for (const [i, [at, value, status, overridden]] of runs.entries()) {
+      const when = at.replace('T', ' ').replace('Z', '.000 +00:00');
+      const [, meta] = await db.query(
+        `INSERT INTO analytical_runs ("runNumber", instrument, "startedAt", "plateFormat", layout, "definitionVersions", "qcStatus",
+           "qcViolations", "overrideReason", "overrideAt", version, "createdAt", "updatedAt")
+         VALUES (?, 'Plate reader (fictitious)', ?, 96, '[]', '{}', ?, '[]', ?, ?, 0, ?, ?)`,
+        { replacements: [`RUN-E2E-${i + 1}`, when, status, overridden ? 'Invented reason' : null, overridden ? when : null, when, when] },
+      );
+      const runId = (meta as { lastID: number }).lastID;
+      ids.push(runId);
+      await db.query(
+        `INSERT INTO control_results ("runId", "controlMaterialId", "assayCode", value, wells, "controlTargetId", z, "measuredAt", "createdAt")
+         VALUES (?, ?, 'CI', ?, '[]', ?, ?, ?, ?)`,
+        { replacements: [runId, materialId, value, target!.id, (value - target!.mean) / target!.sd, when, when] },
+      );
+    }
+    return ids;
+  } finally {
+    await db.close();
+  }
+}

@@ -58,6 +58,7 @@ export function LeveyJenningsChart({ chart, unit, label }: { chart: ControlChart
   /** The target in force: the y-axis ticks sit on its mean and SD lines. */
   const current = chart.targets.find((t) => t.status === 'approved');
   const ys = [...chart.points.map((p) => p.value), ...chart.targets.flatMap((t) => [t.mean - 3.5 * t.sd, t.mean + 3.5 * t.sd])];
+  const yPad = ys.length ? (Math.max(...ys) - Math.min(...ys)) * 0.04 : 0;
   const groups = (Object.keys(marks) as PointKind[])
     .map((kind) => ({ kind, data: chart.points.filter((p) => pointKind(p) === kind).map((p) => ({ ...p, x: Date.parse(p.measuredAt), y: p.value })) }))
     .filter((g) => g.data.length > 0);
@@ -78,7 +79,7 @@ export function LeveyJenningsChart({ chart, unit, label }: { chart: ControlChart
           <YAxis
             type="number"
             dataKey="y"
-            domain={ys.length ? [Math.min(...ys), Math.max(...ys)] : ['auto', 'auto']}
+            domain={ys.length ? [Math.min(...ys) - yPad, Math.max(...ys) + yPad] : ['auto', 'auto']}
             ticks={current ? SD_STEPS.map((k) => current.mean + k * current.sd) : undefined}
             tick={{ fontSize: 11 }}
             tickFormatter={(v: number) => fmt(v, 3)}
