@@ -27,6 +27,29 @@ export default defineConfig({
         },
       },
       {
+        // The API tests again on PostgreSQL: `npm run test:pg` (scripts/with-postgres.sh sets DATABASE_URL).
+        // Each test file gets a database of its own on that server (tests/setup/test-database.ts).
+        resolve: { alias },
+        test: {
+          name: 'api-pg',
+          environment: 'node',
+          include: ['tests/api/**/*.test.ts'],
+          // SQLite's alone: copying and restoring its file (PostgreSQL uses pg_dump), and three migration tests that
+          // build pre-upgrade SQLite files row by row (tests/api/migrations.api.test.ts covers both databases).
+          exclude: [
+            'tests/api/backup-restore.api.test.ts',
+            'tests/api/approvals-migration.api.test.ts',
+            'tests/api/exclusion-migration.api.test.ts',
+            'tests/api/notice-migration.api.test.ts',
+          ],
+          setupFiles: ['tests/setup/node.ts'],
+          env: { CRISTAE_TEST_DATABASE: 'postgres' },
+          globalSetup: ['tests/setup/postgres-template.ts'],
+          testTimeout: 30_000,
+          hookTimeout: 60_000,
+        },
+      },
+      {
         plugins: [react()],
         resolve: { alias },
         test: {

@@ -2,7 +2,7 @@
 // The password comes from ADMIN_PASSWORD, a hidden prompt, or the first line of stdin; never from the arguments.
 import { parseArgs } from 'node:util';
 import { z } from 'zod';
-import { databasePathFrom, firstAdminPasswordSchema } from '../server/config';
+import { databaseLocationFrom, firstAdminPasswordSchema } from '../server/config';
 import { initModels } from '../server/db/models';
 import { migrate } from '../server/db/migrate';
 import { openDatabase } from '../server/db/sequelize';
@@ -29,7 +29,7 @@ runCommand('create-admin', usage, async () => {
   const password = firstAdminPasswordSchema.safeParse(await readSecret('ADMIN_PASSWORD', 'Password for the new administrator'));
   if (!password.success) throw new OperationRefused(`password: ${password.error.issues[0]!.message}`);
 
-  const sequelize = await openDatabase(databasePathFrom());
+  const sequelize = await openDatabase(databaseLocationFrom());
   try {
     initModels(sequelize);
     await migrate(sequelize);

@@ -6,7 +6,7 @@ import { initModels } from './db/models';
 import { migrate } from './db/migrate';
 import { loadConfigOrExit, prepareAccounts, warnAboutDeployment } from './ops/start-up';
 import { ensureDefaultDefinitions } from './modules/assay-definitions/assay-definitions.service';
-import { openDatabase } from './db/sequelize';
+import { openDatabase, withStartupLock } from './db/sequelize';
 import { logError, logInfo } from './lib/log';
 import { startMail } from './modules/mail/mail-setup';
 import { warmUpReportRendering } from './domain/report-pdf/warm-up';
@@ -22,14 +22,18 @@ const root = projectRoot();
 async function main(): Promise<void> {
   const config = loadConfigOrExit();
   warnAboutDeployment(config);
-  const sequelize = await openDatabase(config.databasePath);
+  const sequelize = await openDatabase(config.databaseUrl ?? config.databasePath);
   initModels(sequelize);
-  const applied = await migrate(sequelize);
+  // One process at a time (PostgreSQL may have several application servers starting together).
+  const applied = await withStartupLock(sequelize, async () => {
+    const done = await migrate(sequelize);
+    await ensureDefaultDefinitions(sequelize);
+    return done;
+  });
   if (applied.length) logInfo('migrations applied', { applied });
-  await ensureDefaultDefinitions(sequelize);
   const mail = await startMail(sequelize, config);
   const notices = { sequelize, mailer: mail.mailer, publicOrigin: config.publicOrigin };
-  await prepareAccounts(sequelize, config, notices);
+  await withStartupLock(sequelize, () => prepareAccounts(sequelize, config, notices));
 
   const app = createApp({ sequelize, config, clientDir: path.join(root, 'dist', 'client'), expireSessions: true, mailer: mail.mailer });
   const server = app.listen(config.port, () => {

@@ -1,14 +1,26 @@
 import fs from 'node:fs';
 import path from 'node:path';
+import pg from 'pg';
 import sqlite3 from 'sqlite3';
 import { Sequelize } from 'sequelize';
 import { tuneSqliteConnections } from './sqlite-connections';
 
+/** A PostgreSQL connection URL (DATABASE_URL) rather than a SQLite file path. */
+export const isPostgresUrl = (location: string): boolean => /^postgres(ql)?:\/\//i.test(location);
+
 /**
- * Opens the SQLite database. Sequelize's sqlite dialect turns foreign keys on for every connection it opens;
- * WAL journaling is a property of the file, set once here (an in-memory database has no journal to set).
+ * Opens the database: a PostgreSQL server when `location` is a postgres:// URL, otherwise a SQLite file (or
+ * ':memory:'). Both dialects get the same migrations; see README ("Databases").
  */
-export async function openDatabase(storage: string): Promise<Sequelize> {
+export async function openDatabase(location: string): Promise<Sequelize> {
+  return isPostgresUrl(location) ? openPostgres(location) : openSqlite(location);
+}
+
+/**
+ * SQLite: Sequelize's sqlite dialect turns foreign keys on for every connection it opens; WAL journaling is a
+ * property of the file, set once here (an in-memory database has no journal to set).
+ */
+async function openSqlite(storage: string): Promise<Sequelize> {
   const inMemory = storage === ':memory:';
   if (!inMemory) fs.mkdirSync(path.dirname(path.resolve(storage)), { recursive: true });
   const sequelize = new Sequelize({
@@ -27,4 +39,50 @@ export async function openDatabase(storage: string): Promise<Sequelize> {
     await tuneSqliteConnections(sequelize);
   }
   return sequelize;
+}
+
+/**
+ * COUNT(*) and SUM() of integers are bigint on PostgreSQL, which pg hands over as strings; SQLite answers
+ * numbers. Every count this application makes fits a double exactly, so bigints are read as numbers (a value
+ * beyond 2^53 is refused rather than rounded).
+ */
+function readBigintsAsNumbers(): void {
+  pg.types.setTypeParser(pg.types.builtins.INT8, (text: string) => {
+    const n = Number(text);
+    if (!Number.isSafeInteger(n)) throw new RangeError(`bigint ${text} does not fit a JavaScript number`);
+    return n;
+  });
+}
+
+/** PostgreSQL through `pg`. Every connection works in UTC, like the SQLite dates. */
+async function openPostgres(url: string): Promise<Sequelize> {
+  readBigintsAsNumbers();
+  const sequelize = new Sequelize(url, {
+    dialect: 'postgres',
+    dialectModule: pg,
+    logging: false,
+    timezone: '+00:00',
+    pool: { max: Number(process.env.DATABASE_POOL_MAX ?? 10), min: 0, idle: 10_000, acquire: 60_000 },
+    define: { freezeTableName: true },
+  });
+  await sequelize.authenticate();
+  return sequelize;
+}
+
+export const isPostgres = (sequelize: Sequelize): boolean => sequelize.getDialect() === 'postgres';
+
+const STARTUP_LOCK = 0x63727374; // "crst": any fixed key, other than the write lock's
+
+/**
+ * Runs the start-up steps (migrations, default definitions, demo seed, first administrator) one process at a
+ * time: on PostgreSQL several application servers may start together on one database, and two of them must not
+ * both migrate or both seed it. The lock is a transaction-scoped advisory lock held while `work` runs on the
+ * pool's other connections. SQLite's single file has one server (backup and restore refuse a running one).
+ */
+export async function withStartupLock<T>(sequelize: Sequelize, work: () => Promise<T>): Promise<T> {
+  if (!isPostgres(sequelize)) return work();
+  return sequelize.transaction(async (t) => {
+    await sequelize.query(`SELECT pg_advisory_xact_lock(${STARTUP_LOCK})`, { transaction: t });
+    return work();
+  });
 }

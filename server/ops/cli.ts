@@ -33,3 +33,10 @@ export function fileArgument(argv: string[]): string {
   if (files.length !== 1) throw new UsageError(files.length ? 'give exactly one file' : 'give the backup file');
   return files[0]!;
 }
+
+/** Backup and restore copy the SQLite file; a PostgreSQL database (DATABASE_URL) is copied with its own tools. */
+export function refuseWithPostgres(env: NodeJS.ProcessEnv = process.env): void {
+  if (env.DATABASE_URL) {
+    throw new OperationRefused('DATABASE_URL selects PostgreSQL; copy it with pg_dump and pg_restore (see README, "Databases")');
+  }
+}

@@ -72,7 +72,7 @@ async function signedCase(): Promise<{ c: CaseDetail; report: ReportDetail }> {
 const amend = (agent: Agent, id: number, body: Record<string, unknown>) => agent.post(`/api/cases/${id}/amend`).send(body);
 
 async function failedLogins(email: string): Promise<number> {
-  const [rows] = await t.sequelize.query('SELECT failedLogins FROM users WHERE email = ?', { replacements: [email] });
+  const [rows] = await t.sequelize.query('SELECT "failedLogins" FROM users WHERE email = ?', { replacements: [email] });
   return (rows as { failedLogins: number }[])[0]!.failedLogins;
 }
 
@@ -287,7 +287,7 @@ describe('refusals and races', () => {
     const { c } = await signedCase();
     const answers = await Promise.all([1, 2, 3].map(() => amend(director, c.id, { reason: REASON, password: DEMO_PASSWORD })));
     expect(answers.map((a) => a.status).sort()).toEqual([200, 409, 409]);
-    const [rows] = await t.sequelize.query(`SELECT COUNT(*) AS n FROM audit_events WHERE caseId = ? AND action = 'amend'`, { replacements: [c.id] });
+    const [rows] = await t.sequelize.query(`SELECT COUNT(*) AS n FROM audit_events WHERE "caseId" = ? AND action = 'amend'`, { replacements: [c.id] });
     expect((rows as { n: number }[])[0]!.n).toBe(1);
   });
 

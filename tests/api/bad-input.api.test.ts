@@ -202,7 +202,7 @@ describe('the laboratory time zone', () => {
   it('when a bad zone is already in the database, then case lists, registration and signing keep working in UTC with a notice', async () => {
     const original = await profile();
     const awaiting = await createCaseAwaitingReview(tech, { referringClinicianId: clinicianId });
-    await t.sequelize.query(`UPDATE lab_profiles SET timeZone = 'Europe/Londn'`);
+    await t.sequelize.query(`UPDATE lab_profiles SET "timeZone" = 'Europe/Londn'`);
     try {
       const shown = await profile();
       expect(shown.timeZone).toBe('UTC');
@@ -229,7 +229,7 @@ describe('the laboratory time zone', () => {
       expect(fixed.status, JSON.stringify(fixed.body)).toBe(200);
       expect(fixed.body).toMatchObject({ timeZone: 'Europe/London', timeZoneNotice: null });
     } finally {
-      await t.sequelize.query(`UPDATE lab_profiles SET timeZone = :zone`, { replacements: { zone: original.timeZone } });
+      await t.sequelize.query(`UPDATE lab_profiles SET "timeZone" = :zone`, { replacements: { zone: original.timeZone } });
     }
   });
 });

@@ -31,7 +31,7 @@ async function writtenCounts() {
 
 async function setState(caseId: number, state: CaseState): Promise<number> {
   // A state set by hand is not a reopened case: the amendment marker is cleared with it.
-  await t.sequelize.query(`UPDATE cases SET state = :state, amendReason = NULL, amendedAt = NULL WHERE id = :id`, { replacements: { state, id: caseId } });
+  await t.sequelize.query(`UPDATE cases SET state = :state, "amendReason" = NULL, "amendedAt" = NULL WHERE id = :id`, { replacements: { state, id: caseId } });
   const [[row]] = (await t.sequelize.query(`SELECT version FROM cases WHERE id = ${caseId}`)) as [{ version: number }[], unknown];
   return row!.version;
 }
@@ -137,7 +137,7 @@ describe('GET /api/cases: search, filters, sort and pages', () => {
       [c.id, 'isolated:CII+raised_cs'],
       [d.id, 'normal; isolated:CIV'],
     ];
-    for (const [id, code] of codes) await t.sequelize.query(`UPDATE cases SET patternCode = '${code}' WHERE id = ${id}`);
+    for (const [id, code] of codes) await t.sequelize.query(`UPDATE cases SET "patternCode" = '${code}' WHERE id = ${id}`);
     const ids = async (pattern: string) =>
       ((await tech.get(`/api/cases?pattern=${encodeURIComponent(pattern)}&pageSize=200`)).body.items as { id: number }[])
         .map((x) => x.id)
@@ -151,8 +151,8 @@ describe('GET /api/cases: search, filters, sort and pages', () => {
     const res = await tech.get(`/api/cases?pattern=isolated:CI&q=${a.accession}`);
     expect(res.body.items[0].patternCode).toBe('isolated:CI');
     // A code written again replaces the old findings; a cleared code leaves none.
-    await t.sequelize.query(`UPDATE cases SET patternCode = 'normal' WHERE id = ${a.id}`);
-    await t.sequelize.query(`UPDATE cases SET patternCode = NULL WHERE id = ${d.id}`);
+    await t.sequelize.query(`UPDATE cases SET "patternCode" = 'normal' WHERE id = ${a.id}`);
+    await t.sequelize.query(`UPDATE cases SET "patternCode" = NULL WHERE id = ${d.id}`);
     expect(await ids('isolated')).toEqual([c.id]);
     expect(await ids('normal')).toEqual([a.id]);
   });
@@ -218,7 +218,7 @@ describe('POST /api/cases: registration and accession numbers', () => {
     expect(first.body.specimens.map((s: { label: string }) => s.label)).toEqual(['A']);
     expect(seqOf(second.body.accession)).toBe(seqOf(first.body.accession) + 1);
     expect(yearOf(first.body.accession)).toBe(new Date().getUTCFullYear());
-    const [events] = await t.sequelize.query(`SELECT entity, action FROM audit_events WHERE caseId = ${first.body.id} ORDER BY id`);
+    const [events] = await t.sequelize.query(`SELECT entity, action FROM audit_events WHERE "caseId" = ${first.body.id} ORDER BY id`);
     expect(events).toEqual([
       { entity: 'case', action: 'create' },
       { entity: 'specimen', action: 'create' },
@@ -423,7 +423,7 @@ describe('transitionCase: the workflow', () => {
     const c = await createCase(tech);
     const moved = await transitionCase(t.sequelize, tec, c.id, 'in_assay', { version: c.version });
     expect(moved).toMatchObject({ state: 'in_assay', version: c.version + 1 });
-    const [rows] = await t.sequelize.query(`SELECT action, "before", "after" FROM audit_events WHERE caseId = ${c.id} AND action = 'state-change'`);
+    const [rows] = await t.sequelize.query(`SELECT action, "before", "after" FROM audit_events WHERE "caseId" = ${c.id} AND action = 'state-change'`);
     expect(rows).toHaveLength(1);
     const row = rows[0] as { before: string; after: string };
     expect(JSON.parse(row.before)).toMatchObject({ state: 'received' });
@@ -514,9 +514,9 @@ describe('GET /api/cases at a larger scale (the text index and the index-walking
       );
     }
     await t.sequelize.query(
-      `INSERT INTO cases (accession, patientId, referringClinicianId, clinicalIndication, priority, state, receivedAt, specimenTypes, searchText, patientName, version, createdAt, updatedAt) VALUES ${values.join(',')}`,
+      `INSERT INTO cases (accession, "patientId", "referringClinicianId", "clinicalIndication", priority, state, "receivedAt", "specimenTypes", "searchText", "patientName", version, "createdAt", "updatedAt") VALUES ${values.join(',')}`,
     );
-    const [rows] = await t.sequelize.query('SELECT id, accession, patientName, receivedAt, specimenTypes, searchText, state FROM cases');
+    const [rows] = await t.sequelize.query('SELECT id, accession, "patientName", "receivedAt", "specimenTypes", "searchText", state FROM cases');
     all = (rows as Row[]).map((r) => ({ ...r, receivedAt: new Date(String(r.receivedAt)).toISOString() }));
   });
 

@@ -19,12 +19,12 @@ describe('first administrator', () => {
   });
 
   it('when no administrator is active, then one is created, audited without the password, and can sign in', async () => {
-    await t.sequelize.query("UPDATE users SET active = 0 WHERE role = 'admin'");
+    await t.sequelize.query("UPDATE users SET active = false WHERE role = 'admin'");
     expect(await countActiveAdministrators()).toBe(0);
     const created = await ensureFirstAdministrator(t.sequelize, spec);
     expect(created).toMatchObject({ email: 'first.admin@fernhollow.test', role: 'admin', active: true, name: 'Wren Aldous' });
     const [events] = await t.sequelize.query(
-      `SELECT actorId, note, after FROM audit_events WHERE entity = 'user' AND entityId = '${created!.id}' AND action = 'create'`,
+      `SELECT "actorId", note, "after" FROM audit_events WHERE entity = 'user' AND "entityId" = '${created!.id}' AND action = 'create'`,
     );
     expect(events).toEqual([{ actorId: null, note: 'administrator created by BOOTSTRAP_ADMIN_EMAIL at start-up', after: expect.any(String) }]);
     expect((events as { after: string }[])[0]!.after).not.toContain(spec.password);

@@ -21,7 +21,7 @@ describe('POST /api/patients', () => {
     // Assert
     expect(res.status).toBe(201);
     expect(res.body).toMatchObject({ labPatientId: 'FX-LOWER-1', familyName: input.familyName, version: 0 });
-    const [events] = await t.sequelize.query(`SELECT action FROM audit_events WHERE entity = 'patient' AND entityId = '${res.body.id}'`);
+    const [events] = await t.sequelize.query(`SELECT action FROM audit_events WHERE entity = 'patient' AND "entityId" = '${res.body.id}'`);
     expect(events).toEqual([{ action: 'create' }]);
   });
 

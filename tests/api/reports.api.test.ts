@@ -117,7 +117,7 @@ describe('signing a case', () => {
     expect(served).toBe(signed.pdfSha256);
     // RFC 9110 §8.8.3: an entity tag is a quoted string.
     expect(file.headers.etag).toBe(`"${served}"`);
-    const [row] = (await t.sequelize.query('SELECT pdfSha256, document, documentSha256 FROM reports WHERE id = ?', {
+    const [row] = (await t.sequelize.query('SELECT "pdfSha256", document, "documentSha256" FROM reports WHERE id = ?', {
       replacements: [signed.id],
     }))[0] as { pdfSha256: string; document: string; documentSha256: string }[];
     expect(row!.pdfSha256).toBe(served);
@@ -169,9 +169,9 @@ describe('signing a case', () => {
   });
 
   it('when the report row is altered directly in the database, then the database refuses it', async () => {
-    const failure = async (sql: string) => {
+    const failure = async (sql: string, values: unknown[] = []) => {
       try {
-        await t.sequelize.query(sql, { replacements: [signed.id] });
+        await t.sequelize.query(sql, { replacements: [...values, signed.id] });
         return 'no error';
       } catch (err) {
         const e = err as { parent?: Error; original?: Error; message: string };
@@ -179,7 +179,7 @@ describe('signing a case', () => {
       }
     };
     expect(await failure("UPDATE reports SET interpretation = 'changed' WHERE id = ?")).toMatch(/cannot be changed/);
-    expect(await failure('UPDATE reports SET pdf = x\'00\' WHERE id = ?')).toMatch(/cannot be changed/);
+    expect(await failure('UPDATE reports SET pdf = ? WHERE id = ?', [Buffer.from([0])])).toMatch(/cannot be changed/);
     expect(await failure('DELETE FROM reports WHERE id = ?')).toMatch(/cannot be deleted/);
   });
 });

@@ -142,7 +142,7 @@ describe('submission for review', () => {
     expect(again.computedAt).toBe(submitted.computedAt);
     // The numbers and the intervals they were compared with are those of the live view before submission.
     expect(again.specimens).toEqual(live.specimens);
-    const stored = await t.sequelize.query(`SELECT patternCode, resultsSnapshot FROM cases WHERE id = ${caseId}`, { plain: true });
+    const stored = await t.sequelize.query(`SELECT "patternCode", "resultsSnapshot" FROM cases WHERE id = ${caseId}`, { plain: true });
     expect(stored!.patternCode).toBe('isolated:CI');
     expect(JSON.parse(stored!.resultsSnapshot as string).specimens[0].assays.find((a: { assay: string }) => a.assay === 'CI').ratioCs.interval.id).toBe(
       row(live, 'CI').ratioCs!.interval!.id,
@@ -158,7 +158,7 @@ describe('submission for review', () => {
     const res = await tech.post(`/api/cases/${caseId}/submit`).send({ version: v });
     expect(res.status).toBe(409);
     expect(res.body.error.code).toBe('STALE_VERSION');
-    const stored = await t.sequelize.query(`SELECT state, resultsSnapshot FROM cases WHERE id = ${caseId}`, { plain: true });
+    const stored = await t.sequelize.query(`SELECT state, "resultsSnapshot" FROM cases WHERE id = ${caseId}`, { plain: true });
     expect(stored).toEqual({ state: 'in_assay', resultsSnapshot: null });
   });
 

@@ -34,7 +34,7 @@ describe('POST /api/cases/:id/specimens', () => {
     const list = await tech.get(`/api/cases?q=${c.accession}`);
     expect(list.body.items[0].specimenTypes.sort()).toEqual(['fibroblasts', 'liver', 'skeletal_muscle']);
     expect(list.body.items[0].receivedAt).toBe(b.body.receivedAt);
-    const [events] = await t.sequelize.query(`SELECT COUNT(*) AS n FROM audit_events WHERE caseId = ${c.id} AND entity = 'specimen' AND action = 'create'`);
+    const [events] = await t.sequelize.query(`SELECT COUNT(*) AS n FROM audit_events WHERE "caseId" = ${c.id} AND entity = 'specimen' AND action = 'create'`);
     expect(events).toEqual([{ n: 3 }]);
   });
 

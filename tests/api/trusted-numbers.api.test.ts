@@ -95,7 +95,7 @@ describe('saving measurements with impossible inputs', () => {
 
   it('when every stored number is read back, then none is non-finite (the database holds no Infinity or NaN)', async () => {
     const [rows] = await t.sequelize.query(
-      "SELECT COUNT(*) AS n FROM measurements WHERE activity IS NOT NULL AND (activity > 1e300 OR activity < -1e300 OR activity != activity)",
+      "SELECT COUNT(*) AS n FROM measurements WHERE activity IS NOT NULL AND (activity > 1e300 OR activity < -1e300 OR activity != activity OR activity = 'NaN')",
     );
     expect((rows as { n: number }[])[0]!.n).toBe(0);
   });

@@ -12,7 +12,7 @@ export type ProcessResult = { code: number | null; stdout: string; stderr: strin
 function baseEnv(): NodeJS.ProcessEnv {
   const env = { ...process.env };
   for (const k of Object.keys(env)) {
-    if (/^(NODE_ENV|SESSION_SECRET|TRUST_PROXY|SEED_DEMO|DEMO_PASSWORD|APP_ORIGIN|DATABASE_PATH|PORT|ADMIN_PASSWORD|BOOTSTRAP_ADMIN_|SMTP_)/.test(k)) delete env[k];
+    if (/^(NODE_ENV|SESSION_SECRET|TRUST_PROXY|SEED_DEMO|DEMO_PASSWORD|APP_ORIGIN|DATABASE_PATH|DATABASE_URL|PORT|ADMIN_PASSWORD|BOOTSTRAP_ADMIN_|SMTP_)/.test(k)) delete env[k];
   }
   return env;
 }

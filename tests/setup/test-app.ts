@@ -6,7 +6,7 @@ import { loadConfig } from '../../server/config';
 import { initModels } from '../../server/db/models';
 import { migrate } from '../../server/db/migrate';
 import { demoAccounts, seedDemoIfEmpty } from '../../server/db/seed/demo';
-import { openDatabase } from '../../server/db/sequelize';
+import { openTestDatabase } from './test-database';
 import { ensureDefaultDefinitions } from '../../server/modules/assay-definitions/assay-definitions.service';
 import type { Role } from '@/schemas/common';
 
@@ -31,9 +31,13 @@ function sameOriginAgent(app: Express) {
   return agent;
 }
 
-/** A fresh in-memory database with migrations and the demo seed, and an app on top of it. */
+/**
+ * A fresh database with migrations and the demo seed, and an app on top of it: in-memory SQLite, or a database
+ * of its own on the PostgreSQL test server (tests/setup/test-database.ts), dropped by close().
+ */
 export async function makeTestApp(overrides: Partial<AppOptions> = {}): Promise<TestApp> {
-  const sequelize = await openDatabase(':memory:');
+  const db = await openTestDatabase({ seeded: true });
+  const sequelize = db.sequelize;
   initModels(sequelize);
   await migrate(sequelize);
   await ensureDefaultDefinitions(sequelize);
@@ -54,11 +58,11 @@ export async function makeTestApp(overrides: Partial<AppOptions> = {}): Promise<
       return agent;
     },
     withOptions,
-    close: () => sequelize.close(),
+    close: db.drop,
   };
 }
 
 export async function countRows(sequelize: Sequelize, table: string): Promise<number> {
   const [rows] = await sequelize.query(`SELECT COUNT(*) AS n FROM "${table}"`);
-  return (rows as { n: number }[])[0]!.n;
+  return Number((rows as { n: number | string }[])[0]!.n); // PostgreSQL answers a bigint, as a string
 }

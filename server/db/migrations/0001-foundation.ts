@@ -1,4 +1,5 @@
 import { DataTypes, type QueryInterface } from 'sequelize';
+import { refuseOnPostgres } from '../postgres-triggers';
 
 export const name = '0001-foundation';
 
@@ -53,6 +54,11 @@ export async function up({ context: qi }: { context: QueryInterface }): Promise<
   await qi.addIndex('audit_events', ['caseId']);
   await qi.addIndex('audit_events', ['entity', 'entityId']);
   // Append-only at the storage level: no code path, however written, can change or remove an event.
+  if (qi.sequelize.getDialect() === 'postgres') {
+    await refuseOnPostgres(qi, 'audit_events_no_update', 'audit_events', 'UPDATE', 'audit events are append-only');
+    await refuseOnPostgres(qi, 'audit_events_no_delete', 'audit_events', 'DELETE', 'audit events are append-only');
+    return;
+  }
   await qi.sequelize.query(
     `CREATE TRIGGER audit_events_no_update BEFORE UPDATE ON audit_events
      BEGIN SELECT RAISE(ABORT, 'audit events are append-only'); END`,

@@ -1,4 +1,5 @@
 import { DataTypes, type QueryInterface } from 'sequelize';
+import { refuseOnPostgres } from '../postgres-triggers';
 
 export const name = '0006-reports';
 
@@ -110,6 +111,11 @@ export async function up({ context: qi }: { context: QueryInterface }): Promise<
   });
   await qi.addIndex('mail_deliveries', ['reportId']);
 
+  if (qi.sequelize.getDialect() === 'postgres') {
+    const changed = 'A signed report cannot be changed; issue a corrected report instead';
+    await refuseOnPostgres(qi, 'reports_signed_content_frozen', 'reports', 'UPDATE', changed, FROZEN_COLUMNS);
+    await refuseOnPostgres(qi, 'reports_never_deleted', 'reports', 'DELETE', 'A signed report cannot be deleted');
+  }
   if (qi.sequelize.getDialect() === 'sqlite') {
     // A signed report is a record: the database itself refuses to alter its content or delete it.
     await qi.sequelize.query(

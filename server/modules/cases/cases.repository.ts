@@ -6,6 +6,7 @@ import { displayName, foldText } from '../patients/patient-names';
 import { findPatientById } from '../patients/patients.repository';
 import { listSpecimensOfCase } from '../specimens/specimens.repository';
 import { UserModel } from '../users/user.model';
+import { isPostgres } from '../../db/sequelize';
 import { AccessionCounterModel, CaseModel } from './case.model';
 
 /** The stored case, as services see it (dates as Date, list columns decoded). */
@@ -65,12 +66,13 @@ export function caseSearchText(accession: string, p: Pick<Patient, 'familyName' 
 
 /**
  * Takes the next number of the year's sequence: insert the year's counter at 1 or add one to it, then read it
- * back. Both run inside the caller's write transaction, which holds SQLite's write lock from its start, so no
+ * back. Both run inside the caller's write transaction, which holds the write lock from its start (SQLite's, or
+ * the advisory lock on PostgreSQL; the upsert also locks the counter's row), so no
  * other writer can take the same number, and the number commits (or rolls back) with the case that uses it.
  */
 export async function allocateAccessionNumber(year: number, transaction: Transaction): Promise<number> {
   await AccessionCounterModel.sequelize!.query(
-    `INSERT INTO accession_counters (year, last) VALUES (:year, 1) ON CONFLICT(year) DO UPDATE SET last = last + 1`,
+    `INSERT INTO accession_counters (year, last) VALUES (:year, 1) ON CONFLICT(year) DO UPDATE SET last = accession_counters.last + 1`,
     { replacements: { year }, transaction },
   );
   const row = await AccessionCounterModel.findByPk(year, { transaction });
@@ -223,7 +225,43 @@ type ListWhere = {
   soleCount: string | null;
 };
 
+/** LIKE's wildcards and escape character taken literally (PostgreSQL's default escape is the backslash). */
+const likeFragment = (t: string) => `%${t.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+
+/** The list's filters on PostgreSQL: a pg_trgm index serves LIKE '%fragment%', strpos() the partial indexes. */
+function listWherePostgres(f: CaseListFilter): ListWhere {
+  const and: string[] = [];
+  const replacements: Record<string, unknown> = {};
+  f.tokens.forEach((t, i) => {
+    replacements[`t${i}`] = likeFragment(t);
+    and.push(`c."searchText" LIKE :t${i}`);
+  });
+  if (f.state) {
+    replacements.state = f.state;
+    and.push('c.state = :state');
+  }
+  if (f.specimenType) {
+    replacements.specimenType = `,${f.specimenType},`;
+    and.push('strpos(c."specimenTypes", :specimenType) > 0');
+  }
+  if (f.pattern) {
+    const column = f.pattern.includes(':') ? 'item' : 'kind';
+    replacements.pattern = f.pattern;
+    and.push(`c.id IN (SELECT "caseId" FROM case_patterns WHERE ${column} = :pattern)`);
+  }
+  if (f.fromUtc) {
+    replacements.fromUtc = f.fromUtc;
+    and.push('c."receivedAt" >= :fromUtc');
+  }
+  if (f.toUtc) {
+    replacements.toUtc = f.toUtc;
+    and.push('c."receivedAt" < :toUtc');
+  }
+  return { sql: and.length ? `WHERE ${and.join(' AND ')}` : '', replacements, soleCount: null };
+}
+
 function listWhere(f: CaseListFilter): ListWhere {
+  if (isPostgres(CaseModel.sequelize!)) return listWherePostgres(f);
   const and: string[] = [];
   let soleCount: string | null = null;
   const replacements: Record<string, unknown> = {};
@@ -242,7 +280,7 @@ function listWhere(f: CaseListFilter): ListWhere {
     .filter((t) => [...t].length < TRIGRAM)
     .forEach((t, i) => {
       replacements[`t${i}`] = t;
-      and.push(`instr(c.searchText, :t${i}) > 0`);
+      and.push(`instr(c."searchText", :t${i}) > 0`);
     });
   if (f.state) {
     replacements.state = f.state;
@@ -251,35 +289,35 @@ function listWhere(f: CaseListFilter): ListWhere {
   if (f.specimenType) {
     // Written exactly as the partial indexes of migration 0003 are, so the planner can use them.
     replacements.specimenType = `,${f.specimenType},`;
-    and.push(`instr(${plus}c.specimenTypes, :specimenType) > 0`);
+    and.push(`instr(${plus}c."specimenTypes", :specimenType) > 0`);
   }
   if (f.pattern) {
     // Findings of the results module's pattern code, one row each (migration 0003): a kind ("isolated")
     // matches any of its findings, a full finding ("isolated:CI") only itself.
     if (f.pattern.includes(':')) {
       replacements.patternItem = f.pattern;
-      and.push('c.id IN (SELECT caseId FROM case_patterns WHERE item = :patternItem)');
-      soleCount = 'SELECT COUNT(DISTINCT caseId) AS n FROM case_patterns WHERE item = :patternItem';
+      and.push('c.id IN (SELECT "caseId" FROM case_patterns WHERE item = :patternItem)');
+      soleCount = 'SELECT COUNT(DISTINCT "caseId") AS n FROM case_patterns WHERE item = :patternItem';
     } else {
       replacements.patternKind = f.pattern;
-      and.push('c.id IN (SELECT caseId FROM case_patterns WHERE kind = :patternKind)');
-      soleCount = 'SELECT COUNT(DISTINCT caseId) AS n FROM case_patterns WHERE kind = :patternKind';
+      and.push('c.id IN (SELECT "caseId" FROM case_patterns WHERE kind = :patternKind)');
+      soleCount = 'SELECT COUNT(DISTINCT "caseId") AS n FROM case_patterns WHERE kind = :patternKind';
     }
   }
   if (f.fromUtc) {
     replacements.fromUtc = f.fromUtc;
-    and.push(`${plus}c.receivedAt >= :fromUtc`);
+    and.push(`${plus}c."receivedAt" >= :fromUtc`);
   }
   if (f.toUtc) {
     replacements.toUtc = f.toUtc;
-    and.push(`${plus}c.receivedAt < :toUtc`);
+    and.push(`${plus}c."receivedAt" < :toUtc`);
   }
   return { sql: and.length ? `WHERE ${and.join(' AND ')}` : '', replacements, soleCount: and.length === 1 ? soleCount : null };
 }
 
 /** Which index to walk for the page, when the matches are many (see WALK_SORT_INDEX_ABOVE). */
 function sortIndexHint(f: CaseListFilter, total: number): string {
-  if (total <= WALK_SORT_INDEX_ABOVE) return '';
+  if (total <= WALK_SORT_INDEX_ABOVE || isPostgres(CaseModel.sequelize!)) return '';
   const sort = f.sort ?? 'receivedAt';
   // With a state filter, the (state, receivedAt) index already yields rows in receipt order.
   if (sort === 'receivedAt' && !f.state) return 'INDEXED BY cases_received_at';
@@ -302,20 +340,21 @@ type ListRow = {
 export async function listCaseSummaries(f: CaseListFilter): Promise<{ items: CaseSummary[]; total: number }> {
   const sequelize = CaseModel.sequelize!;
   const { sql: where, replacements, soleCount } = listWhere(f);
-  const [{ n: total }] = (await sequelize.query(soleCount ?? `SELECT COUNT(*) AS n FROM cases c ${where}`, {
+  const [{ n }] = (await sequelize.query(soleCount ?? `SELECT COUNT(*) AS n FROM cases c ${where}`, {
     replacements,
     type: QueryTypes.SELECT,
-  })) as [{ n: number }];
+  })) as [{ n: number | string }];
+  const total = Number(n); // PostgreSQL answers a bigint, as a string
   if (total === 0 || f.offset >= total) return { items: [], total };
 
   const dir = f.dir ?? (f.sort && f.sort !== 'receivedAt' ? 'asc' : 'desc');
   const direction = dir === 'asc' ? 'ASC' : 'DESC';
   const column = sortColumn[f.sort ?? 'receivedAt'];
   const rows = (await sequelize.query(
-    `SELECT c.id, c.accession, c.state, c.patientName, c.specimenTypes, c.receivedAt, c.priority, c.patternCode,
-            u.name AS clinicianName
+    `SELECT c.id, c.accession, c.state, c."patientName", c."specimenTypes", c."receivedAt", c.priority, c."patternCode",
+            u.name AS "clinicianName"
        FROM cases c ${sortIndexHint(f, total)}
-       LEFT JOIN users u ON u.id = c.referringClinicianId
+       LEFT JOIN users u ON u.id = c."referringClinicianId"
        ${where}
       ORDER BY c."${column}" ${direction}, c.id ${direction}
       LIMIT :limit OFFSET :offset`,

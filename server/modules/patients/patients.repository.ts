@@ -1,5 +1,6 @@
 import { Op, Sequelize, type Transaction, type WhereOptions } from 'sequelize';
 import type { Patient } from '@/schemas/case';
+import { isPostgres } from '../../db/sequelize';
 import { PatientModel } from './patient.model';
 
 function toPatient(row: PatientModel): Patient {
@@ -39,11 +40,13 @@ export async function findPatientsByNameAndBirth(
  * then names, alphabetically.
  */
 export async function searchPatients(tokens: string[], limit: number): Promise<Patient[]> {
+  // SQLite's instr(text, fragment) is PostgreSQL's strpos(text, fragment): the position, 0 when absent.
+  const position = isPostgres(PatientModel.sequelize!) ? 'strpos' : 'instr';
   const conditions: WhereOptions[] = tokens.map((t) => ({
     [Op.or]: [
-      Sequelize.where(Sequelize.fn('instr', Sequelize.col('nameKey'), t), Op.gt, 0),
-      Sequelize.where(Sequelize.fn('instr', Sequelize.fn('lower', Sequelize.col('labPatientId')), t), Op.gt, 0),
-      Sequelize.where(Sequelize.fn('instr', Sequelize.col('dateOfBirth'), t), Op.gt, 0),
+      Sequelize.where(Sequelize.fn(position, Sequelize.col('nameKey'), t), Op.gt, 0),
+      Sequelize.where(Sequelize.fn(position, Sequelize.fn('lower', Sequelize.col('labPatientId')), t), Op.gt, 0),
+      Sequelize.where(Sequelize.fn(position, Sequelize.col('dateOfBirth'), t), Op.gt, 0),
     ],
   }));
   const first = tokens[0] ?? '';
