@@ -74,6 +74,7 @@ export function createAppRouter(queryClient: QueryClient) {
         page('intervalDetail', () => import('./routes/intervals/interval-detail')),
         page('qc', () => import('./routes/qc/qc')),
         page('qcMaterial', () => import('./routes/qc/control-material')),
+        page('cohorts', () => import('./routes/registry/cohorts')),
         page('adminUsers', () => import('./routes/admin/accounts')),
         page('adminLab', () => import('./routes/admin/laboratory')),
         page('review', () => import('./routes/review/review-queue')),
