@@ -219,6 +219,7 @@ export const plateIssueCodes = [
   'NOT_A_NUMBER',
   'TIME_NOT_INCREASING',
   'COMMENT_AFTER_HEADER',
+  'BAD_QUOTING',
   'BAD_METADATA',
   'MAP_INVALID',
   'MISSING_WELL',

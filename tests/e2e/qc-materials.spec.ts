@@ -2,28 +2,21 @@ import path from 'node:path';
 import { Sequelize } from 'sequelize';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BrowserContext } from 'playwright-core';
+import { useAppInBrowser } from './support/app';
 import { launchBrowser, screenshot, signIn } from './support/browser';
-import { startServer, type RunningServer } from './support/server';
 
-let server: RunningServer;
-let browser: BrowserContext;
-/** The demo's second director approves what the first one drafts. */
+const app = useAppInBrowser();
+/** A second browser profile for the demo's second director, who approves what the first one drafts. */
 let browser2: BrowserContext;
 beforeAll(async () => {
-  server = await startServer();
-  browser = await launchBrowser();
   browser2 = await launchBrowser();
 });
-afterAll(async () => {
-  await browser?.close();
-  await browser2?.close();
-  await server?.stop();
-});
+afterAll(() => browser2?.close());
 
 describe('quality control materials, in Chromium', () => {
   it('when a director adds two levels and enters CI targets, and a second director approves them, then each level shows its Levey–Jennings chart', async () => {
-    const page = await browser.newPage();
-    await signIn(page, server.origin, 'director@demo.test');
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'director@demo.test');
     await page.getByRole('link', { name: 'Quality control' }).click();
     await page.getByRole('heading', { name: 'Control materials' }).waitFor();
 
@@ -33,7 +26,7 @@ describe('quality control materials, in Chromium', () => {
       ['Low', '42.5', '3.1'],
       ['High', '118', '7.4'],
     ] as const) {
-      await page.goto(`${server.origin}/qc`);
+      await page.goto(`${app.server.origin}/qc`);
       await page.getByRole('button', { name: 'New control material' }).click();
       const form = page.getByRole('form', { name: 'New control material' });
       await form.getByLabel('Material').fill('Fernhollow pooled muscle homogenate');
@@ -63,7 +56,7 @@ describe('quality control materials, in Chromium', () => {
     await screenshot(page, 'qc-material-draft-target');
 
     const page2 = await browser2.newPage();
-    await signIn(page2, server.origin, 'director2@demo.test');
+    await signIn(page2, app.server.origin, 'director2@demo.test');
     for (const url of materialUrls) {
       await page2.goto(url);
       await page2.getByRole('button', { name: 'Approve v1' }).click();
@@ -81,7 +74,7 @@ describe('quality control materials, in Chromium', () => {
     }
     await screenshot(page, 'qc-material-chart');
 
-    await page.goto(`${server.origin}/qc`);
+    await page.goto(`${app.server.origin}/qc`);
     await page.getByRole('row', { name: /FH-2607 High .* CI/ }).waitFor();
     await screenshot(page, 'qc-overview');
     await page2.close();
@@ -111,7 +104,7 @@ describe('quality control materials, in Chromium', () => {
 
 /** Inserts runs with one control result each for the material (CI), judged against its approved target. */
 async function storeRuns(materialId: number, runs: [string, number, 'accept' | 'warn' | 'reject', boolean][]): Promise<number[]> {
-  const db = new Sequelize({ dialect: 'sqlite', storage: path.join(server.dataDir, 'cristae.sqlite'), logging: false });
+  const db = new Sequelize({ dialect: 'sqlite', storage: path.join(app.server.dataDir, 'cristae.sqlite'), logging: false });
   try {
     const [[target]] = (await db.query(
       `SELECT id, mean, sd FROM control_targets WHERE "controlMaterialId" = ? AND "assayCode" = 'CI' AND status = 'approved'`,

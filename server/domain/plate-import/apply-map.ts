@@ -58,7 +58,15 @@ function checkMap(map: PlateMap): PlateMap {
  * warnings, not errors: plate readers commonly export the whole plate.
  */
 export function applyPlateMap(parsed: PlateParseResult, map: PlateMap): MappedPlate {
-  const checked = checkMap(map);
+  return mapCheckedEntries(parsed, checkMap(map).wells);
+}
+
+/**
+ * applyPlateMap for entries already checked by their own schema (a run's layout, whose wells may lie
+ * beyond H12 and whose labels are the run's group owners).
+ */
+export function mapCheckedEntries(parsed: PlateParseResult, entries: PlateMapEntry[]): MappedPlate {
+  const checked = { wells: entries };
   const byWell = new Map(parsed.wells.map((w) => [w.well, w]));
   const issues: IssueList = new IssueList();
 

@@ -1,9 +1,14 @@
+import { parse as parseCsv, CsvError } from 'csv-parse/sync';
 import {
+  describeWellRange,
   MIN_PLATE_READINGS,
-  normaliseWellId,
+  normaliseWellIdFor,
+  plateDimensions,
+  plateRowsOf,
   PLATE_TIME_COLUMN,
   type ParsedWell,
   type PlateDelimiter,
+  type PlateFormat,
   type PlateParseResult,
 } from '@/schemas/plate';
 import { decodePlateText } from './decode-text';
@@ -14,7 +19,8 @@ import { IssueList } from './errors';
  *   # optional comment lines, "# key: value" kept as metadata
  *   time_s,A1,A2,...        header: time column first, then one column per well
  *   0,0.812,0.797,...        one row per reading: seconds, then absorbances
- * Comma or tab, chosen from the header line. Every problem found is reported at once.
+ * Comma or tab, chosen from the header line. Cells are read by csv-parse (RFC 4180 quoting); lines and the
+ * comment block are found here so that every problem names its line. Every problem found is reported at once.
  */
 
 const NUMBER_PATTERN = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
@@ -30,13 +36,40 @@ function splitLines(text: string): string[] {
   return text.split(/\r\n|\r|\n/);
 }
 
-/** Trims a cell and removes one pair of surrounding double quotes ("" inside stands for "). */
-function cleanCell(raw: string): string {
-  const t = raw.trim();
-  if (t.length >= 2 && t.startsWith('"') && t.endsWith('"')) {
-    return t.slice(1, -1).replaceAll('""', '"').trim();
+type CsvRecord = { row: number; cells: string[] };
+
+/**
+ * Reads the cells of `lines` (the file from `firstRow` on) with csv-parse: quoted cells may hold the separator
+ * ("" inside stands for "), cells are trimmed, blank lines skipped. Each record keeps its 1-based line number.
+ * An unclosed quote is reported at its line and ends the reading.
+ */
+function readCsvRecords(lines: string[], firstRow: number, delimiter: PlateDelimiter, issues: IssueList): CsvRecord[] {
+  // One line ending for csv-parse; whitespace-only lines become empty so that they are skipped like blank ones.
+  const text = lines.map((l) => (l.trim() === '' ? '' : l)).join('\n');
+  try {
+    const records = parseCsv(text, {
+      delimiter: delimiterChar[delimiter],
+      record_delimiter: '\n',
+      relax_column_count: true,
+      relax_quotes: true,
+      skip_empty_lines: true,
+      trim: true,
+      bom: false,
+      info: true,
+    }) as unknown as { record: string[]; info: { lines: number } }[];
+    return records.map(({ record, info }) => ({ row: firstRow + info.lines - 1, cells: record.map((c) => c.trim()) }));
+  } catch (err) {
+    if (!(err instanceof CsvError)) throw err;
+    const line = (err as CsvError & { lines?: number }).lines;
+    issues.add(
+      'BAD_QUOTING',
+      err.code === 'CSV_QUOTE_NOT_CLOSED'
+        ? 'A quoted cell is never closed: a double quote (") opens a cell that runs to the end of the file.'
+        : `The cells cannot be read: ${err.message}.`,
+      { row: line === undefined ? null : firstRow + line - 1 },
+    );
+    return issues.fail();
   }
-  return t;
 }
 
 /** A plain decimal number (optionally with exponent); null for anything else. */
@@ -50,7 +83,7 @@ type HeaderResult =
   | { ok: true; delimiter: PlateDelimiter; cells: string[] }
   | { ok: false };
 
-function detectDelimiter(headerText: string, row: number, issues: IssueList): HeaderResult {
+function detectDelimiter(headerText: string, row: number, format: PlateFormat, issues: IssueList): HeaderResult {
   const tabs = headerText.split('\t').length - 1;
   const commas = headerText.split(',').length - 1;
   const semicolons = headerText.split(';').length - 1;
@@ -79,13 +112,17 @@ function detectDelimiter(headerText: string, row: number, issues: IssueList): He
     } else {
       issues.add(
         'NO_WELL_COLUMNS',
-        `The header has a single column; expected ${PLATE_TIME_COLUMN} followed by well columns (A1 to H12), separated by commas or tabs.`,
+        `The header has a single column; expected ${PLATE_TIME_COLUMN} followed by well columns (A1 to ${lastWellOf(format)}), separated by commas or tabs.`,
         { row },
       );
     }
     return { ok: false };
   }
-  return { ok: true, delimiter, cells: headerText.split(delimiterChar[delimiter]).map(cleanCell) };
+  return { ok: true, delimiter, cells: readCsvRecords([headerText], row, delimiter, issues)[0]!.cells };
+}
+
+function lastWellOf(format: PlateFormat): string {
+  return `${plateRowsOf(format).at(-1)!}${plateDimensions[format].columns}`;
 }
 
 interface WellColumn {
@@ -97,6 +134,7 @@ interface WellColumn {
 function readHeaderCells(
   cells: string[],
   row: number,
+  format: PlateFormat,
   issues: IssueList,
 ): { wells: WellColumn[]; timeColumnOk: boolean } {
   const first = cells[0] ?? '';
@@ -104,7 +142,7 @@ function readHeaderCells(
   if (!timeColumnOk) {
     let hint = '';
     if (/^time/i.test(first)) hint = ` Times must be in seconds, in a column named ${PLATE_TIME_COLUMN}.`;
-    else if (normaliseWellId(first) !== null) hint = ' The time column must come before the wells.';
+    else if (normaliseWellIdFor(first, format) !== null) hint = ' The time column must come before the wells.';
     issues.add(
       'BAD_TIME_COLUMN',
       `The first column must be ${PLATE_TIME_COLUMN} (seconds), found "${first}".${hint}`,
@@ -132,11 +170,11 @@ function readHeaderCells(
       });
       return;
     }
-    const well = normaliseWellId(header);
+    const well = normaliseWellIdFor(header, format);
     if (well === null) {
       issues.add(
         'BAD_WELL_NAME',
-        `"${header}" is not a well of a 96-well plate; well columns are named A1 to H12 (row letter A–H, column 1–12).`,
+        `"${header}" is not a well of a ${format}-well plate; well columns are named ${describeWellRange(format)}.`,
         { row, column: header, columnNumber },
       );
       return;
@@ -174,11 +212,11 @@ function notANumberMessage(cell: string, isTime: boolean, delimiter: PlateDelimi
 }
 
 /**
- * Parses an uploaded kinetic plate file. Takes the raw bytes (preferred: the UTF-8 check needs
- * them) or already-decoded text. Returns the readings of every well column, or throws
- * PlateImportError listing every problem found.
+ * Parses an uploaded kinetic plate file of a 24-, 96- (default) or 384-well plate. Takes the raw bytes
+ * (preferred: the UTF-8 check needs them) or already-decoded text. Returns the readings of every well
+ * column, or throws PlateImportError listing every problem found.
  */
-export function parsePlateFile(input: Uint8Array | string): PlateParseResult {
+export function parsePlateFile(input: Uint8Array | string, format: PlateFormat = 96): PlateParseResult {
   const text = decodePlateText(input);
   const lines = splitLines(text);
   // Annotated so that TypeScript treats issues.fail() (returns never) as ending the path.
@@ -235,22 +273,19 @@ export function parsePlateFile(input: Uint8Array | string): PlateParseResult {
   }
 
   const headerRow = headerIndex + 1;
-  const header = detectDelimiter(lines[headerIndex]!, headerRow, issues);
+  const header = detectDelimiter(lines[headerIndex]!, headerRow, format, issues);
   if (!header.ok) issues.fail();
   const { delimiter, cells: headerCells } = header;
-  const { wells: wellColumns, timeColumnOk } = readHeaderCells(headerCells, headerRow, issues);
+  const { wells: wellColumns, timeColumnOk } = readHeaderCells(headerCells, headerRow, format, issues);
   const width = headerCells.length;
-  const sep = delimiterChar[delimiter];
 
   const timesS: number[] = [];
   const readings: number[][] = wellColumns.map(() => []);
   let dataRows = 0;
   let previous: { t: number; row: number } | null = null;
 
-  for (let i = headerIndex + 1; i < lines.length; i += 1) {
-    const line = lines[i]!;
-    const row = i + 1;
-    if (line.trim() === '') continue;
+  for (const { row, cells } of readCsvRecords(lines.slice(headerIndex + 1), headerRow + 1, delimiter, issues)) {
+    const line = lines[row - 1]!;
     if (line.trimStart().startsWith('#')) {
       issues.add(
         'COMMENT_AFTER_HEADER',
@@ -260,7 +295,6 @@ export function parsePlateFile(input: Uint8Array | string): PlateParseResult {
       continue;
     }
     dataRows += 1;
-    const cells = line.split(sep).map(cleanCell);
     if (cells.length !== width) {
       let hint = '';
       if (cells.length === 1 && line.includes(';')) hint = ' The line is separated by semicolons.';

@@ -1,17 +1,13 @@
-import { useQuery } from '@tanstack/react-query';
 import { Link, useParams } from 'react-router-dom';
 import { PageHeader } from '@/components/ui/layout';
 import { paths } from '@/config/paths';
-import { sessionQueries } from '@/features/auth/api/session-queries';
-import { labProfileQueries } from '@/features/lab-profile/api/lab-profile';
 import { IntervalDetail } from '@/features/reference-intervals/components/interval-detail';
 import NotFoundPage from '../not-found';
+import { useApprovalViewer } from '../../use-approval-viewer';
 
 export default function IntervalDetailPage() {
   const { id } = useParams();
-  const { data: user } = useQuery(sessionQueries.me());
-  const isDirector = user?.role === 'director';
-  const { data: profile } = useQuery({ ...labProfileQueries.profile(), enabled: isDirector });
+  const viewer = useApprovalViewer();
   const numeric = Number(id);
   if (!Number.isInteger(numeric) || numeric < 1) return <NotFoundPage />;
   return (
@@ -27,7 +23,7 @@ export default function IntervalDetailPage() {
       <IntervalDetail
         key={numeric}
         id={numeric}
-        viewer={isDirector && user ? { userId: user.id, selfApprovalAllowed: profile?.allowSelfApproval ?? false } : null}
+        viewer={viewer}
       />
     </>
   );
