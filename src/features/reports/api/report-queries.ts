@@ -34,3 +34,6 @@ export const reportQueries = {
 
 /** The stored PDF of a report version; the browser downloads it with the session cookie. */
 export const reportPdfHref = (id: number) => `/api/reports/${id}/pdf`;
+
+/** The same signed version as an HL7 FHIR R4 Bundle (JSON), for a hospital system's import. */
+export const reportFhirHref = (id: number) => `/api/reports/${id}/fhir`;

@@ -3,7 +3,7 @@ import { useMemo, useState } from 'react';
 import { Loading, Notice } from '@/components/ui/layout';
 import { specimenTypeLabels } from '@/schemas/common';
 import type { CaseReports } from '@/schemas/report';
-import { reportPdfHref, reportQueries } from '../api/report-queries';
+import { reportFhirHref, reportPdfHref, reportQueries } from '../api/report-queries';
 import { formatDay, formatWhen } from '@/utils/format';
 import { ChangedValues, UnderAmendmentNote } from './changed-values';
 import { ReportStatus } from './report-status';
@@ -28,13 +28,23 @@ function CaseCard({ group }: { group: CaseReports }) {
             {current.specimenType ? ` · ${specimenTypeLabels[current.specimenType]}` : ''}
           </p>
         </div>
-        <a
-          className="inline-flex items-center rounded-md bg-matrix-700 px-3.5 py-1.5 text-sm font-medium text-white hover:bg-matrix-800"
-          href={reportPdfHref(current.id)}
-          download
-        >
-          Download report (PDF)
-        </a>
+        <div className="flex flex-wrap items-center gap-2">
+          <a
+            className="inline-flex items-center rounded-md bg-matrix-700 px-3.5 py-1.5 text-sm font-medium text-white hover:bg-matrix-800"
+            href={reportPdfHref(current.id)}
+            download
+          >
+            Download report (PDF)
+          </a>
+          <a
+            className="inline-flex items-center rounded-md border border-matrix-300 px-3 py-1.5 text-sm text-matrix-800 hover:bg-matrix-50"
+            href={reportFhirHref(current.id)}
+            download
+            title="HL7 FHIR R4 Bundle: the report with its results, for a hospital record system"
+          >
+            FHIR (JSON)
+          </a>
+        </div>
       </header>
       {group.underAmendment ? (
         <div className="mt-3">
@@ -71,6 +81,9 @@ function CaseCard({ group }: { group: CaseReports }) {
                 <span className="text-ink-faint">signed {formatWhen(r.signedAt)}</span>
                 <a className="text-matrix-700 underline" href={reportPdfHref(r.id)} download>
                   PDF of version {r.version}
+                </a>
+                <a className="text-matrix-700 underline" href={reportFhirHref(r.id)} download>
+                  FHIR (JSON) of version {r.version}
                 </a>
               </li>
             ))}

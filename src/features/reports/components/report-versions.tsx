@@ -1,5 +1,5 @@
 import type { ReportDetail } from '@/schemas/report';
-import { reportPdfHref } from '../api/report-queries';
+import { reportFhirHref, reportPdfHref } from '../api/report-queries';
 import { formatBytes, formatWhen } from '@/utils/format';
 import { ChangedValues, UnderAmendmentNote } from './changed-values';
 import { ReportStatus } from './report-status';
@@ -33,14 +33,24 @@ export function ReportVersions({
                 <ReportStatus status={r.status} supersededBy={r.supersededByVersion} />
                 {r.supersedesVersion ? <span className="text-xs text-ink-soft">replaces version {r.supersedesVersion}</span> : null}
               </div>
-              <a
-                className="inline-flex items-center gap-1 rounded-md border border-matrix-300 px-2.5 py-1 text-sm font-medium text-matrix-800 hover:bg-matrix-50"
-                href={reportPdfHref(r.id)}
-                download
-              >
-                Download PDF, version {r.version}
-                <span className="text-xs font-normal text-ink-faint">({formatBytes(r.pdfSizeBytes)})</span>
-              </a>
+              <div className="flex flex-wrap items-center gap-2">
+                <a
+                  className="inline-flex items-center gap-1 rounded-md border border-matrix-300 px-2.5 py-1 text-sm font-medium text-matrix-800 hover:bg-matrix-50"
+                  href={reportPdfHref(r.id)}
+                  download
+                >
+                  Download PDF, version {r.version}
+                  <span className="text-xs font-normal text-ink-faint">({formatBytes(r.pdfSizeBytes)})</span>
+                </a>
+                <a
+                  className="inline-flex items-center rounded-md border border-paper-line px-2.5 py-1 text-sm text-matrix-800 hover:bg-matrix-50"
+                  href={reportFhirHref(r.id)}
+                  download
+                  title="HL7 FHIR R4 Bundle: the report with its results, for a hospital record system"
+                >
+                  FHIR (JSON), version {r.version}
+                </a>
+              </div>
             </div>
             <p className="mt-1 text-sm text-ink-soft">
               Signed {formatWhen(r.signedAt)} by {r.signedBy}, {r.signerTitle}. <span className="italic">“{r.meaning}”</span>
