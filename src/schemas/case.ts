@@ -287,6 +287,8 @@ export const caseHistoryChangeSchema = z.object({
   field: z.string(),
   before: z.string().nullable(),
   after: z.string().nullable(),
+  /** The unit both values are in ("mg/mL"), so the history can say "from 4.1 to 4.25 mg/mL". */
+  unit: z.string().optional(),
 });
 export type CaseHistoryChange = z.infer<typeof caseHistoryChangeSchema>;
 

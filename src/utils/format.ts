@@ -1,13 +1,21 @@
-/** Dates, times and sizes as every screen shows them. */
-/** "14 Mar 2026, 15:20": date and time in the reader's own zone, day first so no one swaps day and month. */
-export function formatWhen(iso: string): string {
-  const d = new Date(iso);
-  return `${d.toLocaleDateString('en-GB', { day: 'numeric', month: 'short', year: 'numeric' })}, ${d.toLocaleTimeString('en-GB', { hour: '2-digit', minute: '2-digit' })}`;
+import { formatCalendarDate, formatInstant } from '@/schemas/date-format';
+
+/** Dates, times and sizes as every screen shows them (dates as the PDF prints them: src/schemas/date-format.ts). */
+
+let displayZone = Intl.DateTimeFormat().resolvedOptions().timeZone;
+/** The laboratory's zone, from its profile: the shell sets it once signed in, so every time reads as at the bench. */
+export function setDisplayTimeZone(timeZone: string): void {
+  displayZone = timeZone;
 }
 
+/** "14 Mar 2026 15:20" in the laboratory's time zone, day first so no one swaps day and month. */
+export function formatWhen(iso: string): string {
+  return formatInstant(iso, displayZone);
+}
+
+/** "14 Mar 2026": a calendar date (date of birth, report date), no zone shift. */
 export function formatDay(isoDate: string): string {
-  const [y, m, d] = isoDate.split('-').map(Number) as [number, number, number];
-  return new Date(Date.UTC(y, m - 1, d)).toLocaleDateString('en-GB', { day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' });
+  return formatCalendarDate(isoDate);
 }
 
 export function formatBytes(n: number): string {

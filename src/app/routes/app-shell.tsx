@@ -6,7 +6,9 @@ import { canOpen, navigation, paths } from '@/config/paths';
 import { useSignOut } from '@/features/auth/api/sign-in';
 import { sessionQueries } from '@/features/auth/api/session-queries';
 import { roleLabels } from '@/features/accounts/components/role-labels';
+import { labProfileQueries } from '@/features/lab-profile/api/lab-profile';
 import { pageTitle } from '@/hooks/use-page-title';
+import { setDisplayTimeZone } from '@/utils/format';
 import { PasswordRequiredScreen } from './account/password-required';
 
 /**
@@ -30,6 +32,10 @@ function useRouteChange(main: React.RefObject<HTMLElement | null>) {
 
 export function AppShell() {
   const { data: user } = useQuery(sessionQueries.me());
+  // Every time on every page reads in the laboratory's zone; pages wait for it (UTC if the profile fails).
+  const profile = useQuery({ ...labProfileQueries.profile(), enabled: Boolean(user && !user.mustChangePassword) });
+  const zoneKnown = Boolean(profile.data) || profile.isError;
+  if (zoneKnown) setDisplayTimeZone(profile.data?.timeZone ?? 'UTC');
   const navigate = useNavigate();
   const signOut = useSignOut({ onDone: () => navigate(paths.signIn.href()) });
   const [menuOpen, setMenuOpen] = useState(false);
@@ -98,7 +104,7 @@ export function AppShell() {
         </nav>
       </div>
       <main id="main" ref={main} tabIndex={-1} className="min-w-0 flex-1 px-4 py-5 outline-none md:px-8 md:py-7">
-        <Outlet />
+        {zoneKnown ? <Outlet /> : null}
       </main>
     </div>
   );

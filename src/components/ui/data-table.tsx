@@ -1,5 +1,6 @@
 import { flexRender, type Column, type SortDirection, type Table } from '@tanstack/react-table';
 import type { ReactNode } from 'react';
+import { TableBox } from './table-box';
 
 /** Class names of the parts each table styles its own way; the <table> element itself is the same everywhere. */
 export type DataTableClasses = {
@@ -19,6 +20,8 @@ type DataTableProps<T> = {
   canSort?: (column: Column<T, unknown>) => boolean;
   /** Rows after the data rows, e.g. an empty-list or loading message. */
   children?: ReactNode;
+  /** Names the table's scrolling box for screen readers (the table scrolls sideways in it on narrow screens). */
+  label: string;
 };
 
 /**
@@ -26,8 +29,9 @@ type DataTableProps<T> = {
  * button that toggles its sort, then one row per row of the row model. State (data, paging, sorting, client
  * or server side) stays with the caller's useReactTable.
  */
-export function DataTable<T>({ table, classes, sortIndicator, canSort, children }: DataTableProps<T>) {
+export function DataTable<T>({ table, classes, sortIndicator, canSort, children, label }: DataTableProps<T>) {
   return (
+    <TableBox label={label}>
     <table className="w-full text-left text-sm">
       <thead className={classes.head}>
         {table.getHeaderGroups().map((hg) => (
@@ -39,11 +43,16 @@ export function DataTable<T>({ table, classes, sortIndicator, canSort, children 
                 <th
                   key={h.id}
                   scope="col"
-                  className={classes.headerCell}
+                  className={`relative ${classes.headerCell}`}
                   aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : undefined}
                 >
                   {(canSort?.(h.column) ?? true) && h.column.getCanSort() ? (
-                    <button type="button" className={classes.sortButton} onClick={h.column.getToggleSortingHandler()}>
+                    // The button's ::after covers the whole header cell, so a click anywhere in the cell sorts.
+                    <button
+                      type="button"
+                      className={`${classes.sortButton} after:absolute after:inset-0 after:content-['']`}
+                      onClick={h.column.getToggleSortingHandler()}
+                    >
                       {title}
                       {sortIndicator(sorted)}
                     </button>
@@ -69,5 +78,6 @@ export function DataTable<T>({ table, classes, sortIndicator, canSort, children 
         {children}
       </tbody>
     </table>
+    </TableBox>
   );
 }

@@ -149,6 +149,7 @@ export function AccountsTable() {
     <div className="flex flex-col gap-3">
       {message ? <Notice tone={message.tone}>{message.text}</Notice> : null}
       <DataTable
+        label="Accounts"
         table={table}
         classes={accountTableClasses}
         sortIndicator={(sorted) => (sorted ? { asc: ' ↑', desc: ' ↓' }[sorted] : '')}

@@ -3,6 +3,7 @@ import { Loading, Notice } from '@/components/ui/layout';
 import type { CaseHistoryEvent } from '@/schemas/case';
 import { caseQueries } from '../api/case-queries';
 import { formatLabDateTime } from '../utils/lab-time';
+import { changeSentence } from '../utils/change-sentence';
 
 const entityWords: Record<string, string> = { case: 'Case', specimen: 'Specimen', patient: 'Patient' };
 
@@ -25,59 +26,28 @@ function Event({ e, timeZone }: { e: CaseHistoryEvent; timeZone: string }) {
       </p>
       {e.note ? <p className="mt-1 text-sm italic text-ink">“{e.note}”</p> : null}
       {e.changes.length > 0 && e.changes.every((c) => c.before === null) ? (
-        <dl className="mt-2 grid max-w-3xl grid-cols-[11rem_1fr] gap-x-3 text-sm">
+        <dl className="mt-2 grid max-w-3xl grid-cols-1 gap-x-3 text-sm sm:grid-cols-[11rem_minmax(0,1fr)]">
           {e.changes.map((c) => (
             <div key={c.field} className="contents">
-              <dt className="border-t border-paper-line/60 py-1 text-ink-faint">{c.field}</dt>
-              <dd className="border-t border-paper-line/60 py-1 text-ink">{c.after}</dd>
+              <dt className="border-t border-paper-line/60 pt-1 text-ink-soft sm:py-1">{c.field}</dt>
+              <dd className="break-words pb-1 text-ink sm:border-t sm:border-paper-line/60 sm:py-1">{c.unit ? `${c.after} ${c.unit}` : c.after}</dd>
             </div>
           ))}
         </dl>
       ) : e.changes.length > 0 ? (
-        <table className="mt-2 w-full max-w-3xl table-fixed text-sm">
-          <colgroup>
-            <col className="w-44" />
-            <col />
-            <col />
-          </colgroup>
-          <thead>
-            <tr className="text-left text-xs uppercase tracking-wide text-ink-faint">
-              <th scope="col" className="pb-1 font-medium">
-                Field
-              </th>
-              <th scope="col" className="pb-1 font-medium">
-                Before
-              </th>
-              <th scope="col" className="pb-1 font-medium">
-                After
-              </th>
-            </tr>
-          </thead>
-          <tbody>
-            {e.changes.map((c) => (
-              <tr key={c.field} className="border-t border-paper-line/60 align-top">
-                <th scope="row" className="py-1 pr-3 text-left font-normal text-ink-faint">
-                  {c.field}
-                </th>
-                <td className="py-1 pr-3 text-ink-soft">
-                  {c.before === null ? <span className="text-ink-faint">—</span> : <del className="decoration-below/60">{c.before}</del>}
-                </td>
-                <td className="py-1 text-ink">
-                  <span aria-hidden="true" className="mr-2 text-ink-faint">
-                    →
-                  </span>
-                  {c.after === null ? <span className="text-ink-faint">(removed)</span> : <ins className="no-underline">{c.after}</ins>}
-                </td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
+        <ul className="mt-2 flex max-w-3xl flex-col gap-1 text-sm text-ink" aria-label="What changed">
+          {e.changes.map((c) => (
+            <li key={c.field} className="break-words">
+              {changeSentence(c)}
+            </li>
+          ))}
+        </ul>
       ) : null}
     </li>
   );
 }
 
-/** Everything recorded about a case, newest first: who, when, and each changed field before → after. */
+/** Everything recorded about a case, newest first: who, when, and each change as a sentence. */
 export function CaseHistoryList({ caseId, timeZone }: { caseId: number; timeZone: string }) {
   const { data, isPending, error } = useQuery(caseQueries.history(caseId));
   if (isPending) return <Loading what="Loading the history" />;

@@ -140,8 +140,9 @@ export function CasesTable({ timeZone }: { timeZone: string }) {
     <div className="flex flex-col gap-4">
       <CaseFilters query={query} onChange={change} />
       {error ? <Notice tone="error">{error.message}</Notice> : null}
-      <div className={`overflow-x-auto rounded-card border border-paper-line bg-paper-raised shadow-card transition-opacity ${isPlaceholderData ? 'opacity-60' : ''}`}>
+      <div className={`overflow-hidden rounded-card border border-paper-line bg-paper-raised shadow-card transition-opacity ${isPlaceholderData ? 'opacity-60' : ''}`}>
         <DataTable
+          label="Cases"
           table={table}
           classes={caseTableClasses}
           canSort={(column) => sortable.has(column.id)}
@@ -169,7 +170,8 @@ export function CasesTable({ timeZone }: { timeZone: string }) {
       </div>
       <div className="flex flex-wrap items-center justify-between gap-3 text-sm text-ink-soft">
         <p role="status" aria-live="polite">
-          {total === 0 ? 'No cases' : `Cases ${first.toLocaleString('en-GB')}–${last.toLocaleString('en-GB')} of ${total.toLocaleString('en-GB')}`}
+          {/* While the first page loads, the table says so; "No cases" only once the answer is in. */}
+          {isPending ? '' : total === 0 ? 'No cases' : `Cases ${first.toLocaleString('en-GB')}–${last.toLocaleString('en-GB')} of ${total.toLocaleString('en-GB')}`}
           {isFetching && !isPending ? <span className="ml-2 text-ink-faint">updating…</span> : null}
         </p>
         <div className="flex items-center gap-2">

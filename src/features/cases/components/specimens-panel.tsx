@@ -19,6 +19,7 @@ import { formatLabDateTime } from '../utils/lab-time';
 import { ReasonPicker } from './reason-picker';
 import { arrivingSpecimenDefaults, SpecimenFields } from './specimen-fields';
 import { isStale, StaleNotice } from './stale-notice';
+import { TableBox } from '@/components/ui/table-box';
 
 const receivable = new Set(['received', 'in_assay']);
 
@@ -121,7 +122,7 @@ export function SpecimensPanel({ detail, timeZone, onReload }: { detail: CaseDet
         ) : null
       }
     >
-      <div className="overflow-x-auto">
+      <TableBox label="Specimens">
         <table className="w-full text-left text-sm">
           <thead className="border-b border-paper-line text-xs uppercase tracking-wide text-ink-faint">
             <tr>
@@ -172,7 +173,7 @@ export function SpecimensPanel({ detail, timeZone, onReload }: { detail: CaseDet
             ))}
           </tbody>
         </table>
-      </div>
+      </TableBox>
       {rejecting !== null
         ? (() => {
             const s = detail.specimens.find((x) => x.id === rejecting);

@@ -3,6 +3,8 @@
  * in. Forms send wall-clock values ("2026-03-04T09:30"); the server reads them in the laboratory's zone.
  */
 
+import { formatDateIn, formatInstant } from '@/schemas/date-format';
+
 const cache = new Map<string, Intl.DateTimeFormat>();
 function fmt(key: string, make: () => Intl.DateTimeFormat): Intl.DateTimeFormat {
   let f = cache.get(key);
@@ -13,20 +15,14 @@ function fmt(key: string, make: () => Intl.DateTimeFormat): Intl.DateTimeFormat 
   return f;
 }
 
-/** "30 Nov 2026, 11:25" in the laboratory's zone. */
+/** "30 Nov 2026 11:25" in the laboratory's zone (the format of every screen and the PDF). */
 export function formatLabDateTime(iso: string | null | undefined, timeZone: string): string {
-  if (!iso) return '—';
-  const f = fmt(`dt|${timeZone}`, () =>
-    new Intl.DateTimeFormat('en-GB', { timeZone, day: '2-digit', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }),
-  );
-  return f.format(new Date(iso));
+  return iso ? formatInstant(iso, timeZone) : '—';
 }
 
 /** "30 Nov 2026" in the laboratory's zone. */
 export function formatLabDate(iso: string | null | undefined, timeZone: string): string {
-  if (!iso) return '—';
-  const f = fmt(`d|${timeZone}`, () => new Intl.DateTimeFormat('en-GB', { timeZone, day: '2-digit', month: 'short', year: 'numeric' }));
-  return f.format(new Date(iso));
+  return iso ? formatDateIn(iso, timeZone) : '—';
 }
 
 /** The value a datetime-local control shows for an instant, in the laboratory's zone ("2026-11-30T11:25"). */

@@ -11,6 +11,7 @@ import { useDeleteMeasurement } from '../api/save-measurement';
 import { fmt } from '../utils/format';
 import { ExcludeForm } from './exclude-form';
 import { MeasurementEditForm } from './measurement-edit-form';
+import { TableBox } from '@/components/ui/table-box';
 
 type Open = { id: number; form: 'edit' | 'exclude' } | null;
 type Message = { tone: 'success' | 'error'; text: string };
@@ -111,81 +112,83 @@ export function MeasurementsTable({ workup }: { workup: CaseWorkup }) {
   return (
     <div className="flex flex-col gap-2">
       {message ? <Notice tone={message.tone}>{message.text}</Notice> : null}
-      <table className="w-full text-left text-sm">
-        <thead className="border-b border-paper-line text-ink-soft">
-          <tr>
-            <th className="py-1.5 pr-3 font-medium">Specimen</th>
-            <th className="py-1.5 pr-3 font-medium">Assay</th>
-            <th className="py-1.5 pr-3 font-medium">Rep.</th>
-            <th className="py-1.5 pr-3 font-medium">Entered as</th>
-            <th className="py-1.5 pr-3 font-medium">Activity</th>
-            <th className="py-1.5 pr-3 font-medium">Window</th>
-            <th className="py-1.5 pr-3 font-medium">Flags</th>
-            <th className="py-1.5 pr-3 font-medium">Entered by</th>
-            {workup.editable ? <th className="py-1.5 font-medium">Change</th> : null}
-          </tr>
-        </thead>
-        <tbody>
-          {rows.map((m) => {
-            const struck = m.excluded ? 'line-through text-ink-faint' : '';
-            return (
-              <Fragment key={m.id}>
-                <tr
-                  className={`border-b border-paper-line/70 align-top ${m.excluded ? 'bg-paper-line/20' : ''}`}
-                  data-testid={`measurement-${m.id}`}
-                  data-excluded={m.excluded ? 'true' : undefined}
-                >
-                  <td className="py-1.5 pr-3">{label.get(m.specimenId)}</td>
-                  <td className="py-1.5 pr-3 font-medium">
-                    <span className={struck}>{m.assay}</span>
-                    <ExclusionNote m={m} />
-                  </td>
-                  <td className={`num py-1.5 pr-3 ${struck}`}>{m.replicate}</td>
-                  <td className="py-1.5 pr-3 text-ink-soft">
-                    {inputModeLabels[m.inputMode]}
-                    {m.inputs.mode === 'plate' ? (
-                      <span className="block text-xs text-ink-faint">
-                        wells {[m.inputs.wells.total, m.inputs.wells.background, m.inputs.wells.blank].filter(Boolean).join(', ')}
-                      </span>
+      <TableBox label="Saved measurements">
+        <table className="w-full text-left text-sm">
+          <thead className="border-b border-paper-line text-ink-soft">
+            <tr>
+              <th className="py-1.5 pr-3 font-medium">Specimen</th>
+              <th className="py-1.5 pr-3 font-medium">Assay</th>
+              <th className="py-1.5 pr-3 font-medium">Rep.</th>
+              <th className="py-1.5 pr-3 font-medium">Entered as</th>
+              <th className="py-1.5 pr-3 font-medium">Activity</th>
+              <th className="py-1.5 pr-3 font-medium">Window</th>
+              <th className="py-1.5 pr-3 font-medium">Flags</th>
+              <th className="py-1.5 pr-3 font-medium">Entered by</th>
+              {workup.editable ? <th className="py-1.5 font-medium">Change</th> : null}
+            </tr>
+          </thead>
+          <tbody>
+            {rows.map((m) => {
+              const struck = m.excluded ? 'line-through text-ink-faint' : '';
+              return (
+                <Fragment key={m.id}>
+                  <tr
+                    className={`border-b border-paper-line/70 align-top ${m.excluded ? 'bg-paper-line/20' : ''}`}
+                    data-testid={`measurement-${m.id}`}
+                    data-excluded={m.excluded ? 'true' : undefined}
+                  >
+                    <td className="py-1.5 pr-3">{label.get(m.specimenId)}</td>
+                    <td className="py-1.5 pr-3 font-medium">
+                      <span className={struck}>{m.assay}</span>
+                      <ExclusionNote m={m} />
+                    </td>
+                    <td className={`num py-1.5 pr-3 ${struck}`}>{m.replicate}</td>
+                    <td className="py-1.5 pr-3 text-ink-soft">
+                      {inputModeLabels[m.inputMode]}
+                      {m.inputs.mode === 'plate' ? (
+                        <span className="block text-xs text-ink-faint">
+                          wells {[m.inputs.wells.total, m.inputs.wells.background, m.inputs.wells.blank].filter(Boolean).join(', ')}
+                        </span>
+                      ) : null}
+                    </td>
+                    <td className={`num py-1.5 pr-3 ${struck}`}>{m.activity === null ? '—' : fmt(m.activity)}</td>
+                    <td className={`num py-1.5 pr-3 text-xs ${struck}`}>
+                      {m.result.window ? `${fmt(m.result.window.fromS)}–${fmt(m.result.window.toS)} s${m.result.windowAuto ? ' (auto)' : ''}` : '—'}
+                    </td>
+                    <td className={`py-1.5 pr-3 text-xs text-caution ${struck}`} title={m.flags.map((f) => f.message).join('\n')}>
+                      {flagSummary(m.flags) || <span className="text-within">none</span>}
+                    </td>
+                    <td className="py-1.5 pr-3 text-xs text-ink-soft">{m.enteredBy ?? '—'}</td>
+                    {workup.editable ? (
+                      <td className="py-1.5">
+                        <RowActions
+                          caseId={workup.caseId}
+                          m={m}
+                          specimenLabel={label.get(m.specimenId) ?? String(m.specimenId)}
+                          open={open}
+                          setOpen={setOpen}
+                          say={setMessage}
+                        />
+                      </td>
                     ) : null}
-                  </td>
-                  <td className={`num py-1.5 pr-3 ${struck}`}>{m.activity === null ? '—' : fmt(m.activity)}</td>
-                  <td className={`num py-1.5 pr-3 text-xs ${struck}`}>
-                    {m.result.window ? `${fmt(m.result.window.fromS)}–${fmt(m.result.window.toS)} s${m.result.windowAuto ? ' (auto)' : ''}` : '—'}
-                  </td>
-                  <td className={`py-1.5 pr-3 text-xs text-caution ${struck}`} title={m.flags.map((f) => f.message).join('\n')}>
-                    {flagSummary(m.flags) || <span className="text-within">none</span>}
-                  </td>
-                  <td className="py-1.5 pr-3 text-xs text-ink-soft">{m.enteredBy ?? '—'}</td>
-                  {workup.editable ? (
-                    <td className="py-1.5">
-                      <RowActions
-                        caseId={workup.caseId}
-                        m={m}
-                        specimenLabel={label.get(m.specimenId) ?? String(m.specimenId)}
-                        open={open}
-                        setOpen={setOpen}
-                        say={setMessage}
-                      />
-                    </td>
-                  ) : null}
-                </tr>
-                {workup.editable && open?.id === m.id ? (
-                  <tr className="border-b border-paper-line/70">
-                    <td colSpan={columns} className="py-2">
-                      {open.form === 'edit' ? (
-                        <MeasurementEditForm caseId={workup.caseId} m={m} onDone={done} onCancel={() => setOpen(null)} />
-                      ) : (
-                        <ExcludeForm caseId={workup.caseId} m={m} onDone={done} onCancel={() => setOpen(null)} />
-                      )}
-                    </td>
                   </tr>
-                ) : null}
-              </Fragment>
-            );
-          })}
-        </tbody>
-      </table>
+                  {workup.editable && open?.id === m.id ? (
+                    <tr className="border-b border-paper-line/70">
+                      <td colSpan={columns} className="py-2">
+                        {open.form === 'edit' ? (
+                          <MeasurementEditForm caseId={workup.caseId} m={m} onDone={done} onCancel={() => setOpen(null)} />
+                        ) : (
+                          <ExcludeForm caseId={workup.caseId} m={m} onDone={done} onCancel={() => setOpen(null)} />
+                        )}
+                      </td>
+                    </tr>
+                  ) : null}
+                </Fragment>
+              );
+            })}
+          </tbody>
+        </table>
+      </TableBox>
       {rows.some((m) => m.excluded) ? (
         <p className="text-xs text-ink-faint">Struck-through replicates are excluded: they count in no mean, SD, CV, ratio or pattern, and the report lists them with their reason.</p>
       ) : null}

@@ -12,6 +12,7 @@ import { useImportPlate, usePreviewPlate } from '../api/plate-import';
 import { workupQueries } from '../api/workup-queries';
 import { fmt, located } from '../utils/format';
 import { ResultLine } from './result-line';
+import { TableBox } from '@/components/ui/table-box';
 
 type Problem = { row: number | null; column: string | null; message: string };
 
@@ -84,33 +85,35 @@ function GroupCard({
 
 function Summaries({ preview }: { preview: PlatePreview }) {
   return (
-    <table className="w-full text-left text-sm">
-      <caption className="mb-1 text-left text-sm font-medium text-ink-soft">Replicates, as the plate would save them</caption>
-      <thead className="border-b border-paper-line text-ink-soft">
-        <tr>
-          <th className="py-1 pr-3 font-medium">Specimen</th>
-          <th className="py-1 pr-3 font-medium">Assay</th>
-          <th className="py-1 pr-3 font-medium">n</th>
-          <th className="py-1 pr-3 font-medium">Mean</th>
-          <th className="py-1 pr-3 font-medium">SD</th>
-          <th className="py-1 pr-3 font-medium">CV%</th>
-          <th className="py-1 pr-3 font-medium">Flags</th>
-        </tr>
-      </thead>
-      <tbody className="num">
-        {preview.summaries.map((s) => (
-          <tr key={`${s.specimenId}-${s.assay}`} className="border-b border-paper-line/70">
-            <td className="py-1 pr-3">{s.specimenLabel}</td>
-            <td className="py-1 pr-3">{s.assay}</td>
-            <td className="py-1 pr-3">{s.n}</td>
-            <td className="py-1 pr-3">{fmt(s.mean)}</td>
-            <td className="py-1 pr-3">{fmt(s.sd, 3)}</td>
-            <td className="py-1 pr-3">{fmt(s.cvPct, 3)}</td>
-            <td className="py-1 pr-3 text-xs text-caution" title={s.flags.map((f) => f.message).join('\n')}>{flagSummary(s.flags)}</td>
+    <TableBox label="Plate summary">
+      <table className="w-full text-left text-sm">
+        <caption className="mb-1 text-left text-sm font-medium text-ink-soft">Replicates, as the plate would save them</caption>
+        <thead className="border-b border-paper-line text-ink-soft">
+          <tr>
+            <th className="py-1 pr-3 font-medium">Specimen</th>
+            <th className="py-1 pr-3 font-medium">Assay</th>
+            <th className="py-1 pr-3 font-medium">n</th>
+            <th className="py-1 pr-3 font-medium">Mean</th>
+            <th className="py-1 pr-3 font-medium">SD</th>
+            <th className="py-1 pr-3 font-medium">CV%</th>
+            <th className="py-1 pr-3 font-medium">Flags</th>
           </tr>
-        ))}
-      </tbody>
-    </table>
+        </thead>
+        <tbody className="num">
+          {preview.summaries.map((s) => (
+            <tr key={`${s.specimenId}-${s.assay}`} className="border-b border-paper-line/70">
+              <td className="py-1 pr-3">{s.specimenLabel}</td>
+              <td className="py-1 pr-3">{s.assay}</td>
+              <td className="py-1 pr-3">{s.n}</td>
+              <td className="py-1 pr-3">{fmt(s.mean)}</td>
+              <td className="py-1 pr-3">{fmt(s.sd, 3)}</td>
+              <td className="py-1 pr-3">{fmt(s.cvPct, 3)}</td>
+              <td className="py-1 pr-3 text-xs text-caution" title={s.flags.map((f) => f.message).join('\n')}>{flagSummary(s.flags)}</td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </TableBox>
   );
 }
 

@@ -3,6 +3,7 @@ import { Button } from '@/components/ui/button';
 import { Notice } from '@/components/ui/layout';
 import { useRetryNotice } from '../api/retry-notice';
 import { when } from './when';
+import { TableBox } from '@/components/ui/table-box';
 
 const COLUMNS = ['Queued', 'Notice', 'Accession', 'To', 'State', 'Tries', 'Details'];
 
@@ -81,41 +82,43 @@ export function NoticesTable({ deliveries }: { deliveries: MailDelivery[] }) {
       <p className="mb-3 text-sm text-ink-soft" aria-label="Notice counts">
         {count(['pending', 'sending'])} waiting · {count(['sent'])} sent · {count(['failed'])} not sent
       </p>
-      <table className="w-full text-left text-sm" aria-label="Notices">
-        <thead className="border-b border-paper-line text-ink-soft">
-          <tr>
-            {COLUMNS.map((c) => (
-              <th key={c} className="py-2 pr-3 font-medium">
-                {c}
-              </th>
-            ))}
-          </tr>
-        </thead>
-        <tbody>
-          {deliveries.map((d) => {
-            const state = stateOf(d);
-            return (
-              <tr key={d.id} className="border-b border-paper-line/70 align-top">
-                <td className="py-2 pr-3 whitespace-nowrap">{when(d.queuedAt)}</td>
-                <td className="py-2 pr-3 whitespace-nowrap">{kindLabels[d.kind] ?? d.kind}</td>
-                <td className="py-2 pr-3 whitespace-nowrap font-mono">{d.accession ?? '—'}</td>
-                <td className="py-2 pr-3">{d.recipient}</td>
-                <td className="py-2 pr-3">
-                  <span className={`inline-block whitespace-nowrap rounded-full border px-2 py-0.5 text-xs font-medium ${state.tone}`}>
-                    {state.label}
-                  </span>
-                </td>
-                <td className="py-2 pr-3 whitespace-nowrap">
-                  {d.attempts} of {d.maxAttempts}
-                </td>
-                <td className="py-2 pr-3">
-                  <Details d={d} />
-                </td>
-              </tr>
-            );
-          })}
-        </tbody>
-      </table>
+      <TableBox label="Notices">
+        <table className="w-full text-left text-sm" aria-label="Notices">
+          <thead className="border-b border-paper-line text-ink-soft">
+            <tr>
+              {COLUMNS.map((c) => (
+                <th key={c} className="py-2 pr-3 font-medium">
+                  {c}
+                </th>
+              ))}
+            </tr>
+          </thead>
+          <tbody>
+            {deliveries.map((d) => {
+              const state = stateOf(d);
+              return (
+                <tr key={d.id} className="border-b border-paper-line/70 align-top">
+                  <td className="py-2 pr-3 whitespace-nowrap">{when(d.queuedAt)}</td>
+                  <td className="py-2 pr-3 whitespace-nowrap">{kindLabels[d.kind] ?? d.kind}</td>
+                  <td className="py-2 pr-3 whitespace-nowrap font-mono">{d.accession ?? '—'}</td>
+                  <td className="py-2 pr-3">{d.recipient}</td>
+                  <td className="py-2 pr-3">
+                    <span className={`inline-block whitespace-nowrap rounded-full border px-2 py-0.5 text-xs font-medium ${state.tone}`}>
+                      {state.label}
+                    </span>
+                  </td>
+                  <td className="py-2 pr-3 whitespace-nowrap">
+                    {d.attempts} of {d.maxAttempts}
+                  </td>
+                  <td className="py-2 pr-3">
+                    <Details d={d} />
+                  </td>
+                </tr>
+              );
+            })}
+          </tbody>
+        </table>
+      </TableBox>
     </>
   );
 }

@@ -1,3 +1,4 @@
-/** Day first, in the reader's zone, to the second (notices are minutes apart). */
-export const when = (iso: string) =>
-  new Date(iso).toLocaleString('en-GB', { day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', second: '2-digit' });
+import { formatWhen } from '@/utils/format';
+
+/** When a notice was queued or sent, as every date in Cristae reads (the laboratory's zone). */
+export const when = (iso: string) => formatWhen(iso);

@@ -8,6 +8,7 @@ import type { StoredPlateMap } from '@/schemas/measurement';
 import { plateColumnCount, plateMapWellsSchema, plateRowLetters, wellRoleLabels, wellRoles, type PlateMapEntry, type WellRole } from '@/schemas/plate';
 import { useChangePlateMap, useCreatePlateMap } from '../api/plate-map-queries';
 import { applyEntries, blockPatternLabels, blockWells, fillBlock, type BlockPattern, type Brush } from '../utils/layout';
+import { TableBox } from '@/components/ui/table-box';
 
 const columns = Array.from({ length: plateColumnCount }, (_, i) => i + 1);
 const roleStyle: Record<WellRole, string> = {
@@ -137,7 +138,7 @@ export function PlateMapEditor({ initial, onSaved }: { initial: StoredPlateMap |
         />
         <p className="self-end pb-1 text-xs text-ink-faint">A blank on a well that already holds blanks is shared by both groups.</p>
       </fieldset>
-      <div className="overflow-x-auto">
+      <TableBox label="Plate layout">
         <table className="border-separate border-spacing-1" aria-label="Plate layout, 8 rows by 12 columns">
           <thead>
             <tr>
@@ -164,7 +165,7 @@ export function PlateMapEditor({ initial, onSaved }: { initial: StoredPlateMap |
             ))}
           </tbody>
         </table>
-      </div>
+      </TableBox>
       <fieldset className="grid gap-3 rounded-md border border-paper-line p-3 sm:grid-cols-[7rem_7rem_1fr_auto] sm:items-end">
         <legend className="px-1 text-sm font-medium text-ink-soft">Fill a block</legend>
         <TextField label="From well" value={from} onChange={(e) => setFrom(e.target.value)} />

@@ -6,6 +6,7 @@ import { ApiError } from '@/lib/api-client';
 import { controlFileHref, intervalQueries } from '../api/interval-queries';
 import { useUploadControls } from '../api/upload-controls';
 import { formatBytes, formatWhen } from '@/utils/format';
+import { TableBox } from '@/components/ui/table-box';
 
 function FileProblems({ error }: { error: unknown }) {
   if (!(error instanceof ApiError)) return <Notice tone="error">The file could not be uploaded.</Notice>;
@@ -16,25 +17,27 @@ function FileProblems({ error }: { error: unknown }) {
         {error.message}
       </Notice>
       {error.issues.length > 0 ? (
-        <table className="w-full text-left text-xs">
-          <caption className="sr-only">Problems in the file</caption>
-          <thead className="text-ink-faint">
-            <tr>
-              <th className="py-1 pr-3 font-medium">Row</th>
-              <th className="py-1 pr-3 font-medium">Column</th>
-              <th className="py-1 font-medium">Problem</th>
-            </tr>
-          </thead>
-          <tbody>
-            {error.issues.map((i, n) => (
-              <tr key={n} className="border-t border-paper-line/60">
-                <td className="num py-1 pr-3">{i.row ?? '—'}</td>
-                <td className="py-1 pr-3 font-mono">{i.column ?? '—'}</td>
-                <td className="py-1">{i.message}</td>
+        <TableBox label="Problems in the file">
+          <table className="w-full text-left text-xs">
+            <caption className="sr-only">Problems in the file</caption>
+            <thead className="text-ink-faint">
+              <tr>
+                <th className="py-1 pr-3 font-medium">Row</th>
+                <th className="py-1 pr-3 font-medium">Column</th>
+                <th className="py-1 font-medium">Problem</th>
               </tr>
-            ))}
-          </tbody>
-        </table>
+            </thead>
+            <tbody>
+              {error.issues.map((i, n) => (
+                <tr key={n} className="border-t border-paper-line/60">
+                  <td className="num py-1 pr-3">{i.row ?? '—'}</td>
+                  <td className="py-1 pr-3 font-mono">{i.column ?? '—'}</td>
+                  <td className="py-1">{i.message}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </TableBox>
       ) : null}
     </div>
   );

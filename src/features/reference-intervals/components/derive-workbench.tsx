@@ -10,6 +10,7 @@ import { ControlFilePicker } from './control-file-picker';
 import { DerivationPanel } from './derivation-panel';
 import { ageText, measureNames, methodHints, methodNames, num, outlierNames } from './interval-text';
 import { SaveDraftForm } from './save-draft-form';
+import { TableBox } from '@/components/ui/table-box';
 
 type Target = { specimenType: SpecimenType; assay: AssayCode; measure: Measure };
 
@@ -39,26 +40,28 @@ function PartitionNote({ uploadId, selection, enabled }: { uploadId: number; sel
             <strong className="font-semibold">{p.decision === 'partition' ? 'Partition: ' : 'One interval will do: '}</strong>
             {p.reason}
           </Notice>
-          <table className="num w-full max-w-xl text-left text-sm">
-            <thead className="text-xs text-ink-faint">
-              <tr>
-                <th className="py-1 pr-3 font-medium">Group</th>
-                <th className="py-1 pr-3 font-medium">n</th>
-                <th className="py-1 pr-3 font-medium">Mean</th>
-                <th className="py-1 font-medium">SD</th>
-              </tr>
-            </thead>
-            <tbody>
-              {p.groups.map((g) => (
-                <tr key={g.label} className="border-t border-paper-line/60">
-                  <td className="py-1 pr-3">{g.label}</td>
-                  <td className="py-1 pr-3">{g.n}</td>
-                  <td className="py-1 pr-3">{num(g.mean)}</td>
-                  <td className="py-1">{num(g.sd)}</td>
+          <TableBox label="Age groups">
+            <table className="num w-full max-w-xl text-left text-sm">
+              <thead className="text-xs text-ink-faint">
+                <tr>
+                  <th className="py-1 pr-3 font-medium">Group</th>
+                  <th className="py-1 pr-3 font-medium">n</th>
+                  <th className="py-1 pr-3 font-medium">Mean</th>
+                  <th className="py-1 font-medium">SD</th>
                 </tr>
-              ))}
-            </tbody>
-          </table>
+              </thead>
+              <tbody>
+                {p.groups.map((g) => (
+                  <tr key={g.label} className="border-t border-paper-line/60">
+                    <td className="py-1 pr-3">{g.label}</td>
+                    <td className="py-1 pr-3">{g.n}</td>
+                    <td className="py-1 pr-3">{num(g.mean)}</td>
+                    <td className="py-1">{num(g.sd)}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </TableBox>
           <p className="text-xs text-ink-faint">
             Harris &amp; Boyd (Clin Chem 1990;36:265–270): separate intervals when z = {num(p.z)} exceeds 3·√((n₁+n₂)/240) = {num(p.zCritical)}, or when one
             SD is more than {p.sdRatioLimit} times the other (here {num(p.sdRatio)}). {data.partitionNote}

@@ -7,6 +7,7 @@ import type { StoredInterval } from '@/schemas/reference-interval-api';
 import { intervalQueries } from '../api/interval-queries';
 import { ageText, assayNames, measureNames, methodNames, num, periodText } from './interval-text';
 import { StatusTag } from './status-tag';
+import { TableBox } from '@/components/ui/table-box';
 
 const measureOrder = { activity: 0, ratio_cs: 1, ratio_cii: 2 } as const;
 
@@ -59,7 +60,7 @@ function SpecimenTable({ items }: { items: StoredInterval[] }) {
     }))
     .filter((g) => g.rows.length > 0);
   return (
-    <div className="overflow-x-auto">
+    <TableBox label="Reference intervals">
       <table className="w-full text-left text-sm">
         <thead className="border-b border-paper-line text-xs uppercase tracking-wide text-ink-faint">
           <tr>
@@ -86,7 +87,7 @@ function SpecimenTable({ items }: { items: StoredInterval[] }) {
           </tbody>
         ))}
       </table>
-    </div>
+    </TableBox>
   );
 }
 

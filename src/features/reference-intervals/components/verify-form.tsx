@@ -6,6 +6,7 @@ import { ApiError } from '@/lib/api-client';
 import { readPastedNumbers } from '@/schemas/pasted-numbers';
 import { minVerificationValues, type VerificationRequestBody, type VerificationRound } from '@/schemas/reference-interval';
 import { useVerifyInterval } from '../api/verify-interval';
+import { TableBox } from '@/components/ui/table-box';
 
 const decisionText = {
   verified: { title: 'Accept: the interval transfers', tone: 'success' },
@@ -107,23 +108,25 @@ export function VerifyForm() {
             <Notice tone={decisionText[result.decision].tone}>
               <strong className="font-semibold">{decisionText[result.decision].title}.</strong> {result.message}
             </Notice>
-            <table className="w-full text-sm">
-              <thead className="border-b border-paper-line text-xs uppercase tracking-wide text-ink-faint">
-                <tr>
-                  <th className="py-1.5 pr-3 text-left font-medium">Set</th>
-                  <th className="py-1.5 pr-3 text-left font-medium">n</th>
-                  <th className="py-1.5 pr-3 text-left font-medium">Below</th>
-                  <th className="py-1.5 pr-3 text-left font-medium">Above</th>
-                  <th className="py-1.5 pr-3 text-left font-medium">Outside</th>
-                  <th className="py-1.5 pr-3 text-left font-medium">Allowed</th>
-                  <th className="py-1.5 text-left font-medium">Result</th>
-                </tr>
-              </thead>
-              <tbody>
-                <Round name="First set" r={result.firstRound} />
-                {result.secondRound ? <Round name="Second set" r={result.secondRound} /> : null}
-              </tbody>
-            </table>
+            <TableBox label="Verification values">
+              <table className="w-full text-sm">
+                <thead className="border-b border-paper-line text-xs uppercase tracking-wide text-ink-faint">
+                  <tr>
+                    <th className="py-1.5 pr-3 text-left font-medium">Set</th>
+                    <th className="py-1.5 pr-3 text-left font-medium">n</th>
+                    <th className="py-1.5 pr-3 text-left font-medium">Below</th>
+                    <th className="py-1.5 pr-3 text-left font-medium">Above</th>
+                    <th className="py-1.5 pr-3 text-left font-medium">Outside</th>
+                    <th className="py-1.5 pr-3 text-left font-medium">Allowed</th>
+                    <th className="py-1.5 text-left font-medium">Result</th>
+                  </tr>
+                </thead>
+                <tbody>
+                  <Round name="First set" r={result.firstRound} />
+                  {result.secondRound ? <Round name="Second set" r={result.secondRound} /> : null}
+                </tbody>
+              </table>
+            </TableBox>
             <p className="text-xs text-ink-faint">
               Rule: CLSI EP28-A3c transference check with 20 local samples; the interval is accepted when no more than
               2 of 20 (10%) fall outside it, otherwise 20 more are tested. Values equal to a limit count as inside.

@@ -18,6 +18,7 @@ import {
 } from '@/schemas/results';
 import { fmt, measureNames } from '../utils/format';
 import { formatWhen } from '@/utils/format';
+import { TableBox } from '@/components/ui/table-box';
 
 const positionTone = { below: 'text-below', within: 'text-within', above: 'text-above' } as const;
 
@@ -233,7 +234,7 @@ function SpecimenSection({ s }: { s: SpecimenResult }) {
       ) : (
         <>
           {oneSet ? <p className="text-xs text-ink-soft">Reference intervals: {labels[0]} (version of each interval in its cell).</p> : null}
-          <div className="overflow-x-auto">
+          <TableBox label="Results">
             <table className="w-full min-w-[56rem] border-collapse text-sm">
               <thead className="border-b-2 border-paper-line text-left text-xs uppercase tracking-wide text-ink-soft">
                 <tr>
@@ -251,7 +252,7 @@ function SpecimenSection({ s }: { s: SpecimenResult }) {
                 ))}
               </tbody>
             </table>
-          </div>
+          </TableBox>
           {s.pattern ? <PatternSummary pattern={s.pattern} /> : null}
         </>
       )}

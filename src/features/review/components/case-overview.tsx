@@ -1,9 +1,10 @@
 import { caseStateLabels, transportConditionLabels } from '@/schemas/case';
 import { specimenTypeLabels } from '@/schemas/common';
 import type { ReviewCase } from '@/schemas/report';
+import { formatWhen } from '@/utils/format';
 
 const when = (iso: string | null) =>
-  iso ? new Date(iso).toLocaleString('en-GB', { day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit' }) : '—';
+  iso ? formatWhen(iso) : '—';
 
 /** Who, what and how the specimens arrived: the facts the director checks before reading the numbers. */
 export function CaseOverview({ review }: { review: ReviewCase }) {

@@ -14,6 +14,7 @@ import {
 } from '@/schemas/report';
 import { useSaveDraft } from '../api/save-draft';
 import { useSignCase } from '../api/sign-case';
+import { formatWhen } from '@/utils/format';
 
 /**
  * The interpretation the director will sign, Cristae's proposal beside it, and the signature itself
@@ -74,7 +75,7 @@ export function SignOutPanel({ review, onSigned }: { review: ReviewCase; onSigne
             maxLength={INTERPRETATION_MAX}
             error={errors.interpretation?.message}
             registration={form.register('interpretation')}
-            hint={`${text.length} of ${INTERPRETATION_MAX} characters${review.draft ? ` · draft saved ${new Date(review.draft.updatedAt).toLocaleString('en-GB')}` : ''}`}
+            hint={`${text.length} of ${INTERPRETATION_MAX} characters${review.draft ? ` · draft saved ${formatWhen(review.draft.updatedAt)}` : ''}`}
           />
           <div className="flex flex-wrap gap-2">
             <Button variant="secondary" onClick={onSaveDraft} disabled={saveDraft.isPending}>
