@@ -9,7 +9,7 @@ import type { AppConfig } from './config';
 import { requireSameOrigin } from './auth/origin-check';
 import { createPassport } from './auth/passport';
 import { notFound, toHttpError } from './lib/errors';
-import { cacheSessionReads, extendSessions } from './auth/session-cache';
+import { cacheSessionReads, extendSessions, SHARED_SESSION_CACHE_MS } from './auth/session-cache';
 import { serveClient, serveClientIndex } from './client-assets';
 import { logError } from './lib/log';
 import { route } from './lib/route';
@@ -87,7 +87,8 @@ export function createApp(opts: AppOptions): Express {
     expiration: 8 * 60 * 60_000,
   });
   if (!opts.expireSessions) store.stopExpiringSessions();
-  cacheSessionReads(store);
+  // Several application processes may share a PostgreSQL database: re-read a cached session after a few seconds.
+  cacheSessionReads(store, { maxAgeMs: sequelize.getDialect() === 'postgres' ? SHARED_SESSION_CACHE_MS : Infinity });
 
   // The built client is answered before any API middleware (no session, body parsing or routing for assets).
   const client = opts.clientDir && fs.existsSync(path.join(opts.clientDir, 'index.html')) ? opts.clientDir : null;

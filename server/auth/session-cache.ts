@@ -6,9 +6,11 @@ type SessionStoreLike = Pick<Store, 'get' | 'set' | 'destroy' | 'touch'>;
 /** How often a session's expiry is pushed forward (and its cookie sent again): at most once per interval. */
 export const SESSION_EXTEND_EVERY_MS = 5 * 60_000;
 const MAX_ENTRIES = 10_000;
+/** How long a process serves its copy of a session from a store other processes also write (PostgreSQL). */
+export const SHARED_SESSION_CACHE_MS = 5_000;
 
 type Plain = null | boolean | number | string | Plain[] | { [key: string]: Plain };
-type Entry = { data: { [key: string]: Plain }; expiresAt: number };
+type Entry = { data: { [key: string]: Plain }; expiresAt: number; readAt: number };
 
 // Every cache made in this process, so ending an account's sessions can drop them from all of them.
 const caches = new Set<Map<string, Entry>>();
@@ -34,13 +36,19 @@ function copy<T extends Plain>(value: T): T {
  * written on every request: `extendSessions` re-saves a session once per SESSION_EXTEND_EVERY_MS, so the
  * store's per-request touch is not needed.
  */
-export function cacheSessionReads(store: SessionStoreLike): void {
+/**
+ * `maxAgeMs` bounds how long a copy is served without reading the row again. One process (SQLite) sees every
+ * change to its sessions, so its copies live until the session expires; several processes sharing a PostgreSQL
+ * database do not see each other's sign-outs or ended sessions, so there a copy is re-read after a few seconds.
+ */
+export function cacheSessionReads(store: SessionStoreLike, opts: { maxAgeMs?: number } = {}): void {
+  const maxAgeMs = opts.maxAgeMs ?? Infinity;
   const cache = new Map<string, Entry>();
   caches.add(cache);
   const remember = (sid: string, data: { [key: string]: Plain }) => {
     const expires = (data.cookie as { expires?: string } | null)?.expires;
     if (cache.size >= MAX_ENTRIES) cache.clear();
-    cache.set(sid, { data, expiresAt: expires ? Date.parse(expires) : Infinity });
+    cache.set(sid, { data, expiresAt: expires ? Date.parse(expires) : Infinity, readAt: Date.now() });
   };
 
   const get = store.get.bind(store);
@@ -50,7 +58,7 @@ export function cacheSessionReads(store: SessionStoreLike): void {
   store.get = (sid, callback) => {
     const hit = cache.get(sid);
     if (hit) {
-      if (hit.expiresAt > Date.now()) return callback(null, copy(hit.data) as never);
+      if (hit.expiresAt > Date.now() && Date.now() - hit.readAt < maxAgeMs) return callback(null, copy(hit.data) as never);
       cache.delete(sid);
     }
     get(sid, (err, session) => {

@@ -89,4 +89,14 @@ describe('session read cache', () => {
     delete first.passport.user; // what passport's sign-out does to req.session.passport
     expect(await get(store, 'e')).toEqual({ cookie: { expires: later }, passport: { user: { id: 5, gen: 1 } } });
   });
+
+  it('when the store is shared with other processes and the copy is older than maxAgeMs, then the row is read again and a sign-out elsewhere is seen', async () => {
+    const { store, calls, rows } = countingStore();
+    cacheSessionReads(store as never, { maxAgeMs: 0 });
+    store.set('shared', { cookie: { expires: later }, passport: { user: 9 } });
+    // Another process signs the session out: its row is deleted, this process's copy is not told.
+    rows.delete('shared');
+    expect(await get(store, 'shared')).toBeNull();
+    expect(calls.get).toBe(1);
+  });
 });
