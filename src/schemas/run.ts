@@ -11,6 +11,7 @@ import {
   wellRoleSchema,
   type PlateFormat,
 } from './plate';
+import { runQcStatusSchema, westgardRuleSchema, type RunQcStatus } from './qc';
 
 /*
  * Analytical runs: one plate read on one instrument, carrying specimens of several open cases, control materials
@@ -156,10 +157,9 @@ export type RunPlan = z.infer<typeof runPlanSchema>;
 
 /* ---------------------------------------------------------------- quality control of a run */
 
-/** After the Westgard evaluation; 'none' when the run carried no control with an approved target. */
-export const runQcStatuses = ['accept', 'warn', 'reject', 'none'] as const;
-export const runQcStatusSchema = z.enum(runQcStatuses);
-export type RunQcStatus = z.infer<typeof runQcStatusSchema>;
+/** After the Westgard evaluation; 'none' when the run carried no control with an approved target (./qc's shape). */
+export { runQcStatusSchema, type RunQcStatus };
+export const runQcStatuses = runQcStatusSchema.options;
 export const runQcStatusLabels: Record<RunQcStatus, string> = {
   accept: 'Controls accepted',
   warn: 'Accepted with a warning',
@@ -169,7 +169,7 @@ export const runQcStatusLabels: Record<RunQcStatus, string> = {
 
 /** One rule that fired on this run: the rule name ("1-3s", "2-2s", …), the assay and the control materials. */
 export const runViolationSchema = z.object({
-  rule: z.string(),
+  rule: westgardRuleSchema,
   assayCode: assayCodeSchema,
   controlMaterialIds: z.array(z.number().int()),
 });
