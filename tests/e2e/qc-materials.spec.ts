@@ -76,6 +76,14 @@ describe('quality control materials, in Chromium', () => {
 
     await page.goto(`${app.server.origin}/qc`);
     await page.getByRole('row', { name: /FH-2607 High .* CI/ }).waitFor();
+    // The laboratory switches 10x off; the choice survives a reload.
+    await page.getByLabel(/^10x/).uncheck();
+    await page.getByRole('button', { name: 'Save the rules' }).click();
+    await page.getByText('Saved. The next run evaluated uses these rules.').waitFor();
+    await page.reload();
+    await page.getByLabel(/^4-1s/).waitFor();
+    expect(await page.getByLabel(/^10x/).isChecked()).toBe(false);
+    expect(await page.getByLabel(/^4-1s/).isChecked()).toBe(true);
     await screenshot(page, 'qc-overview');
     await page2.close();
 
