@@ -17,9 +17,9 @@ export function PageHeader({ title, lead, actions, docTitle }: { title: string; 
 
 export function Card({ title, children, className = '', actions }: { title?: string; children: ReactNode; className?: string; actions?: ReactNode }) {
   return (
-    <section className={`rounded-card border border-paper-line bg-paper-raised p-5 shadow-card ${className}`}>
+    <section className={`min-w-0 rounded-card border border-paper-line bg-paper-raised p-5 shadow-card ${className}`}>
       {title || actions ? (
-        <div className="mb-3 flex items-center justify-between gap-3">
+        <div className="mb-3 flex flex-wrap items-center justify-between gap-3">
           {title ? <h2 className="text-lg font-semibold text-matrix-900">{title}</h2> : <span />}
           {actions}
         </div>

@@ -12,7 +12,7 @@ export default function PlateLayoutsPage() {
         title="Plate layouts"
         lead="What each well of a 96-well plate holds: which specimen, which assay, total, background or blank, and which replicate. Save a layout once and read every plate file of that run with it."
       />
-      <div className="grid gap-6 2xl:grid-cols-[22rem_1fr]">
+      <div className="grid grid-cols-[minmax(0,1fr)] gap-6 2xl:grid-cols-[22rem_minmax(0,1fr)]">
         <Card title="Saved layouts">
           <PlateMapList selectedId={open?.id ?? null} onOpen={setOpen} />
         </Card>

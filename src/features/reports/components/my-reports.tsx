@@ -30,7 +30,7 @@ function CaseCard({ group }: { group: CaseReports }) {
         </div>
         <div className="flex flex-wrap items-center gap-2">
           <a
-            className="inline-flex items-center rounded-md bg-matrix-700 px-3.5 py-1.5 text-sm font-medium text-white hover:bg-matrix-800"
+            className="inline-flex min-h-11 items-center rounded-md bg-matrix-700 px-3.5 py-1.5 text-sm font-medium text-white hover:bg-matrix-800"
             href={reportPdfHref(current.id)}
             download
           >
