@@ -59,7 +59,11 @@ export function parseWellSelection(text: string, format: PlateFormat): { wells: 
   const seen = new Set<string>();
   const out: string[] = [];
   const add = (ws: string[]) => {
-    for (const w of ws) if (!seen.has(w)) out.push(w), seen.add(w);
+    for (const w of ws) {
+      if (seen.has(w)) continue;
+      seen.add(w);
+      out.push(w);
+    }
   };
   for (const part of parts) {
     const range = /^([A-Za-z]\d{1,2})\s*[:\u2013-]\s*([A-Za-z]\d{1,2})$/.exec(part);
@@ -148,4 +152,29 @@ export function copyBlock<E extends { well: string }>(
   }
   if (out.length === 0) return { entries: null, error: `Nothing is laid out in ${from}:${to} to copy` };
   return { entries: out, error: null };
+}
+
+/**
+ * Puts entries on a layout. A blank may serve several groups, so a blank laid on a well that holds only blanks is
+ * added beside them (or, with `toggleSharedBlank`, taken off when the same group's blank is already there);
+ * anything else replaces whatever the well held.
+ */
+export function layEntries<E extends { well: string }>(
+  current: E[],
+  entries: E[],
+  rules: { isBlank: (e: E) => boolean; sameGroup: (a: E, b: E) => boolean },
+  toggleSharedBlank = false,
+): E[] {
+  let next = [...current];
+  for (const e of entries) {
+    const here = next.filter((x) => x.well === e.well);
+    if (rules.isBlank(e) && here.length > 0 && here.every(rules.isBlank)) {
+      if (here.some((x) => rules.sameGroup(x, e))) {
+        if (toggleSharedBlank) next = next.filter((x) => !(x.well === e.well && rules.sameGroup(x, e)));
+      } else next.push(e);
+      continue;
+    }
+    next = [...next.filter((x) => x.well !== e.well), e];
+  }
+  return next;
 }

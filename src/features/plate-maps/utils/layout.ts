@@ -1,5 +1,5 @@
 import type { PlateMapEntry } from '@/schemas/plate';
-import { blockPatternLabels, blockWells as gridBlockWells, fillPattern, type BlockPattern } from '@/utils/plate-grid';
+import { blockPatternLabels, blockWells as gridBlockWells, fillPattern, layEntries, type BlockPattern } from '@/utils/plate-grid';
 
 export type Brush = Omit<PlateMapEntry, 'well'>;
 
@@ -20,18 +20,6 @@ export function fillBlock(wells: string[], brush: Brush, pattern: BlockPattern):
  * is added beside them (or removed, when the same group is already there); anything else replaces the well.
  */
 export function applyEntries(current: PlateMapEntry[], entries: PlateMapEntry[], toggleSharedBlank = false): PlateMapEntry[] {
-  let next = [...current];
-  for (const e of entries) {
-    const here = next.filter((x) => x.well === e.well);
-    const sameGroup = (x: PlateMapEntry) => x.specimenRef === e.specimenRef && x.assay === e.assay && x.replicate === e.replicate;
-    if (e.role === 'blank' && here.length > 0 && here.every((x) => x.role === 'blank')) {
-      if (here.some(sameGroup)) {
-        if (toggleSharedBlank) next = next.filter((x) => !(x.well === e.well && sameGroup(x)));
-      } else next.push(e);
-      continue;
-    }
-    next = [...next.filter((x) => x.well !== e.well), e];
-  }
-  return next;
+  const sameGroup = (x: PlateMapEntry, e: PlateMapEntry) => x.specimenRef === e.specimenRef && x.assay === e.assay && x.replicate === e.replicate;
+  return layEntries(current, entries, { isBlank: (e) => e.role === 'blank', sameGroup }, toggleSharedBlank);
 }
-

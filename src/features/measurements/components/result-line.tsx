@@ -1,1 +1,0 @@
-export { ResultLine } from '@/components/plate/result-line';
