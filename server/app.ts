@@ -8,7 +8,7 @@ import type { Sequelize } from 'sequelize';
 import type { AppConfig } from './config';
 import { requireSameOrigin } from './auth/origin-check';
 import { createPassport } from './auth/passport';
-import { notFound, toHttpError } from './lib/errors';
+import { errorPage, notFound, toHttpError, wantsErrorPage } from './lib/errors';
 import { cacheSessionReads, extendSessions, SHARED_SESSION_CACHE_MS } from './auth/session-cache';
 import { serveClient, serveClientIndex } from './client-assets';
 import { logError } from './lib/log';
@@ -154,6 +154,10 @@ export function createApp(opts: AppOptions): Express {
     const { status, body } = toHttpError(err);
     if (status >= 500) logError(err, `${req.method} ${req.originalUrl}`);
     if (res.headersSent) return;
+    if (wantsErrorPage(req.method, (types) => req.accepts(types))) {
+      res.status(status).type('html').send(errorPage(status, body));
+      return;
+    }
     res.status(status).json(body);
   };
   app.use(errorHandler);

@@ -151,3 +151,32 @@ export function toHttpError(err: unknown): { status: number; body: ErrorBody } {
   }
   return { status: 500, body: envelope('INTERNAL', 'Something went wrong on the server; the error has been logged') };
 }
+
+const escapeHtml = (s: string) =>
+  s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&#39;');
+
+const pageHeadings: Partial<Record<number, string>> = {
+  401: 'Please sign in first',
+  403: 'This is not part of your role',
+  404: 'Nothing at this address',
+};
+
+/**
+ * A person who opens an API link in the browser (a GET that asks for HTML, as a browser's address bar does)
+ * gets a short readable page with the same message instead of bare JSON; API clients, which ask for JSON or
+ * anything, keep the JSON body. The status is the same either way.
+ */
+export function wantsErrorPage(method: string, accepts: (types: string[]) => string | false): boolean {
+  return method === 'GET' && accepts(['json', 'html']) === 'html';
+}
+
+/** The small page of wantsErrorPage: heading, the error's message, and the way back. No script, no outside style. */
+export function errorPage(status: number, body: ErrorBody): string {
+  const heading = pageHeadings[status] ?? (status >= 500 ? 'Something went wrong' : 'This request could not be completed');
+  const back = status === 401 ? '<a href="/sign-in">Sign in</a>' : '<a href="/">Back to Cristae</a>';
+  return `<!doctype html>
+<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">
+<title>${escapeHtml(heading)} · Cristae</title></head>
+<body><main><h1>${escapeHtml(heading)}</h1><p>${escapeHtml(body.error.message)}</p>
+<p><small>Status ${status} · ${escapeHtml(body.error.code)}</small></p><p>${back}</p></main></body></html>`;
+}
