@@ -3,6 +3,7 @@ import { Sequelize } from 'sequelize';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BrowserContext } from 'playwright-core';
 import { useAppInBrowser } from './support/app';
+import { describeFindings, seriousViolations } from './support/axe';
 import { launchBrowser, screenshot, signIn } from './support/browser';
 
 const app = useAppInBrowser();
@@ -85,6 +86,7 @@ describe('quality control materials, in Chromium', () => {
     expect(await page.getByLabel(/^10x/).isChecked()).toBe(false);
     expect(await page.getByLabel(/^4-1s/).isChecked()).toBe(true);
     await screenshot(page, 'qc-overview');
+    expect(describeFindings(await seriousViolations(page))).toBe('');
     await page2.close();
 
     // Runs as the runs module stores them (written straight into the server's database file): an accepted run,
@@ -103,6 +105,8 @@ describe('quality control materials, in Chromium', () => {
       await withPoints.getByText(words).waitFor();
     }
     await screenshot(page, 'qc-material-chart-with-runs');
+    // [confirmed] WCAG 2.1 A/AA via axe-core's rule tags: nothing serious or critical on the material page.
+    expect(describeFindings(await seriousViolations(page))).toBe('');
     // A point opens its run's page.
     await withPoints.locator('.recharts-scatter-symbol').first().click();
     await page.waitForURL(new RegExp(`/runs/${runIds[0]}$`));
