@@ -46,7 +46,7 @@ export default defineConfig({
           env: { CRISTAE_TEST_DATABASE: 'postgres' },
           globalSetup: ['tests/setup/postgres-template.ts'],
           testTimeout: 30_000,
-          hookTimeout: 60_000,
+          hookTimeout: 120_000,
         },
       },
       {

@@ -16,6 +16,8 @@ const DEMO_PASSWORD = 'restart-demo-pass';
 const technologist = demoAccounts.find((a) => a.role === 'technologist')!;
 
 let env: Record<string, string>;
+/** The SQLite file: the database under test, or on PostgreSQL a path that must never be created. */
+let sqliteFile: string;
 let cleanUp: () => Promise<void>;
 let server: ServerProcess | null = null;
 
@@ -25,11 +27,17 @@ beforeAll(async () => {
     env = { DATABASE_URL: db.url };
     cleanUp = db.drop;
   } else {
-    const dir = tempDataDir();
-    env = { DATABASE_PATH: path.join(dir, 'cristae.sqlite') };
-    cleanUp = async () => fs.rmSync(dir, { recursive: true, force: true });
+    env = {};
+    cleanUp = async () => undefined;
   }
-  env = { ...env, NODE_ENV: 'development', DEMO_PASSWORD, FILES_PATH: path.join(tempDataDir(), 'files') };
+  const dir = tempDataDir();
+  sqliteFile = path.join(dir, 'cristae.sqlite');
+  const dropDatabase = cleanUp;
+  cleanUp = async () => {
+    await dropDatabase();
+    fs.rmSync(dir, { recursive: true, force: true });
+  };
+  env = { ...env, NODE_ENV: 'development', DEMO_PASSWORD, FILES_PATH: path.join(dir, 'files') };
 }, 60_000);
 afterAll(async () => {
   await server?.stop();
@@ -37,7 +45,7 @@ afterAll(async () => {
 }, 60_000);
 
 async function start(): Promise<{ server: ServerProcess; agent: ReturnType<typeof request.agent> }> {
-  server = await startServerProcess(env, env.DATABASE_PATH ?? '');
+  server = await startServerProcess(env, sqliteFile);
   const agent = request.agent(server.origin);
   agent.set('Origin', server.origin);
   const login = await agent.post('/api/auth/login').send({ email: technologist.email, password: DEMO_PASSWORD });
@@ -61,6 +69,8 @@ describe(`the real server on an empty ${testDialect} database, started twice`, (
     casesBefore = (await first.agent.get('/api/cases?pageSize=200')).body.total;
     expect(casesBefore).toBe(list.body.total + 1);
     expect(await first.server.stop()).toBe(0);
+    // On PostgreSQL nothing is written to a SQLite file on the side.
+    expect(fs.existsSync(sqliteFile)).toBe(testDialect === 'sqlite');
   }, 120_000);
 
   it('when started again on the same database, then nothing is migrated or seeded twice and the saved case is there', async () => {
