@@ -11,7 +11,7 @@ const benches: { name: string; load: () => Promise<{ default: () => Promise<Benc
   { name: 'engine-plate', load: () => import('./engine-plate') },
   { name: 'calc-endpoint', load: () => import('./calc-endpoint') },
 ];
-for (const extra of ['cases-list']) {
+for (const extra of ['cases-list', 'postgres']) {
   if (fs.existsSync(path.join(import.meta.dirname, `${extra}.ts`))) benches.push({ name: extra, load: () => import(`./${extra}.ts`) });
 }
 
