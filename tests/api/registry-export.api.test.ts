@@ -4,6 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { CaseDetail } from '@/schemas/case';
 import type { ReportDetail, ReportListItem } from '@/schemas/report';
 import { accountId, createCaseAwaitingReview, nearMeans } from '../factories/workup';
+import { binary } from '../setup/binary-body';
 import { DEMO_PASSWORD, countRows, makeTestApp, type TestApp } from '../setup/test-app';
 
 /*
@@ -75,14 +76,7 @@ afterAll(() => t.close());
 
 /** The export as raw text (UTF-8 decoded here) and as records. */
 async function exportCsv(agent: Agent, query: string): Promise<{ res: request.Response; text: string; header: string[]; rows: Row[] }> {
-  const res = await agent
-    .get(`/api/registry/export.csv${query}`)
-    .buffer(true)
-    .parse((r, cb) => {
-      const chunks: Buffer[] = [];
-      r.on('data', (c: Buffer) => chunks.push(c));
-      r.on('end', () => cb(null, Buffer.concat(chunks)));
-    });
+  const res = await binary(agent.get(`/api/registry/export.csv${query}`));
   const text = Buffer.isBuffer(res.body) ? new TextDecoder('utf-8', { fatal: true }).decode(res.body) : '';
   if (res.status !== 200) return { res, text, header: [], rows: [] };
   const records = parse(text, { relax_column_count: false }) as string[][];

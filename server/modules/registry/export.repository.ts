@@ -37,11 +37,13 @@ export async function contextOfMembers(members: readonly CohortMember[]): Promis
     where: { caseId: { [Op.in]: caseIds } },
     attributes: ['id', 'caseId', 'label', 'collectedAt', 'receivedAt', 'accepted'],
   });
-  const patientOfCase = new Map(cases.map((c) => [c.id, patients.find((p) => p.id === c.patientId)!]));
+  const patientById = new Map(patients.map((p) => [p.id, p]));
+  const patientOfCase = new Map(cases.map((c) => [c.id, patientById.get(c.patientId)]));
+  // The cohort keeps the label as signed, or the specimen id when the label was blank (cohort-signing.ts).
+  const specimenByKey = new Map(specimens.map((x) => [memberKey(x.caseId, x.label.trim() || String(x.id)), x]));
   for (const m of members) {
     const p = patientOfCase.get(m.caseId);
-    // The cohort keeps the label as signed, or the specimen id when the label was blank (cohort-signing.ts).
-    const s = specimens.find((x) => x.caseId === m.caseId && (x.label.trim() || String(x.id)) === m.specimenLabel);
+    const s = specimenByKey.get(memberKey(m.caseId, m.specimenLabel));
     if (!p || !s) continue;
     out.set(memberKey(m.caseId, m.specimenLabel), {
       patientKey: p.id,
