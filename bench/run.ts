@@ -9,7 +9,9 @@ import type { BenchResult } from './types';
  */
 const benches: { name: string; load: () => Promise<{ default: () => Promise<BenchResult> }> }[] = [
   { name: 'engine-plate', load: () => import('./engine-plate') },
-  { name: 'calc-endpoint', load: () => import('./calc-endpoint') },
+  { name: 'request-path', load: () => import('./request-path') },
+  { name: 'write-path', load: () => import('./write-path') },
+  { name: 'start-up', load: () => import('./start-up') },
 ];
 for (const extra of ['cases-list', 'postgres']) {
   if (fs.existsSync(path.join(import.meta.dirname, `${extra}.ts`))) benches.push({ name: extra, load: () => import(`./${extra}.ts`) });

@@ -1,4 +1,5 @@
 import path from 'node:path';
+import zlib from 'node:zlib';
 import compression from 'compression';
 import express, { type RequestHandler } from 'express';
 
@@ -12,7 +13,9 @@ const ONE_YEAR_S = 365 * 24 * 60 * 60;
  * for an hour, index.html never without asking again. API paths pass straight through.
  */
 export function serveClient(clientDir: string): RequestHandler {
-  const compress = compression();
+  // Brotli quality 5 rather than the middleware's 4: about a tenth smaller than gzip on the built scripts, at
+  // similar cost; each browser fetches a hashed file once (immutable).
+  const compress = compression({ brotli: { params: { [zlib.constants.BROTLI_PARAM_QUALITY]: 5 } } });
   const files = express.static(clientDir, {
     index: false,
     setHeaders: (res, file) => {

@@ -26,7 +26,7 @@ export type BenchServer = {
  */
 export function serverCommand(): { args: string[]; kind: BenchServer['kind'] } {
   if (process.env.BENCH_SERVER !== 'tsx' && fs.existsSync(COMPILED)) {
-    return { args: ['--enable-source-maps', COMPILED], kind: 'compiled' };
+    return { args: ['--require', './scripts/threadpool.cjs', COMPILED], kind: 'compiled' };
   }
   return { args: ['--import', 'tsx', 'server/index.ts'], kind: 'tsx' };
 }

@@ -63,7 +63,7 @@ export function cacheSessionReads(store: SessionStoreLike, opts: { maxAgeMs?: nu
     }
     get(sid, (err, session) => {
       if (err || !session) return callback(err, session);
-      const data = copy(session as never);
+      const data = copy(session as unknown as { [key: string]: Plain });
       // The table's periodic clean-up may not have run yet: an expired row is ended here, never served.
       const expires = (data.cookie as { expires?: string } | null)?.expires;
       if (expires && Date.parse(expires) <= Date.now()) return destroy(sid, () => callback(null, null));

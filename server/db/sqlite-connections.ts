@@ -9,7 +9,7 @@ type SqliteConnection = {
 };
 type ConnectionManager = {
   connections: Record<string, SqliteConnection>;
-  getConnection: (options?: { uuid?: string }) => Promise<SqliteConnection>;
+  getConnection: (options?: { uuid?: string; type?: string }) => Promise<SqliteConnection>;
   releaseConnection: (connection: SqliteConnection, force?: boolean) => unknown;
 };
 
@@ -22,6 +22,8 @@ type ConnectionManager = {
  */
 export const SQLITE_CONNECTION_PRAGMAS = ['PRAGMA busy_timeout = 5000', 'PRAGMA synchronous = NORMAL'];
 const MAX_IDLE = 4;
+/** Connections for reads outside a transaction, taken in turn. */
+const READERS = 3;
 
 const run = (connection: SqliteConnection, sql: string) =>
   new Promise<void>((resolve, reject) => connection.run(sql, (err) => (err ? reject(err) : resolve())));
@@ -30,27 +32,38 @@ const run = (connection: SqliteConnection, sql: string) =>
  * Sequelize's sqlite dialect opens a new connection for every transaction and closes it at the end, so each
  * write paid for opening the file and reading its schema again. Here a transaction's connection goes back to a
  * small idle list when the transaction ends and the next transaction takes it (one transaction per connection
- * at a time, as before), and every connection opened gets SQLITE_CONNECTION_PRAGMAS. A file database only;
- * an in-memory database keeps its one shared connection.
+ * at a time, as before), and every connection opened gets SQLITE_CONNECTION_PRAGMAS.
+ * Reads outside a transaction all went through one shared connection, whose mutex made them wait for each
+ * other on the thread pool (and made a writer's statements wait for a free thread): SELECTs now take READERS
+ * connections in turn. Under WAL each read sees every transaction committed before it started, as before.
+ * A file database only; an in-memory database keeps its one shared connection.
  */
 export async function tuneSqliteConnections(sequelize: Sequelize): Promise<void> {
-  if (sequelize.getDialect() !== 'sqlite' || (sequelize.options as { storage?: string }).storage === ':memory:') return;
+  if (sequelize.getDialect() !== 'sqlite' || (sequelize as unknown as { options: { storage?: string } }).options.storage === ':memory:') return;
   const manager = sequelize.connectionManager as unknown as ConnectionManager;
   const open = manager.getConnection.bind(manager);
   const release = manager.releaseConnection.bind(manager);
   const idle: SqliteConnection[] = [];
-
+  let turn = 0;
+  const withPragmas = async (connection: Promise<SqliteConnection>) => {
+    const c = await connection;
+    for (const pragma of SQLITE_CONNECTION_PRAGMAS) await run(c, pragma);
+    return c;
+  };
+  const readers: Promise<SqliteConnection>[] = [];
   manager.getConnection = async (options) => {
     const uuid = options?.uuid;
+    if (!uuid && options?.type === 'SELECT') {
+      const i = turn++ % READERS;
+      return (readers[i] ??= withPragmas(open({ ...options, uuid: `read-${i}` })));
+    }
     if (uuid && uuid !== 'default' && !manager.connections[uuid]) {
       const reused = idle.pop();
       if (reused) {
         manager.connections[uuid] = reused;
         return reused;
       }
-      const fresh = await open(options);
-      for (const pragma of SQLITE_CONNECTION_PRAGMAS) await run(fresh, pragma);
-      return fresh;
+      return withPragmas(open(options));
     }
     return open(options);
   };

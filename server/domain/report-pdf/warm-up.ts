@@ -32,7 +32,7 @@ export async function warmUpReportRendering(): Promise<void> {
   });
   registerFonts(doc);
   doc.addPage({ size: 'A4', margin: 0 });
-  let y = PAGE.contentTop;
+  let y: number = PAGE.contentTop;
   for (const style of Object.values(STYLES)) {
     await nextTurn();
     for (const line of wrapText(doc, SAMPLE, style, CONTENT_WIDTH)) {
