@@ -21,7 +21,7 @@ type DataTableProps<T> = {
   /** Rows after the data rows, e.g. an empty-list or loading message. */
   children?: ReactNode;
   /** Names the table's scrolling box for screen readers (the table scrolls sideways in it on narrow screens). */
-  label: string;
+  label?: string;
 };
 
 /**
@@ -29,7 +29,7 @@ type DataTableProps<T> = {
  * button that toggles its sort, then one row per row of the row model. State (data, paging, sorting, client
  * or server side) stays with the caller's useReactTable.
  */
-export function DataTable<T>({ table, classes, sortIndicator, canSort, children, label }: DataTableProps<T>) {
+export function DataTable<T>({ table, classes, sortIndicator, canSort, children, label = 'Table' }: DataTableProps<T>) {
   return (
     <TableBox label={label}>
     <table className="w-full text-left text-sm">
