@@ -27,6 +27,7 @@ import { measurementsRouter } from './modules/measurements/measurements.router';
 import { plateMapsRouter } from './modules/plate-maps/plate-maps.router';
 import { resultsRouter } from './modules/results/results.router';
 import { uploadsRouter } from './modules/uploads/uploads.router';
+import { runsRouter } from './modules/runs/runs.router';
 import { createDisabledMailer, type Mailer } from './modules/mail/mailer';
 import { mailRouter } from './modules/mail/mail.router';
 import { reportsRouter } from './modules/reports/reports.router';
@@ -133,6 +134,7 @@ export function createApp(opts: AppOptions): Express {
   app.use(specimensRouter(sequelize));
   app.use(referenceIntervalsRouter(sequelize));
   app.use(qcRouter(sequelize));
+  app.use(runsRouter(sequelize));
 
   const mailer = opts.mailer ?? createDisabledMailer(config.mail.from);
   app.use(reportsRouter(sequelize, { publicOrigin: config.publicOrigin }));

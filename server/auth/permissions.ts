@@ -76,6 +76,14 @@ export const permissions = {
   'POST /api/control-materials/:id/targets': DIRECTOR,
   'POST /api/control-materials/:id/targets/establish': DIRECTOR,
   'POST /api/control-targets/:id/approve': DIRECTOR,
+  // Analytical runs: one plate for several cases and the controls. The laboratory lists, previews and imports
+  // them; only a director releases a run whose controls did not pass (password typed again).
+  'GET /api/runs': LAB,
+  'GET /api/runs/open-specimens': LAB,
+  'GET /api/runs/:id': LAB,
+  'POST /api/runs/preview': LAB,
+  'POST /api/runs': LAB,
+  'POST /api/runs/:id/override': DIRECTOR,
   // Signed reports: laboratory staff read all; a clinician reads the cases they referred (the service filters,
   // and answers 404 for anything else); administrators none. Only a director signs or corrects.
   'GET /api/reports': [...LAB, 'clinician'],

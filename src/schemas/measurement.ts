@@ -372,6 +372,7 @@ export const plateReplicateSummarySchema = z.object({
   cvPct: z.number().nullable(),
   flags: z.array(flagSchema),
 });
+export type PlateReplicateSummary = z.infer<typeof plateReplicateSummarySchema>;
 
 export const platePreviewSchema = z.object({
   filename: z.string(),

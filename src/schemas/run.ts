@@ -144,6 +144,13 @@ export const runPlanSchema = z
     pathlength: platePathlengthSchema,
     reactionVolumeUl: volume('Reaction volume'),
     sampleVolumeUl: volume('Sample volume'),
+    /**
+     * Protein of each control material's homogenate as pipetted on this plate (mg/mL), keyed by control material
+     * id: a control's activity is per mg protein like a specimen's. Every control material used needs one.
+     */
+    controlProteinMgPerMl: z
+      .record(z.string(), z.number({ error: 'Protein must be a number' }).positive('Protein must be greater than 0').max(1000, 'Protein is at most 1000 mg/mL'))
+      .default({}),
     /** Windows moved by hand, keyed by runGroupId. */
     windows: z.record(z.string(), rateWindowSchema),
   })

@@ -51,6 +51,9 @@ function expected(method: string, path: string): Expected {
   if (path === '/api/qc/rules' || path.startsWith('/api/control-materials') || path.startsWith('/api/control-targets')) {
     return method === 'get' ? LAB : ['director'];
   }
+  // Runs (issue 12): the laboratory imports and reads runs; "a director can release them only with a documented
+  // override", so the override is the director's alone.
+  if (path === '/api/runs/:id/override') return ['director'];
   // Everything else is assay work on cases: the laboratory only.
   return LAB;
 }

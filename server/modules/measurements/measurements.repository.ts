@@ -115,6 +115,8 @@ export type NewMeasurement = {
   definitionVersion: number;
   uploadId: number | null;
   createdById: number | null;
+  /** The analytical run the measurement was read on (a run import); absent for single-case entry. */
+  runId?: number | null;
 };
 
 export async function insertMeasurement(m: NewMeasurement, transaction: Transaction): Promise<Measurement> {
@@ -133,6 +135,7 @@ export async function insertMeasurement(m: NewMeasurement, transaction: Transact
       flags: JSON.stringify(m.result.flags),
       uploadId: m.uploadId,
       createdById: m.createdById,
+      runId: m.runId ?? null,
     },
     { transaction },
   );

@@ -13,6 +13,7 @@ import {
   type SubmitCaseInput,
   type UsedInterval,
 } from '@/schemas/results';
+import type { RunQcStamp } from '@/schemas/run';
 import type { User } from '@/schemas/user';
 import type { Comparison } from '../../domain/assay-engine/compare';
 import { computeRatios, ratioToCiiAssays, ratioToCsAssays, type ActivityMap } from '../../domain/assay-engine/normalise';
@@ -28,6 +29,8 @@ import { findPatientById } from '../patients/patients.repository';
 import { findApplicableInterval, toComparisonInterval } from '../reference-intervals/reference-intervals.service';
 import { listSpecimensOfCase } from '../specimens/specimens.repository';
 import { readResultsSnapshot, writeResultsSnapshot } from './results.repository';
+import { qcNotAccepted, runReleased } from '../runs/run-release';
+import { runStampsOfMeasurements } from '../runs/runs.repository';
 
 /** States in which results are computed live from the measurements; afterwards they are read from the snapshot. */
 const liveStates: readonly CaseState[] = ['received', 'in_assay'];
@@ -101,6 +104,7 @@ async function specimenResults(
   dateOfBirth: string,
   at: Date,
   definitions: Definitions,
+  runStamps: Map<number, RunQcStamp>,
 ): Promise<SpecimenResult> {
   const collected = new Date(specimen.collectedAt ?? specimen.receivedAt);
   const ageYears = ageInYears(dateOfBirth, collected);
@@ -206,6 +210,7 @@ async function specimenResults(
         definitionVersion: r.definitionVersion,
         flags: r.flags,
         excluded: r.excluded,
+        run: runStamps.get(r.id) ?? null,
       })),
       n: s.n,
       mean: s.mean,
@@ -276,8 +281,11 @@ export async function computeCaseResults(caseId: number, transaction?: Transacti
     listMeasurementsOfCase(caseId, transaction),
   ]);
   const definitions: Definitions = new Map();
+  const runStamps = await runStampsOfMeasurements(measurements.map((m) => m.id), transaction);
   const specimenResultsList: SpecimenResult[] = [];
-  for (const s of specimens) specimenResultsList.push(await specimenResults(s, measurements, patient.dateOfBirth, at, definitions));
+  for (const s of specimens) {
+    specimenResultsList.push(await specimenResults(s, measurements, patient.dateOfBirth, at, definitions, runStamps));
+  }
 
   const codes = [...new Set(specimenResultsList.map((s) => s.pattern?.code).filter((x): x is string => !!x))];
   const used = new Map<string, { assay: AssayCode; id: number; version: number }>();
@@ -334,6 +342,12 @@ export async function submitCaseForReview(
     if (!allRejected && !results.specimens.some((s) => s.assays.length > 0)) {
       throw invalidState(`Case ${c.accession} has no assay results yet: enter them before submitting it for review.`);
     }
+    // Release gate: no replicate that counts may come from a run whose controls were rejected or not evaluated,
+    // unless a director released that run (CLIA 42 CFR 493.1256 [from memory]; a 1-2s warning passes).
+    const held = results.specimens
+      .flatMap((s) => s.assays.flatMap((a) => a.replicates))
+      .flatMap((r) => (!r.excluded && r.run && !runReleased(r.run) ? [r.run.runNumber] : []));
+    if (held.length > 0) throw qcNotAccepted(c.accession, [...new Set(held)].sort());
     let version = input.version;
     if (c.state === 'received') {
       version = (await transitionCase(sequelize, actor, caseId, 'in_assay', { version }, t)).version;

@@ -8,6 +8,7 @@ import {
   type PlateImportPlan,
   type PlateImportResult,
   type PlatePreview,
+  type PlateReplicateSummary,
   type StoredInputs,
   type WorkupSpecimen,
 } from '@/schemas/measurement';
@@ -76,8 +77,27 @@ function bindSpecimens(
   return bound;
 }
 
-function pathlengthOf(plan: PlateImportPlan): number {
+export function pathlengthOf(plan: Pick<PlateImportPlan, 'pathlength'>): number {
   return plan.pathlength.mode === 'given' ? plan.pathlength.cm : pathlengthFromFill(plan.pathlength.volumeUl, plan.pathlength.wellAreaCm2);
+}
+
+type SummarisedGroup = { specimenId: number; specimenLabel: string; assay: AssayCode; result: { activity: number | null } };
+
+/** Replicate mean, SD and CV of each specimen × assay among the groups, in first-appearance order. */
+export function summariseSpecimenAssays<G extends SummarisedGroup>(
+  groups: G[],
+  cvLimitPct: (assay: AssayCode) => number,
+): { first: G; summary: PlateReplicateSummary }[] {
+  const bySpecimenAssay = new Map<string, G[]>();
+  for (const g of groups) {
+    const key = `${g.specimenId}|${g.assay}`;
+    bySpecimenAssay.set(key, [...(bySpecimenAssay.get(key) ?? []), g]);
+  }
+  return [...bySpecimenAssay.values()].map((gs) => {
+    const first = gs[0]!;
+    const summary = summariseReplicates(gs.map((g) => g.result.activity), cvLimitPct(first.assay));
+    return { first, summary: { specimenId: first.specimenId, specimenLabel: first.specimenLabel, assay: first.assay, ...summary } };
+  });
 }
 
 /** Parses, maps and computes the whole file; throws PlateImportError (400 FILE_REJECTED) on a bad file. */
@@ -148,19 +168,10 @@ async function preparePlate(caseId: number, file: IncomingFile, plan: PlateImpor
     };
   });
 
-  const bySpecimenAssay = new Map<string, PreparedGroup[]>();
-  for (const g of groups) {
-    const key = `${g.preview.specimenId}|${g.preview.assay}`;
-    bySpecimenAssay.set(key, [...(bySpecimenAssay.get(key) ?? []), g]);
-  }
-  const summaries = [...bySpecimenAssay.values()].map((gs) => {
-    const first = gs[0]!.preview;
-    const summary = summariseReplicates(
-      gs.map((g) => g.preview.result.activity),
-      definitions.get(first.assay)!.definition.cvLimitPct,
-    );
-    return { specimenId: first.specimenId, specimenLabel: first.specimenLabel, assay: first.assay, ...summary };
-  });
+  const summaries = summariseSpecimenAssays(
+    groups.map((g) => g.preview),
+    (assay) => definitions.get(assay)!.definition.cvLimitPct,
+  ).map(({ summary }) => summary);
 
   const sha256 = createHash('sha256').update(file.buffer).digest('hex');
   return {

@@ -10,28 +10,32 @@ import { route } from '../../lib/route';
 import { findCaseById } from '../cases/cases.repository';
 import * as plates from './plate-import.service';
 
-/** The plate file arrives as multipart form data: the file in "file", the reading plan as JSON text in "plan". */
-const plateUploadBodySchema = z.object({
-  plan: z
-    .string({ error: 'plan is required: the plate map, specimens and conditions as JSON' })
-    .transform((text, ctx) => {
-      try {
-        return JSON.parse(text) as unknown;
-      } catch {
-        ctx.addIssue({ code: 'custom', message: 'plan is not valid JSON' });
-        return z.NEVER;
-      }
-    })
-    .pipe(plateImportPlanSchema),
-});
+/** A plate file arrives as multipart form data: the file in "file", the reading plan as JSON text in "plan". */
+export function multipartPlanBody<T extends z.ZodType>(planSchema: T, what: string) {
+  return z.object({
+    plan: z
+      .string({ error: `plan is required: ${what} as JSON` })
+      .transform((text, ctx) => {
+        try {
+          return JSON.parse(text) as unknown;
+        } catch {
+          ctx.addIssue({ code: 'custom', message: 'plan is not valid JSON' });
+          return z.NEVER;
+        }
+      })
+      .pipe(planSchema),
+  });
+}
 
-const upload = multer({
+const plateUploadBodySchema = multipartPlanBody(plateImportPlanSchema, 'the plate map, specimens and conditions');
+
+export const plateFileUpload = multer({
   storage: multer.memoryStorage(),
   // One byte over the parser's own limit, so the parser reports "too large" with the limit in its words.
   limits: { fileSize: MAX_PLATE_FILE_BYTES + 1, files: 1, fields: 4, fieldSize: 256 * 1024 },
 });
 
-function incomingFile(file: Express.Multer.File | undefined): plates.IncomingFile {
+export function incomingFile(file: Express.Multer.File | undefined): plates.IncomingFile {
   if (!file) throw badInput({ file: 'Choose the plate file to upload' }, 'No plate file was sent');
   return { originalname: file.originalname, mimetype: file.mimetype, size: file.size, buffer: file.buffer };
 }
@@ -45,7 +49,7 @@ export function uploadsRouter(sequelize: Sequelize): Router {
     async ({ params, body }, req, res) => {
       res.json(await plates.previewPlateImport(params.id, incomingFile(req.file), body.plan));
     },
-    upload.single('file'),
+    plateFileUpload.single('file'),
   );
   route(
     r,
@@ -54,7 +58,7 @@ export function uploadsRouter(sequelize: Sequelize): Router {
     async ({ params, body }, req, res) => {
       res.status(201).json(await plates.importPlate(sequelize, req.user!, params.id, incomingFile(req.file), body.plan));
     },
-    upload.single('file'),
+    plateFileUpload.single('file'),
   );
   route(r, 'GET /api/cases/:id/uploads', { params: idParamsSchema }, async ({ params }, _req, res) => {
     if (!(await findCaseById(params.id))) throw notFound('Case', params.id);
