@@ -5,8 +5,9 @@ import { Fhir } from 'fhir';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { ReportDetail, ReportListItem } from '@/schemas/report';
 import type { CaseResults } from '@/schemas/results';
+import { buildSpecimenInput, createCase } from '../factories/cases';
 import { binary } from '../setup/binary-body';
-import { makeTestApp, type TestApp } from '../setup/test-app';
+import { DEMO_PASSWORD, makeTestApp, type TestApp } from '../setup/test-app';
 
 /*
  * GET /api/reports/:id/fhir against the standards, with libraries from npm, never with Cristae's own code:
@@ -46,6 +47,7 @@ let clinician: Agent;
 let clinician2: Agent;
 let admin: Agent;
 let reports: ReportListItem[];
+let rejectedAccession = '';
 
 const schemaValidator = new JSONSchemaValidator();
 const fhirJs = new Fhir();
@@ -53,12 +55,21 @@ const ucumUtils = ucum.UcumLhcUtils.getInstance();
 
 beforeAll(async () => {
   t = await makeTestApp();
-  [tech, clinician, clinician2, admin] = await Promise.all([
+  let director: Agent;
+  [tech, clinician, clinician2, admin, director] = await Promise.all([
     t.signedIn('technologist'),
     t.signedIn('clinician'),
     t.signedIn('clinician2'),
     t.signedIn('admin'),
+    t.signedIn('director'),
   ]);
+  // Besides the demo's reports: one whose only specimen was rejected on receipt (a Specimen, no Observation).
+  const rejected = await createCase(tech, {
+    specimen: buildSpecimenInput({ accepted: false, rejectionReason: 'Thawed in transit', transportCondition: 'thawed' }),
+  });
+  expect((await tech.post(`/api/cases/${rejected.id}/submit`).send({ version: rejected.version })).status).toBe(200);
+  expect((await director.post(`/api/cases/${rejected.id}/sign`).send({ password: DEMO_PASSWORD })).status).toBe(201);
+  rejectedAccession = rejected.accession;
   const res = await tech.get('/api/reports');
   expect(res.status).toBe(200);
   reports = res.body as ReportListItem[];
@@ -150,6 +161,17 @@ describe('GET /api/reports/:id/fhir: the bundle against HL7 FHIR R4', () => {
       expect(resourcesOf(bundle, 'Patient')).toHaveLength(1);
       expect(resourcesOf(bundle, 'Specimen').length).toBeGreaterThanOrEqual(1);
     }
+  });
+
+  it('when the only specimen was rejected, then the bundle has its Specimen as unsatisfactory, with the reason, and no Observation', async () => {
+    const item = reports.find((r) => r.accession === rejectedAccession)!;
+    const bundle = await bundleOf(tech, item.id);
+    const [specimen] = resourcesOf(bundle, 'Specimen');
+    // Specimen.status value set (available | unavailable | unsatisfactory | entered-in-error) [confirmed as the standard].
+    expect(specimen!.status).toBe('unsatisfactory');
+    expect(JSON.stringify(specimen!.note)).toContain('Thawed in transit');
+    expect(resourcesOf(bundle, 'Observation')).toHaveLength(0);
+    expect(r4Errors(bundle)).toEqual([]);
   });
 
   it('when the final report is exported, then the DiagnosticReport is final, concludes with the interpretation and carries the stored PDF', async () => {

@@ -3,6 +3,7 @@ import type request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { CaseDetail } from '@/schemas/case';
 import type { ReportDetail, ReportListItem } from '@/schemas/report';
+import { buildSpecimenInput, createCase } from '../factories/cases';
 import { accountId, createCaseAwaitingReview, nearMeans } from '../factories/workup';
 import { binary } from '../setup/binary-body';
 import { DEMO_PASSWORD, countRows, makeTestApp, type TestApp } from '../setup/test-app';
@@ -40,8 +41,8 @@ let director: Agent;
 let tech: Agent;
 let clinician: Agent;
 let admin: Agent;
-/** The patients this file registers: one 89 years old at collection, one past 90 with two signed cases. */
-const made: { eightyNine?: CaseDetail; ninety: CaseDetail[] } = { ninety: [] };
+/** The cases this file signs: a patient 89 at collection, one past 90 with two cases, one rejected specimen. */
+const made: { eightyNine?: CaseDetail; ninety: CaseDetail[]; rejected?: CaseDetail } = { ninety: [] };
 
 /** A date of birth `years` years and `days` days before today (UTC), so the age at collection is known. */
 function bornYearsAgo(years: number, days: number): string {
@@ -71,6 +72,13 @@ beforeAll(async () => {
   // A name that a spreadsheet would read as a formula, with letters beyond ASCII.
   const first = await signedCase({ patient: { dateOfBirth: bornYearsAgo(90, 10), familyName: '=Øverholt+1', givenName: 'Ågot Żaneta' } });
   made.ninety.push(first, await signedCase({ patientId: first.patient.id }));
+  // Signed with its only specimen rejected on receipt: on the report, but with no results for the cohort tables.
+  const rejected = await createCase(tech, {
+    specimen: buildSpecimenInput({ accepted: false, rejectionReason: 'Thawed in transit', transportCondition: 'thawed' }),
+  });
+  expect((await tech.post(`/api/cases/${rejected.id}/submit`).send({ version: rejected.version })).status).toBe(200);
+  expect((await director.post(`/api/cases/${rejected.id}/sign`).send({ password: DEMO_PASSWORD })).status).toBe(201);
+  made.rejected = rejected;
 }, 240_000);
 afterAll(() => t.close());
 
@@ -128,8 +136,19 @@ describe('GET /api/registry/export.csv: rows', () => {
     expect(deid.rows.length).toBeGreaterThanOrEqual(reports.length);
   });
 
+  it('when a signed case\'s only specimen was rejected, then it still has its row, marked not accepted and without results', async () => {
+    const { header, rows } = await exportCsv(director, '');
+    const row = rows.find((r) => r.accession === made.rejected!.accession)!;
+    expect(row.specimen_accepted).toBe('no');
+    for (const column of header.filter((h) => /^C.*(activity|ratio)/.test(h))) expect(row[column], column).toBe('');
+    // Criteria about results never select it; criteria about the specimen or patient do.
+    expect((await exportCsv(director, '?pattern=normal')).rows.map((r) => r.accession)).not.toContain(made.rejected!.accession);
+    expect((await exportCsv(director, '?specimenType=skeletal_muscle')).rows.map((r) => r.accession)).toContain(made.rejected!.accession);
+    expect((await exportCsv(director, '?specimenType=liver')).rows.map((r) => r.accession)).not.toContain(made.rejected!.accession);
+  });
+
   it('when filtered as the cohort search is, then the export holds exactly the cohort search\'s members', async () => {
-    for (const q of ['range=CI:ratio_cs:pct:80:', 'specimenType=skeletal_muscle&sex=female', 'pattern=normal&ageBand=65_plus']) {
+    for (const q of ['range=CI:ratio_cs:pct:80:', 'complex=CI', 'pattern=normal&ageBand=65_plus']) {
       const cohort = await director.get(`/api/registry/cohort?${q}&pageSize=200`);
       expect(cohort.status).toBe(200);
       expect(cohort.body.total, q).toBeGreaterThan(0);
