@@ -1,7 +1,8 @@
-import { createColumnHelper, getCoreRowModel, useReactTable, type SortingState, type Updater } from '@tanstack/react-table';
+import { createColumnHelper } from '@tanstack/react-table';
 import { useMemo } from 'react';
 import { Link } from 'react-router-dom';
 import { DataTable, type DataTableClasses } from '@/components/ui/data-table';
+import { TablePager, useServerTable, type PagingChange } from '@/components/ui/server-table';
 import { paths } from '@/config/paths';
 import { specimenTypeLabels } from '@/schemas/common';
 import { cohortComplexes, cohortSortFields, type CohortComplex, type CohortFilter, type CohortMember, type CohortPage } from '@/schemas/registry';
@@ -37,7 +38,7 @@ type Props = {
   filter: CohortFilter;
   loading: boolean;
   dimmed: boolean;
-  onChange: (c: Partial<Record<'page' | 'pageSize' | 'sort' | 'dir', string | number | null>>) => void;
+  onChange: (c: PagingChange) => void;
   /** Pattern codes in words (the case list's wording, passed in by the page). */
   patternText: (code: string | null) => string;
 };
@@ -47,8 +48,6 @@ export function CohortTable({ page, filter, loading, dimmed, onChange, patternTe
   const pageSize = filter.pageSize ?? DEFAULT_PAGE_SIZE;
   const pageNo = filter.page ?? 1;
   const total = page?.total ?? 0;
-  const sortId = filter.sort ?? 'signedOn';
-  const sorting: SortingState = [{ id: sortId, desc: (filter.dir ?? (sortId === 'signedOn' ? 'desc' : 'asc')) === 'desc' }];
 
   const columns = useMemo(
     () => [
@@ -85,29 +84,19 @@ export function CohortTable({ page, filter, loading, dimmed, onChange, patternTe
     [patternText],
   );
 
-  const table = useReactTable({
+  const table = useServerTable({
     data: page?.items ?? [],
     columns,
-    getCoreRowModel: getCoreRowModel(),
-    manualPagination: true,
-    manualSorting: true,
-    enableSortingRemoval: false,
-    enableMultiSort: false,
-    pageCount: Math.max(1, Math.ceil(total / pageSize)),
-    state: { sorting, pagination: { pageIndex: pageNo - 1, pageSize } },
-    onSortingChange: (updater: Updater<SortingState>) => {
-      const s = (typeof updater === 'function' ? updater(sorting) : updater)[0];
-      if (s) onChange({ sort: s.id === 'signedOn' && s.desc ? null : s.id, dir: s.id === 'signedOn' && s.desc ? null : s.desc ? 'desc' : 'asc', page: null });
-    },
-    onPaginationChange: (updater) => {
-      const next = typeof updater === 'function' ? updater({ pageIndex: pageNo - 1, pageSize }) : updater;
-      if (next.pageSize !== pageSize) onChange({ pageSize: next.pageSize === DEFAULT_PAGE_SIZE ? null : next.pageSize, page: null });
-      else onChange({ page: next.pageIndex === 0 ? null : next.pageIndex + 1 });
-    },
+    total,
+    page: pageNo,
+    pageSize,
+    defaultPageSize: DEFAULT_PAGE_SIZE,
+    defaultSort: 'signedOn',
+    sort: filter.sort,
+    dir: filter.dir,
+    onChange,
   });
 
-  const first = total === 0 ? 0 : (pageNo - 1) * pageSize + 1;
-  const last = Math.min(pageNo * pageSize, total);
   return (
     <div className="flex flex-col gap-3">
       <div className={`overflow-hidden rounded-card border border-paper-line bg-paper-raised shadow-card transition-opacity ${dimmed ? 'opacity-60' : ''}`}>
@@ -130,26 +119,7 @@ export function CohortTable({ page, filter, loading, dimmed, onChange, patternTe
           ) : null}
         </DataTable>
       </div>
-      <div className="flex flex-wrap items-center justify-between gap-3 text-sm text-ink-soft">
-        <p role="status" aria-live="polite">
-          {loading ? '' : total === 0 ? 'No members' : `Members ${first.toLocaleString('en-GB')}–${last.toLocaleString('en-GB')} of ${total.toLocaleString('en-GB')}`}
-        </p>
-        <div className="flex items-center gap-2">
-          <label className="flex items-center gap-1.5">
-            Rows
-            <select className="rounded border border-paper-line bg-paper-raised px-1.5 py-1" value={pageSize} onChange={(e) => table.setPageSize(Number(e.target.value))}>
-              {pageSizes.map((n) => <option key={n} value={n}>{n}</option>)}
-            </select>
-          </label>
-          <button type="button" className="rounded-md border border-paper-line px-2.5 py-1 hover:bg-paper-sunk disabled:opacity-40" onClick={() => table.previousPage()} disabled={!table.getCanPreviousPage()}>
-            Previous page
-          </button>
-          <span className="num">Page {pageNo} of {table.getPageCount().toLocaleString('en-GB')}</span>
-          <button type="button" className="rounded-md border border-paper-line px-2.5 py-1 hover:bg-paper-sunk disabled:opacity-40" onClick={() => table.nextPage()} disabled={!table.getCanNextPage()}>
-            Next page
-          </button>
-        </div>
-      </div>
+      <TablePager table={table} total={total} page={pageNo} pageSize={pageSize} pageSizes={pageSizes} noun="Members" loading={loading} />
     </div>
   );
 }
