@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { caseDetailSchema, caseStateSchema, prioritySchema } from './case';
-import { changedValueSchema } from './report-document';
+import { changedValueSchema, reportRunSchema } from './report-document';
 import { plainText, specimenTypeSchema } from './common';
 
 /*
@@ -50,6 +50,8 @@ export const reportDetailSchema = reportListItemSchema.extend({
   supersededAt: z.string().nullable(),
   /** For a corrected version: every printed value that differs from the version it supersedes (else empty). */
   changedValues: z.array(changedValueSchema),
+  /** The analytical runs the results came from and their quality control, as printed (empty when none). */
+  runs: z.array(reportRunSchema),
   pdfSha256: z.string(),
   pdfSizeBytes: z.number().int(),
   documentSha256: z.string(),
@@ -194,13 +196,13 @@ export const correctFormSchema = z.object({
 });
 export type CorrectFormValues = z.infer<typeof correctFormSchema>;
 
-/** PUT /api/review/:id/draft: the director's working text, with the draft version they started from. */
+/**
+ * PUT /api/review/:id/draft: the director's working text, with the draft version they started from. The same
+ * rules as signing (at least 10 characters), so a draft that saves is never one that cannot be signed.
+ */
 export const saveDraftInputSchema = z
   .object({
-    interpretation: z
-      .string()
-      .max(INTERPRETATION_MAX, `Use at most ${INTERPRETATION_MAX} characters`)
-      .superRefine(plainText('Interpretation', true)),
+    interpretation,
     version: z.number().int().min(0).nullable(),
   })
   .strict();

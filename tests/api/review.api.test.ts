@@ -129,7 +129,7 @@ describe('the working draft', () => {
   });
 
   it('when the case is no longer awaiting review, then the draft cannot be saved (409)', async () => {
-    const res = await director.put(`/api/review/${c.id}/draft`).send({ interpretation: 'Too late.', version: 1 });
+    const res = await director.put(`/api/review/${c.id}/draft`).send({ interpretation: 'Too late to be saved.', version: 1 });
     expect(res.status).toBe(409);
     expect(res.body.error.code).toBe('INVALID_STATE');
   });

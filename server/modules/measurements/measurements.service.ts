@@ -87,10 +87,22 @@ export async function previewMeasurement(caseId: number, input: CreateMeasuremen
   return { result, definitionId: current.id, definitionVersion: current.definition.version, proteinMgPerMl: s.proteinMgPerMl };
 }
 
-/** 409 naming the replicate that clashes with a saved one. */
-export function alreadySaved(label: string, assay: string, replicate: number, field = 'replicate'): AppError {
-  const message = `Replicate ${replicate} of ${assay} is already saved for specimen ${label}; change that one or use another replicate number`;
+/**
+ * 409 naming the replicate that clashes with a saved one, and what to do instead: the next free replicate number
+ * when it is known, or leaving the saved one out with a reason (a saved measurement is never silently replaced).
+ */
+export function alreadySaved(label: string, assay: string, replicate: number, field = 'replicate', nextFree?: number): AppError {
+  const instead = nextFree ? `save this one as replicate ${nextFree}, the next free number` : 'use a replicate number not yet saved';
+  const message = `Replicate ${replicate} of ${assay} is already saved for specimen ${label}: ${instead}, or, if the saved one is wrong, exclude it with a reason under Saved measurements`;
   return new AppError('CONFLICT', message, { fields: { [field]: message } });
+}
+
+/** The lowest replicate number of this assay not yet saved on the specimen. */
+async function nextFreeReplicate(specimenId: number, assay: string, t: Transaction): Promise<number> {
+  const keys = await repo.savedKeys([specimenId], t);
+  let n = 1;
+  while (keys.has(`${specimenId}|${assay}|${n}`)) n += 1;
+  return n;
 }
 
 export async function createMeasurement(
@@ -103,7 +115,9 @@ export async function createMeasurement(
   return writeTransaction(sequelize, async (t) => {
     await loadEditableCase(caseId, t);
     const s = await measurableSpecimen(caseId, input.specimenId, 'specimenId', t);
-    if (await repo.findMeasurementByKey(s.id, input.assay, input.replicate, t)) throw alreadySaved(s.label, input.assay, input.replicate);
+    if (await repo.findMeasurementByKey(s.id, input.assay, input.replicate, t)) {
+      throw alreadySaved(s.label, input.assay, input.replicate, 'replicate', await nextFreeReplicate(s.id, input.assay, t));
+    }
     const inputs = storedInputsOf(input, s.proteinMgPerMl);
     const result = computeFromInputs(inputs, current.definition);
     const m = await repo.insertMeasurement(
@@ -156,7 +170,7 @@ export async function updateMeasurement(
     }
     const replicate = input.replicate ?? before.replicate;
     if (replicate !== before.replicate && (await repo.findMeasurementByKey(before.specimenId, before.assay, replicate, t))) {
-      throw alreadySaved(s.label, before.assay, replicate);
+      throw alreadySaved(s.label, before.assay, replicate, 'replicate', await nextFreeReplicate(before.specimenId, before.assay, t));
     }
     const current = await getCurrentDefinition(before.assay);
     const result = computeFromInputs(inputs, current.definition);

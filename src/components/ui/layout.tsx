@@ -1,4 +1,4 @@
-import type { ReactNode } from 'react';
+import { useEffect, useRef, type ReactNode } from 'react';
 import { usePageTitle } from '@/hooks/use-page-title';
 
 /** The page's heading; it also names the browser tab ("<docTitle or title> · Cristae"). */
@@ -29,14 +29,28 @@ export function Card({ title, children, className = '', actions }: { title?: str
   );
 }
 
-export function Notice({ tone = 'info', children }: { tone?: 'info' | 'error' | 'success'; children: ReactNode }) {
+/**
+ * A message in a box. `focus`: the message takes keyboard focus when it appears or changes (after a save or an
+ * error), so a keyboard or screen-reader user lands on what happened instead of staying on the button.
+ */
+export function Notice({ tone = 'info', children, focus = false }: { tone?: 'info' | 'error' | 'success'; children: ReactNode; focus?: boolean }) {
   const tones = {
     info: 'border-matrix-200 bg-matrix-50 text-matrix-900',
     error: 'border-below/40 bg-below-bg text-below',
     success: 'border-within/40 bg-within-bg text-within',
   };
+  const box = useRef<HTMLDivElement>(null);
+  const text = typeof children === 'string' ? children : null;
+  useEffect(() => {
+    if (focus) box.current?.focus();
+  }, [focus, text]);
   return (
-    <div role={tone === 'error' ? 'alert' : 'status'} className={`rounded-md border px-3 py-2 text-sm ${tones[tone]}`}>
+    <div
+      ref={box}
+      tabIndex={focus ? -1 : undefined}
+      role={tone === 'error' ? 'alert' : 'status'}
+      className={`rounded-md border px-3 py-2 text-sm ${tones[tone]}`}
+    >
       {children}
     </div>
   );

@@ -99,7 +99,7 @@ export default function CaseAssaysPage() {
                   </p>
                 </div>
               ) : (
-                <ManualEntry key={tab} caseId={caseId} specimens={workup.specimens} mode={tab} />
+                <ManualEntry key={tab} caseId={caseId} specimens={workup.specimens} mode={tab} saved={workup.measurements} />
               )}
             </div>
           </Card>

@@ -27,7 +27,22 @@ function AccountActions({ account, onMessage }: { account: UserAccount; onMessag
   const [resetting, setResetting] = useState(false);
   const [password, setPassword] = useState('');
   const [resetError, setResetError] = useState<string | null>(null);
+  // A role change or a deactivation waits for a second, deliberate click: both take effect at once for that person.
+  const [pending, setPending] = useState<{ kind: 'role'; role: Role } | { kind: 'deactivate' } | null>(null);
   const fail = (err: unknown) => onMessage('error', err instanceof ApiError ? err.message : 'The change was not saved');
+  const confirm = () => {
+    if (!pending) return;
+    const input = pending.kind === 'role' ? { role: pending.role, version: account.version } : { active: false, version: account.version };
+    update.mutate(
+      { id: account.id, input },
+      {
+        onSuccess: (a) =>
+          onMessage('success', pending.kind === 'role' ? `${a.name} is now ${roleLabels[a.role].toLowerCase()}.` : `${a.name} can no longer sign in.`),
+        onError: fail,
+        onSettled: () => setPending(null),
+      },
+    );
+  };
 
   return (
     <div className="flex flex-wrap items-center gap-2">
@@ -37,13 +52,11 @@ function AccountActions({ account, onMessage }: { account: UserAccount; onMessag
       <select
         id={`role-${account.id}`}
         className="rounded border border-paper-line bg-paper-raised px-1.5 py-1 text-sm"
-        value={account.role}
-        onChange={(e) =>
-          update.mutate(
-            { id: account.id, input: { role: e.target.value as Role, version: account.version } },
-            { onSuccess: (a) => onMessage('success', `${a.name} is now ${roleLabels[a.role].toLowerCase()}.`), onError: fail },
-          )
-        }
+        value={pending?.kind === 'role' ? pending.role : account.role}
+        onChange={(e) => {
+          const role = e.target.value as Role;
+          setPending(role === account.role ? null : { kind: 'role', role });
+        }}
       >
         {roles.map((r) => (
           <option key={r} value={r}>
@@ -54,14 +67,31 @@ function AccountActions({ account, onMessage }: { account: UserAccount; onMessag
       <Button
         variant="secondary"
         onClick={() =>
-          update.mutate(
-            { id: account.id, input: { active: !account.active, version: account.version } },
-            { onSuccess: (a) => onMessage('success', `${a.name} ${a.active ? 'can sign in again' : 'can no longer sign in'}.`), onError: fail },
-          )
+          account.active
+            ? setPending({ kind: 'deactivate' })
+            : update.mutate(
+                { id: account.id, input: { active: true, version: account.version } },
+                { onSuccess: (a) => onMessage('success', `${a.name} can sign in again.`), onError: fail },
+              )
         }
       >
-        {account.active ? 'Deactivate' : 'Reactivate'}
+        {account.active ? 'Deactivate…' : 'Reactivate'}
       </Button>
+      {pending ? (
+        <div role="group" aria-label={`Confirm the change for ${account.name}`} className="flex basis-full flex-wrap items-center gap-2 rounded-md border border-caution-line bg-caution-bg px-2 py-1.5 text-sm text-caution">
+          <span>
+            {pending.kind === 'role'
+              ? `Make ${account.name} ${roleLabels[pending.role].toLowerCase()}? What they can open and do changes with it.`
+              : `Deactivate ${account.name}? They can no longer sign in until an administrator reactivates the account.`}
+          </span>
+          <Button variant={pending.kind === 'role' ? 'primary' : 'danger'} disabled={update.isPending} onClick={confirm}>
+            {pending.kind === 'role' ? 'Change the role' : 'Deactivate'}
+          </Button>
+          <Button variant="quiet" onClick={() => setPending(null)}>
+            Keep as it is
+          </Button>
+        </div>
+      ) : null}
       {resetting ? (
         <form
           className="flex items-center gap-1"

@@ -1,4 +1,4 @@
-import { useState } from 'react';
+import { useEffect, useRef, useState } from 'react';
 import { TraceChart } from '@/components/charts/trace-chart';
 import { Button } from '@/components/ui/button';
 import { SelectField, TextArea, TextField } from '@/components/ui/field';
@@ -7,29 +7,53 @@ import { ApiError } from '@/lib/api-client';
 import { assayCodes, type AssayCode } from '@/schemas/common';
 import { createMeasurementInputSchema, parsePastedReadings, type CreateMeasurementInput, type WorkupSpecimen } from '@/schemas/measurement';
 import { useCreateMeasurement, usePreviewMeasurement, type MeasurementPreview } from '../api/save-measurement';
+import { readEntryDraft, writeEntryDraft } from '../utils/entry-draft';
 import { fmt } from '../utils/format';
+import { nextFreeReplicate } from '../utils/next-replicate';
 import { ConditionFields, RateFields, WindowFields } from './entry-fields';
 import { ResultLine } from '@/components/plate/result-line';
 
 type Mode = 'rates' | 'traces';
 const numberOrNaN = (s: string) => (s.trim() === '' ? Number.NaN : Number(s));
 
+type SavedKey = { specimenId: number; assay: string; replicate: number };
+
 /**
  * Typing the rates read off the instrument, or pasting the readings themselves, for one replicate of one assay.
- * "Check" computes on the server without saving; "Save" stores the measurement.
+ * "Check" computes on the server without saving; "Save" stores the measurement. The replicate number follows
+ * the specimen and assay chosen (the next one not yet saved); pasted text survives a reload until it is saved.
  */
-export function ManualEntry({ caseId, specimens, mode }: { caseId: number; specimens: WorkupSpecimen[]; mode: Mode }) {
+export function ManualEntry({ caseId, specimens, mode, saved: savedKeys = [] }: { caseId: number; specimens: WorkupSpecimen[]; mode: Mode; saved?: SavedKey[] }) {
   const ready = specimens.filter((s) => s.accepted && s.proteinMgPerMl !== null);
-  const [specimenId, setSpecimenId] = useState(ready[0]?.id ?? 0);
-  const [assay, setAssay] = useState<AssayCode>('CS');
-  const [replicate, setReplicate] = useState('1');
+  const [draft] = useState(() => readEntryDraft(caseId, mode));
+  const [specimenId, setSpecimenId] = useState(draft?.specimenId ?? ready[0]?.id ?? 0);
+  const [assay, setAssay] = useState<AssayCode>((draft?.assay as AssayCode | undefined) ?? 'CS');
+  const [replicate, setReplicate] = useState(draft?.replicate ?? String(nextFreeReplicate(savedKeys, ready[0]?.id ?? 0, 'CS')));
   const [pathlength, setPathlength] = useState('1');
   const [reaction, setReaction] = useState('1000');
   const [sample, setSample] = useState('20');
-  const [total, setTotal] = useState('');
-  const [background, setBackground] = useState('');
-  const [fromS, setFromS] = useState('');
-  const [toS, setToS] = useState('');
+  const [total, setTotal] = useState(draft?.total ?? '');
+  const [background, setBackground] = useState(draft?.background ?? '');
+  const [fromS, setFromS] = useState(draft?.fromS ?? '');
+  const [toS, setToS] = useState(draft?.toS ?? '');
+  const saving = useRef(false);
+  const unsaved = mode === 'traces' && (total.trim() !== '' || background.trim() !== '');
+  // Keep the pasted text for a reload, and ask before the tab is closed or left with it unsaved.
+  useEffect(() => {
+    if (mode !== 'traces') return;
+    writeEntryDraft(caseId, mode, { specimenId, assay, replicate, total, background, fromS, toS });
+  }, [caseId, mode, specimenId, assay, replicate, total, background, fromS, toS]);
+  useEffect(() => {
+    if (!unsaved) return;
+    const warn = (e: BeforeUnloadEvent) => e.preventDefault();
+    window.addEventListener('beforeunload', warn);
+    return () => window.removeEventListener('beforeunload', warn);
+  }, [unsaved]);
+  const choose = (nextSpecimen: number, nextAssay: AssayCode) => {
+    setSpecimenId(nextSpecimen);
+    setAssay(nextAssay);
+    setReplicate(String(nextFreeReplicate(savedKeys, nextSpecimen, nextAssay)));
+  };
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [formError, setFormError] = useState<string | null>(null);
   const [checked, setChecked] = useState<{ input: CreateMeasurementInput; preview: MeasurementPreview } | null>(null);
@@ -70,6 +94,7 @@ export function ManualEntry({ caseId, specimens, mode }: { caseId: number; speci
   }
 
   const onServerError = (err: unknown) => {
+    setSaved(null);
     if (err instanceof ApiError) {
       setErrors(err.fields);
       setFormError(err.message);
@@ -84,12 +109,19 @@ export function ManualEntry({ caseId, specimens, mode }: { caseId: number; speci
         <SelectField
           label="Specimen"
           value={String(specimenId)}
-          onChange={(e) => setSpecimenId(Number(e.target.value))}
+          onChange={(e) => choose(Number(e.target.value), assay)}
           options={ready.map((s) => ({ value: String(s.id), label: `${s.label} (${fmt(s.proteinMgPerMl)} mg/mL)` }))}
           error={errors.specimenId}
         />
-        <SelectField label="Assay" value={assay} onChange={(e) => setAssay(e.target.value as AssayCode)} options={assayCodes.map((a) => ({ value: a, label: a }))} />
-        <TextField label="Replicate" inputMode="numeric" value={replicate} onChange={(e) => setReplicate(e.target.value)} error={errors.replicate} />
+        <SelectField label="Assay" value={assay} onChange={(e) => choose(specimenId, e.target.value as AssayCode)} options={assayCodes.map((a) => ({ value: a, label: a }))} />
+        <TextField
+          label="Replicate"
+          inputMode="numeric"
+          value={replicate}
+          onChange={(e) => setReplicate(e.target.value)}
+          error={errors.replicate}
+          hint={errors.replicate ? undefined : `Next free: ${nextFreeReplicate(savedKeys, specimenId, assay)}`}
+        />
         <ConditionFields pathlength={[pathlength, setPathlength]} reaction={[reaction, setReaction]} sample={[sample, setSample]} errors={errors} />
       </div>
       {mode === 'rates' ? (
@@ -108,14 +140,27 @@ export function ManualEntry({ caseId, specimens, mode }: { caseId: number; speci
           />
         </>
       )}
-      {formError ? <Notice tone="error">{formError}</Notice> : null}
-      {saved ? <Notice tone="success">{saved}</Notice> : null}
+      {draft && unsaved && !saved ? (
+        <Notice>Readings pasted before the page was reloaded are back below; they are not saved yet.</Notice>
+      ) : null}
+      {formError ? (
+        <Notice tone="error" focus>
+          {formError}
+        </Notice>
+      ) : null}
+      {saved ? (
+        <Notice tone="success" focus>
+          {saved}
+        </Notice>
+      ) : null}
       <div className="flex gap-2">
         <Button
           variant="secondary"
           disabled={preview.isPending}
           onClick={() => {
             setSaved(null);
+            // The last result goes as soon as the inputs change to ones that fail, so no stale number stays beside an error.
+            setChecked(null);
             const input = build();
             if (input) preview.mutate(input, { onSuccess: (p) => setChecked({ input, preview: p }), onError: onServerError });
           }}
@@ -125,21 +170,31 @@ export function ManualEntry({ caseId, specimens, mode }: { caseId: number; speci
         <Button
           disabled={create.isPending}
           onClick={() => {
+            // A second click before the first answer saves nothing twice (the button's disabled state lags a tick).
+            if (saving.current) return;
+            setSaved(null);
+            setChecked(null);
             const input = build();
             if (!input) return;
+            saving.current = true;
             create.mutate(input, {
+              onSettled: () => {
+                saving.current = false;
+              },
               onSuccess: (m) => {
                 setSaved(`Saved ${m.assay} replicate ${m.replicate} of specimen ${label(m.specimenId)}: ${m.activity === null ? 'no activity (see flags)' : `${fmt(m.activity)} ${m.result.unit}`}.`);
                 setChecked(null);
                 setTotal('');
                 setBackground('');
-                setReplicate(String(m.replicate + 1));
+                setReplicate(String(nextFreeReplicate([...savedKeys, m], m.specimenId, m.assay)));
+                setFromS('');
+                setToS('');
               },
               onError: onServerError,
             });
           }}
         >
-          Save measurement
+          {create.isPending ? 'Saving…' : 'Save measurement'}
         </Button>
       </div>
       {checked ? (

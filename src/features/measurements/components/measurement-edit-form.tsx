@@ -1,4 +1,5 @@
 import { useState } from 'react';
+import { TraceChart } from '@/components/charts/trace-chart';
 import { Button } from '@/components/ui/button';
 import { TextField } from '@/components/ui/field';
 import { Notice } from '@/components/ui/layout';
@@ -94,14 +95,30 @@ export function MeasurementEditForm({ caseId, m, onDone, onCancel }: RowFormProp
       {inputs.mode === 'rates' ? (
         <RateFields total={[total, setTotal]} background={[background, setBackground]} errors={errors} />
       ) : (
-        <WindowFields
-          fromS={[fromS, setFromS]}
-          toS={[toS, setToS]}
-          errors={errors}
-          note="Leave both empty for the automatic window. The readings stay as saved."
-        />
+        <>
+          {/* The saved readings, so the window is chosen by eye: shaded is the window the saved result used. */}
+          <TraceChart
+            label={`${m.assay} replicate ${m.replicate}: saved readings`}
+            height={200}
+            window={m.result.window}
+            series={[
+              { name: 'total', points: inputs.total, fit: m.result.fitTotal, color: '#184a42' },
+              ...(inputs.background ? [{ name: 'background', points: inputs.background, fit: m.result.fitBackground, color: '#b8682f' }] : []),
+            ]}
+          />
+          <WindowFields
+            fromS={[fromS, setFromS]}
+            toS={[toS, setToS]}
+            errors={errors}
+            note={`Shaded: the window of the saved result${m.result.window ? ` (${fmt(m.result.window.fromS)}–${fmt(m.result.window.toS)} s)` : ''}. Leave both empty for the automatic window. The readings stay as saved.`}
+          />
+        </>
       )}
-      {formError ? <Notice tone="error">{formError}</Notice> : null}
+      {formError ? (
+        <Notice tone="error" focus>
+          {formError}
+        </Notice>
+      ) : null}
       <div className="flex gap-2">
         <Button type="submit" disabled={update.isPending}>
           Save changes

@@ -1,5 +1,5 @@
 import { useQuery } from '@tanstack/react-query';
-import { useMemo, useState } from 'react';
+import { useMemo, useRef, useState } from 'react';
 import { PlateFileField } from '@/components/plate/plate-file-field';
 import { conditionsPlan, defaultReadingConditions, ReadingConditionsFields, type ReadingConditions } from '@/components/plate/reading-conditions';
 import { ReplicateSummaries } from '@/components/plate/replicate-summaries';
@@ -11,6 +11,7 @@ import { ApiError } from '@/lib/api-client';
 import type { RateWindow } from '@/schemas/assay';
 import type { PlateImportPlan, PlatePreview, WorkupSpecimen } from '@/schemas/measurement';
 import { useImportPlate, usePreviewPlate } from '../api/plate-import';
+import { useRefreshWorkup } from '../api/save-measurement';
 import { workupQueries } from '../api/workup-queries';
 import { fmt, located } from '../utils/format';
 
@@ -58,12 +59,22 @@ export function PlateImport({ caseId, specimens }: { caseId: number; specimens: 
     };
   }
 
+  // A field named after a well group ("groups.<id>") reads as the group's own title, never the raw key.
+  const fieldName = (key: string) => {
+    const group = preview?.groups.find((g) => `groups.${g.id}` === key);
+    return group ? `Specimen ${group.specimenLabel} · ${group.assay} · replicate ${group.replicate}` : key.replace(/^groups\./, '').replace(/\|/g, ' · ');
+  };
   const fail = (err: unknown) => {
     if (err instanceof ApiError) {
-      setProblems(err.issues.length ? err.issues : Object.entries(err.fields).map(([k, v]) => ({ row: null, column: null, message: `${k}: ${v}` })));
+      const fields = Object.entries(err.fields);
+      // One clash is said once: the message already names it.
+      const extra = fields.length === 1 && fields[0]![1] === err.message ? [] : fields.map(([k, v]) => ({ row: null, column: null, message: `${fieldName(k)}: ${v}` }));
+      setProblems(err.issues.length ? err.issues : extra);
       setMessage({ tone: 'error', text: err.message });
     } else setMessage({ tone: 'error', text: 'The file could not be read' });
   };
+  const saving = useRef(false);
+  const refresh = useRefreshWorkup(caseId);
 
   function readFile(w: Record<string, RateWindow> = windows) {
     if (!file || layoutId === null) {
@@ -138,26 +149,43 @@ export function PlateImport({ caseId, specimens }: { caseId: number; specimens: 
         {preview ? (
           <Button
             disabled={save.isPending || preview.groups.some((g) => g.alreadySaved)}
-            onClick={() =>
-              file &&
+            onClick={() => {
+              // A double click sends one save: the button's disabled state comes a tick after the first click.
+              if (!file || saving.current) return;
+              saving.current = true;
+              setMessage(null);
               save.mutate(
                 { file, plan: plan() },
                 {
+                  onSettled: () => {
+                    saving.current = false;
+                  },
                   onSuccess: (r) => {
                     setMessage({ tone: 'success', text: `Saved ${r.measurementIds.length} measurements from ${r.upload.filename}; the file is kept with the case.` });
                     setPreview(null);
                     setWindows({});
                   },
-                  onError: fail,
+                  onError: (err) => {
+                    fail(err);
+                    // A clash may mean this plate was saved a moment ago: show what is stored now.
+                    if (err instanceof ApiError && err.code === 'CONFLICT') {
+                      setMessage({ tone: 'error', text: `${err.message}. Nothing from this file was saved twice; Saved measurements below shows what is stored.` });
+                      void refresh();
+                    }
+                  },
                 },
-              )
-            }
+              );
+            }}
           >
             {save.isPending ? 'Saving…' : `Save ${preview.groups.length} measurements`}
           </Button>
         ) : null}
       </div>
-      {message ? <Notice tone={message.tone}>{message.text}</Notice> : null}
+      {message ? (
+        <Notice tone={message.tone} focus>
+          {message.text}
+        </Notice>
+      ) : null}
       {problems.length > 0 ? (
         <ul aria-label="Problems in the file" className="flex flex-col gap-1 text-sm text-below">
           {problems.map((p, i) => (
