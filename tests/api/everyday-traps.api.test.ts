@@ -58,3 +58,19 @@ describe('the small traps of a tired day', () => {
     expect(enough.status).toBe(200);
   });
 });
+
+describe('the age-partition table explains its counts', () => {
+  it('when a band is previewed, then the note gives each group’s count before and after its own outlier screen and says why they need not add up', async () => {
+    const list = (await director.get('/api/reference-intervals/controls')).body as { items: { id: number; filename: string }[] };
+    const demo = list.items.find((u) => u.filename.includes('DEMO'))!;
+    const selection = { specimenType: 'skeletal_muscle', assay: 'CI', measure: 'activity', ageBand: { label: 'Children', minYears: 0, maxYears: 16 }, outliers: 'tukey', method: 'mean2sd' };
+    const res = await director.post(`/api/reference-intervals/controls/${demo.id}/preview`).send(selection);
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    const { partition, partitionNote, values } = res.body as { partition: { groups: { label: string; n: number }[] }; partitionNote: string; values: number[] };
+    const [band, rest] = partition.groups;
+    // The band's group before its screen holds exactly the values of the band (the preview's own list of them).
+    expect(partitionNote).toContain(`${band!.label}: ${band!.n} of ${values.length}`);
+    expect(partitionNote).toContain(`${rest!.label}: ${rest!.n} of `);
+    expect(partitionNote).toMatch(/need not match the values the interval itself uses/);
+  });
+});

@@ -234,7 +234,16 @@ function partitionFor(s: ControlSelection, sel: Selected, all: { age: number; va
       summarizeGroup(screened[0]!.label, screened[0]!.values),
       summarizeGroup(screened[1]!.label, screened[1]!.values),
     );
-    return { partition: result, partitionNote: note };
+    // Why the group counts need not add up to the values the interval uses: each group is screened on its own,
+    // and the second group lies outside the chosen band.
+    const counted = groups
+      .map((g, i) => {
+        const dropped = g.values.length - screened[i]!.values.length;
+        return `${g.label}: ${screened[i]!.values.length} of ${g.values.length}${dropped ? ` (${dropped} set aside as outliers within the group)` : ''}`;
+      })
+      .join('; ');
+    const why = `Each group is screened for outliers on its own before the comparison, so the counts (${counted}) need not match the values the interval itself uses, which are screened once, within the chosen band.`;
+    return { partition: result, partitionNote: note ? `${note} ${why}` : why };
   } catch (err) {
     if (err instanceof ReferenceStatsInputError) {
       return { partition: null, partitionNote: `No partition check: ${err.message}.` };
