@@ -139,6 +139,20 @@ export const reportExcludedReplicateSchema = z.object({
 });
 export type ReportExcludedReplicate = z.infer<typeof reportExcludedReplicateSchema>;
 
+/** An analytical run the reported results came from, with the release of its quality control. */
+export const reportRunSchema = z.object({
+  runNumber: text,
+  /** 'accept' | 'warn' | 'reject' | 'none' as the run was judged. */
+  qcStatus: z.enum(['accept', 'warn', 'reject', 'none']),
+  /** The director's reason when the run was released despite its controls; null otherwise. */
+  overrideReason: z.string().nullable(),
+  /** What came from the run, e.g. "specimen A: CI, CS". */
+  results: text,
+  /** The sentence printed, e.g. "quality control accepted". */
+  statement: text,
+});
+export type ReportRun = z.infer<typeof reportRunSchema>;
+
 export const reportMethodsSchema = z.object({
   /** Brief method and constant sources, e.g. 'Beer–Lambert, ε NADH 6.2 mM⁻¹cm⁻¹ at 340 nm'. */
   summary: text,
@@ -153,6 +167,8 @@ export const reportMethodsSchema = z.object({
   selfApproval: text.optional(),
   /** Replicates excluded from the calculations, with reason and by whom (absent in reports signed before). */
   excludedReplicates: z.array(reportExcludedReplicateSchema).max(200).optional(),
+  /** The analytical runs the results came from and their quality control (absent when none came from a run). */
+  runs: z.array(reportRunSchema).max(200).optional(),
 });
 
 export const reportSignatureSchema = z.object({

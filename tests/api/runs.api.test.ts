@@ -1,3 +1,4 @@
+import { mkdirSync, writeFileSync } from 'node:fs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mean as ssMean } from 'simple-statistics';
 import type { AssayCode } from '@/schemas/common';
@@ -11,6 +12,7 @@ import {
   type RunWell,
 } from '@/schemas/run';
 import { createCase } from '../factories/cases';
+import { readPdf } from '../factories/pdf-text';
 import { makePlateFile } from '../factories/plate-file';
 import { countRows, DEMO_PASSWORD, makeTestApp, type TestApp } from '../setup/test-app';
 
@@ -111,7 +113,8 @@ function send(agent: Agent, url: string, file: Buffer, p: RunPlan, filename = 'r
 }
 
 const tables = ['analytical_runs', 'uploads', 'measurements', 'control_results', 'audit_events'] as const;
-const counts = async () => Object.fromEntries(await Promise.all(tables.map(async (x) => [x, await countRows(t.sequelize, x)] as const)));
+const counts = async (): Promise<Record<(typeof tables)[number], number>> =>
+  Object.fromEntries(await Promise.all(tables.map(async (x) => [x, await countRows(t.sequelize, x)] as const))) as Record<(typeof tables)[number], number>;
 
 async function caseVersion(caseId: number): Promise<{ state: string; version: number }> {
   const res = await tech.get(`/api/cases/${caseId}`);
@@ -341,8 +344,35 @@ describe('the release gate and the override', () => {
     const results = await tech.get(`/api/cases/${c.caseId}/results`);
     expect(results.body.specimens[0].assays[0].replicates[0].run).toMatchObject({ runNumber: run.runNumber, qcStatus: 'reject', overrideReason: reason });
     expect((await submit(c.caseId)).status).toBe(200);
+
+    // The signed report names the run and the override with its reason: in the JSON and in the PDF's methods section.
+    const signed = await director.post(`/api/cases/${c.caseId}/sign`).send({ password: DEMO_PASSWORD });
+    expect(signed.status, JSON.stringify(signed.body)).toBe(201);
+    const report = await tech.get(`/api/reports/${signed.body.report.id}`);
+    expect(report.body.runs).toEqual([
+      expect.objectContaining({ runNumber: run.runNumber, qcStatus: 'reject', overrideReason: reason, results: expect.stringContaining('CI') }),
+    ]);
+    const file = await binary(tech.get(`/api/reports/${signed.body.report.id}/pdf`));
+    expect(file.status).toBe(200);
+    mkdirSync('test-artifacts', { recursive: true });
+    writeFileSync('test-artifacts/run-override-report.pdf', file.body as Buffer);
+    // Read back with pdfjs-dist, an independent PDF reader.
+    const methods = (await readPdf(file.body as Buffer)).flat.split('Methods and traceability')[1] ?? '';
+    expect(methods).toContain('Analytical runs and quality control');
+    expect(methods).toContain(`Run ${run.runNumber}`);
+    expect(methods).toContain('released by a director');
+    expect(methods).toContain('Control vial thawed twice');
   });
 });
+
+/** A supertest response body as a Buffer (PDFs come back binary). */
+function binary(req: ReturnType<Agent['get']>) {
+  return req.buffer(true).parse((res, cb) => {
+    const chunks: Buffer[] = [];
+    res.on('data', (chunk: Buffer) => chunks.push(chunk));
+    res.on('end', () => cb(null, Buffer.concat(chunks)));
+  });
+}
 
 describe('the same import sent twice at once', () => {
   it('saves one run; the other answer is a 409 and nothing is doubled', async () => {

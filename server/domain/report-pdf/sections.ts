@@ -554,6 +554,21 @@ function drawExcludedReplicates(c: Composer, doc: ReportDocument): void {
   }
 }
 
+/** The analytical runs the results came from, each with the release of its quality control. */
+function drawRuns(c: Composer, doc: ReportDocument): void {
+  const runs = doc.methods.runs ?? [];
+  if (runs.length === 0) return;
+  c.space(4);
+  c.paragraph('Analytical runs and quality control', STYLES.smallStrong);
+  for (const r of runs) {
+    c.paragraph(
+      [seg(`Run ${r.runNumber} (${r.results}): `, STYLES.smallStrong), seg(`${r.statement.replace(/\.$/, '')}.`, STYLES.small)],
+      STYLES.small,
+      { x: c.left + 8, width: c.width - 8 },
+    );
+  }
+}
+
 export function drawMethods(c: Composer, doc: ReportDocument): void {
   c.heading('Methods and traceability', 30);
   c.paragraph(doc.methods.summary, STYLES.body);
@@ -569,6 +584,7 @@ export function drawMethods(c: Composer, doc: ReportDocument): void {
     }
   }
   drawExcludedReplicates(c, doc);
+  drawRuns(c, doc);
   const intervals = new Map<string, { label: string; version: number; assays: string[] }>();
   for (const r of doc.specimens.flatMap((s) => s.results)) {
     if (r.intervalLabel === null || r.intervalVersion === null) continue;

@@ -2,7 +2,7 @@ import type { AssayDefinition } from '@/schemas/assay';
 import { transportConditionLabels, type CaseDetail, type Specimen } from '@/schemas/case';
 import { specimenTypeLabels, type AssayCode } from '@/schemas/common';
 import type { LabProfile } from '@/schemas/lab-profile';
-import type { ReportDocument, ReportExcludedReplicate, ReportGraphic, ReportResult, ReportSpecimenSection } from '@/schemas/report-document';
+import type { ReportDocument, ReportExcludedReplicate, ReportGraphic, ReportResult, ReportRun, ReportSpecimenSection } from '@/schemas/report-document';
 import { ageAtCollectionText } from '../../domain/report-pdf/age-at-collection';
 import { changedValuesBetween } from '../../domain/report-changes';
 import { wallClock } from '../cases/lab-time';
@@ -29,6 +29,8 @@ export type ReportableResults = {
   selfApproved?: string[];
   /** Replicates left out of the calculations, for the methods section (absent: none). */
   excludedReplicates?: ReportExcludedReplicate[];
+  /** The analytical runs the counted replicates came from, with their quality control (absent: none). */
+  runs?: ReportRun[];
 };
 
 export type SignatureInput = { signerName: string; signerTitle: string; signedAt: Date; meaning: string };
@@ -125,6 +127,12 @@ function methodsSummary(measured: Measured[], specimenCount: number): string {
 function excludedOf(measured: Measured[]): { excludedReplicates?: ReportExcludedReplicate[] } {
   const all = measured.flatMap((m) => m.results.excludedReplicates ?? []);
   return all.length > 0 ? { excludedReplicates: all } : {};
+}
+
+/** The runs of every measured specimen; nothing when no result came from a run (older documents stay alike). */
+function runsOf(measured: Measured[]): { runs?: ReportRun[] } {
+  const all = measured.flatMap((m) => m.results.runs ?? []);
+  return all.length > 0 ? { runs: all } : {};
 }
 
 /**
@@ -241,6 +249,7 @@ function assemble(inputs: ReportInputs): ReportDocument {
       definitions: [...definitions.values()],
       ...selfApprovalOf(measured),
       ...excludedOf(measured),
+      ...runsOf(measured),
     },
     signature: {
       signerName: signature.signerName,

@@ -227,6 +227,7 @@ export function toDetail(r: StoredReport, versions: Map<number, number>): Report
     supersededByVersion: r.supersededByReportId !== null ? (versions.get(r.supersededByReportId) ?? null) : null,
     supersededAt: r.supersededAt ? r.supersededAt.toISOString() : null,
     changedValues: r.document.report?.changedValues ?? [],
+    runs: r.document.methods?.runs ?? [],
     pdfSha256: r.pdfSha256,
     pdfSizeBytes: r.pdfSizeBytes,
     documentSha256: r.documentSha256,

@@ -2,10 +2,12 @@ import { criteriaRuleFor, defaultDiagnosticCriteria, type DiagnosticCriteria } f
 import { specimenClassOf, type Measure } from '@/schemas/common';
 import { bandThresholds } from '@/schemas/result-format';
 import type { StoredInterval } from '@/schemas/reference-interval-api';
-import type { ReportExcludedReplicate, ReportResult } from '@/schemas/report-document';
+import type { ReportExcludedReplicate, ReportResult, ReportRun } from '@/schemas/report-document';
+import type { RunQcStamp } from '@/schemas/run';
 import type { AssayResult, CaseResults, ResultComparison, SpecimenResult } from '@/schemas/results';
 import { findDefinitionById } from '../assay-definitions/assay-definitions.repository';
 import { findIntervalById } from '../reference-intervals/reference-intervals.repository';
+import { describeRunRelease } from '../runs/run-release';
 import { describeDefinition, type ReportableResults } from './build-report-document';
 
 /*
@@ -111,6 +113,27 @@ function specimenRows(s: SpecimenResult, notes: string[]): ReportResult[] {
   return rows;
 }
 
+/** The runs the specimen's counted replicates came from, with the release of each run's quality control. */
+function runsOf(s: SpecimenResult): ReportRun[] {
+  const byRun = new Map<number, { stamp: RunQcStamp; assays: Set<string> }>();
+  for (const a of s.assays) {
+    for (const r of a.replicates) {
+      if (r.excluded || !r.run) continue;
+      const entry = byRun.get(r.run.runId) ?? { stamp: r.run, assays: new Set<string>() };
+      entry.assays.add(a.assay);
+      byRun.set(r.run.runId, entry);
+    }
+  }
+  const label = s.label.trim() || String(s.specimenId);
+  return [...byRun.values()].map(({ stamp, assays }) => ({
+    runNumber: stamp.runNumber,
+    qcStatus: stamp.qcStatus,
+    overrideReason: stamp.overrideReason,
+    results: `specimen ${label}: ${[...assays].join(', ')}`,
+    statement: describeRunRelease(stamp),
+  }));
+}
+
 /** The replicates left out of the specimen's calculations, as the methods section lists them. */
 function excludedReplicatesOf(s: SpecimenResult): ReportExcludedReplicate[] {
   return s.assays.flatMap((a) =>
@@ -196,6 +219,7 @@ export async function toReportableResults(
         ...(s.accepted ? await selfApprovedIntervals(s, stored) : []),
       ],
       excludedReplicates: s.accepted ? excludedReplicatesOf(s) : [],
+      runs: s.accepted ? runsOf(s) : [],
     });
   }
   return out;
