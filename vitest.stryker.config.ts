@@ -1,0 +1,18 @@
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { defineConfig } from 'vitest/config';
+
+// The unit tests of the server alone, for mutation testing (`npm run mutation`, stryker.config.json): no browser,
+// no API or database tests, so each mutant costs a fraction of a second.
+const root = path.dirname(fileURLToPath(import.meta.url));
+
+export default defineConfig({
+  resolve: { alias: { '@': path.resolve(root, 'src') } },
+  test: {
+    name: 'mutation-unit',
+    environment: 'node',
+    include: ['tests/unit/server/**/*.test.ts', 'tests/unit/schemas/**/*.test.ts'],
+    setupFiles: ['tests/setup/node.ts'],
+    testTimeout: 20_000,
+  },
+});
