@@ -1,4 +1,4 @@
-import { load, ms, p50p95, percentile, type LoadResult } from './support/load';
+import { load, loadNote, ms, p50p95, percentile, type LoadResult } from './support/load';
 import { signIn, startBenchServer, startFloorServer } from './support/server';
 import type { BenchResult } from './types';
 
@@ -34,8 +34,10 @@ export default async function run(): Promise<BenchResult> {
   try {
     const cookie = await signIn(app.origin, 'technologist@demo.test');
     const json = { 'content-type': 'application/json' };
-    const measure = (origin: string, method: 'GET' | 'POST', path: string, withSession: boolean) =>
-      load({
+    const measure = async (target: { origin: string; cpuMs: () => number }, method: 'GET' | 'POST', path: string, withSession: boolean) => {
+      const origin = target.origin;
+      const cpuBefore = target.cpuMs();
+      const result = await load({
         url: `${origin}${path}`,
         method,
         connections: CONNECTIONS,
@@ -43,17 +45,20 @@ export default async function run(): Promise<BenchResult> {
         headers: { ...json, origin, ...(withSession ? { cookie } : {}) },
         body: method === 'POST' ? previewBody : undefined,
       });
+      return { ...result, cpuPerRequest: (target.cpuMs() - cpuBefore) / Math.max(1, result.latencies.length) };
+    };
     // Warm both processes so the first timed run does not pay for JIT compilation.
     await load({ url: `${app.origin}/api/cases`, connections: 4, durationS: 2, headers: { cookie } });
     await load({ url: `${floor.origin}/api/cases`, connections: 4, durationS: 1 });
 
-    const floorGet = await measure(floor.origin, 'GET', '/api/cases', false);
-    const list = await measure(app.origin, 'GET', '/api/cases', true);
-    const floorPost = await measure(floor.origin, 'POST', '/api/calculations/activity', false);
-    const preview = await measure(app.origin, 'POST', '/api/calculations/activity', true);
+    const floorGet = await measure(floor, 'GET', '/api/cases', false);
+    const list = await measure(app, 'GET', '/api/cases', true);
+    const floorPost = await measure(floor, 'POST', '/api/calculations/activity', false);
+    const preview = await measure(app, 'POST', '/api/calculations/activity', true);
 
     const rows: BenchResult['rows'] = [];
-    const pair = (label: string, r: LoadResult, f: LoadResult) => {
+    type Measured = LoadResult & { cpuPerRequest: number };
+    const pair = (label: string, r: Measured, f: Measured) => {
       const p95 = percentile(r.latencies, 95);
       const floorP95 = percentile(f.latencies, 95);
       const ratio = p95 / floorP95;
@@ -61,6 +66,12 @@ export default async function run(): Promise<BenchResult> {
         { metric: `floor for ${label} (bare Express)`, value: `${p50p95(f)}; ${f.perSecond} req/s`, goal: '—', met: f.errors === 0 },
         { metric: label, value: `${p50p95(r)}; ${r.perSecond} req/s; ${r.errors} errors`, goal: `p95 < ${GOAL_P95_MS} ms, no errors`, met: p95 < GOAL_P95_MS && r.errors === 0 },
         { metric: `${label}: p95 ÷ floor p95`, value: `${ratio.toFixed(2)}× (${ms(p95)} ÷ ${ms(floorP95)})`, goal: `≤ ${GOAL_RATIO}×`, met: ratio <= GOAL_RATIO },
+        {
+          metric: `${label}: server CPU per request (floor)`,
+          value: `${r.cpuPerRequest.toFixed(2)} ms (${f.cpuPerRequest.toFixed(2)} ms), ${(r.cpuPerRequest / f.cpuPerRequest).toFixed(1)}×`,
+          goal: '—',
+          met: true,
+        },
       );
     };
     pair('POST /api/calculations/activity (preview)', preview, floorPost);
@@ -72,7 +83,9 @@ export default async function run(): Promise<BenchResult> {
         `Server: ${app.kind === 'compiled' ? 'the compiled server (dist/server, as npm start runs it)' : 'TypeScript sources through tsx'}. ` +
         'Floor and application run in separate processes, measured one after the other in the same run, with the load generator in ' +
         'the benchmark process (on this 2-core machine it competes with the server for CPU, in both measurements alike). ' +
-        'The preview sends two 60-point traces (about 4 kB); the floor receives the same body and does not read it.',
+        'The preview sends two 60-point traces (about 4 kB); the floor receives the same body and does not read it. ' +
+        'CPU per request is the server process\'s user + system time over the run (/proc) divided by the answers: unlike latency, it hardly ' +
+        `depends on other load on the machine. ${loadNote()}`,
     };
   } finally {
     await app.stop();

@@ -2,7 +2,7 @@ import { execFileSync } from 'node:child_process';
 import fs from 'node:fs';
 import http from 'node:http';
 import path from 'node:path';
-import { ms } from './support/load';
+import { loadNote, ms } from './support/load';
 import { ROOT, startBenchServer } from './support/server';
 import type { BenchResult } from './types';
 
@@ -102,6 +102,6 @@ export default async function run(): Promise<BenchResult> {
       'Start-up is timed from spawning `node --require ./scripts/threadpool.cjs dist/server/index.js` (npm start after its build) to the first 200 from /api/health, ' +
       'polled every 10 ms, on a database the first start had migrated and seeded. Asset sizes are the bytes on the wire for the files index.html ' +
       'references, asked with no Accept-Encoding, with gzip, and with "br, gzip". The first report is a two-specimen report (invented test document), ' +
-      'rendered in a new process after its modules have loaded; the later ones are one-specimen reports in the same process.',
+      `rendered in a new process after its modules have loaded; the later ones are one-specimen reports in the same process. ${loadNote()}`,
   };
 }

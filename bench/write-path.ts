@@ -2,7 +2,7 @@ import path from 'node:path';
 import type autocannon from 'autocannon';
 import sqlite3 from 'sqlite3';
 import { buildPatientInput, buildRegisterCaseInput } from '../tests/factories/cases';
-import { load, p50p95, percentile, type LoadResult } from './support/load';
+import { load, loadNote, p50p95, percentile, type LoadResult } from './support/load';
 import { signIn, startBenchServer } from './support/server';
 import type { BenchResult } from './types';
 
@@ -202,6 +202,6 @@ export default async function run(): Promise<BenchResult> {
   return {
     title: `Write path: 20 writers + 20 readers for ${WRITE_S} s, then 50 mixed clients for ${MIXED_S} s (SQLite file, autocannon, loopback)`,
     rows,
-    notes: notes.join(' '),
+    notes: `${notes.join(' ')} ${loadNote()}`,
   };
 }

@@ -1,3 +1,4 @@
+import os from 'node:os';
 import autocannon from 'autocannon';
 
 export type LoadResult = {
@@ -65,4 +66,7 @@ export function percentile(sorted: number[], p: number): number {
 }
 
 export const ms = (v: number) => `${v.toFixed(1)} ms`;
+
+/** The machine's 1-minute load average, for the notes: on 2 cores, anything above 2 means other work shared the CPU. */
+export const loadNote = () => `1-minute load average when the run ended: ${os.loadavg()[0]!.toFixed(1)} on ${os.cpus().length} cores.`;
 export const p50p95 = (r: LoadResult) => `p50 ${ms(percentile(r.latencies, 50))}, p95 ${ms(percentile(r.latencies, 95))}`;
