@@ -5,8 +5,9 @@ import { fmt } from '@/utils/format';
 /** z with its sign, and in words how far from the target it lies. */
 function zText(z: number | null): string {
   if (z === null) return 'no approved target';
-  const sign = z > 0 ? '+' : z < 0 ? '−' : '';
-  return `${sign}${Math.abs(z).toFixed(2)}`;
+  const shown = Math.abs(z).toFixed(2);
+  const sign = shown === '0.00' ? '' : z > 0 ? '+' : '−';
+  return `${sign}${shown}`;
 }
 
 /** Each control material's value per assay, its target and z = (value − mean) / SD. */
