@@ -104,6 +104,11 @@ describe('R-4s: range across levels in one run exceeds 4 SD', () => {
     expect(fired([run(1, { low: 2.5, high: -2 })])).toEqual([['1-2s:low']]);
     expect(fired([run(1, { low: 2.5, high: 0 }), run(2, { low: 0, high: -2.5 })])).toEqual([['1-2s:low'], ['1-2s:high']]);
   });
+  it('lists the levels in the order they were given, whichever side each lies on', () => {
+    // [common practice] a stable order (the order of the request's levels) so that one answer compares with the next;
+    // here the level above +2 SD is the second one given.
+    expect(fired([run(1, { low: -2.5, high: 2.5 })])).toEqual([['1-2s:low,high', 'R-4s:low,high']]);
+  });
 });
 
 describe('4-1s: four consecutive results of one level beyond 1 SD on the same side', () => {
@@ -116,6 +121,10 @@ describe('4-1s: four consecutive results of one level beyond 1 SD on the same si
   it('is broken by a result at exactly 1 SD', () => {
     // [confirmed] contract: all z > 1.
     expect(fired([1.5, 1, 1.2, 1.3, 1.4].map((x, i) => run(i + 1, { low: x })))).toEqual([[], [], [], [], []]);
+  });
+  it('looks only at the last four: an earlier result within 1 SD does not stop a later streak of four', () => {
+    // [from memory] the paper: 4-1s, four consecutive observations; [confirmed] contract: "the last four results".
+    expect(fired([0.5, 1.5, 1.2, 1.1, 1.3].map((x, i) => run(i + 1, { low: x })))).toEqual([[], [], [], [], ['4-1s:low']]);
   });
   it('counts the results of the level only, skipping runs that lack it, and flags only runs that have it', () => {
     // [confirmed] contract: "one level's last four results (this one included)".
@@ -192,6 +201,36 @@ describe('input the evaluation refuses', () => {
     expect(failure(() => evaluateWestgard([{ id: 'a', mean: 1, sd: -1 }], [{ id: 1, results: {} }]))).toBe('levels.0.sd');
     expect(failure(() => evaluateWestgard([{ id: 'a', mean: 1, sd: 1 }], [{ id: 1, results: { b: 1 } }]))).toBe('runs.0.results.b');
     expect(failure(() => evaluateWestgard([{ id: 'a', mean: 1, sd: 1 }], []))).toBe('runs');
+  });
+
+  it('names the field for a mean or a result that is not a finite number and for a level listed twice', () => {
+    // [common practice] bad input gets an error that names the offending field (docs/testing.md); NaN and ±Infinity
+    // are not numbers a z-score can be computed from.
+    const refusal = (f: () => unknown) => {
+      try {
+        f();
+      } catch (e) {
+        return e instanceof WestgardInputError ? { field: e.field, name: e.name, said: e.message.length > 0 } : 'other';
+      }
+      return 'none';
+    };
+    const said = (field: string) => ({ field, name: 'WestgardInputError', said: true });
+    const one = [{ id: 1, results: { a: 1 } }];
+    expect(refusal(() => evaluateWestgard([{ id: 'a', mean: Number.NaN, sd: 1 }], one))).toEqual(said('levels.0.mean'));
+    expect(refusal(() => evaluateWestgard([{ id: 'a', mean: Infinity, sd: 1 }], one))).toEqual(said('levels.0.mean'));
+    expect(refusal(() => evaluateWestgard([{ id: 'a', mean: 1, sd: Infinity }], one))).toEqual(said('levels.0.sd'));
+    const twice = [
+      { id: 'a', mean: 1, sd: 1 },
+      { id: 'a', mean: 2, sd: 1 },
+    ];
+    expect(refusal(() => evaluateWestgard(twice, one))).toEqual(said('levels.1.id'));
+    const a = [{ id: 'a', mean: 1, sd: 1 }];
+    expect(refusal(() => evaluateWestgard(a, [{ id: 1, results: { a: Number.NaN } }]))).toEqual(said('runs.0.results.a'));
+    expect(refusal(() => evaluateWestgard(a, [{ id: 1, results: { a: 1 } }, { id: 2, results: { a: -Infinity } }]))).toEqual(
+      said('runs.1.results.a'),
+    );
+    expect(refusal(() => evaluateWestgard(a, [{ id: 1, results: { b: 1 } }]))).toEqual(said('runs.0.results.b'));
+    expect(refusal(() => evaluateWestgard(a, []))).toEqual(said('runs'));
   });
 });
 
