@@ -389,3 +389,26 @@ describe('the same import sent twice at once', () => {
     expect(after.measurements - before.measurements).toBe(2);
   });
 });
+
+describe('the demo history', () => {
+  it('has 22 runs: one 1-2s warning, one 1-3s rejection, one 2-2s rejection released by a director, the rest accepted', async () => {
+    const list = runListSchema.parse((await tech.get('/api/runs?q=demo&pageSize=200')).body);
+    const demo = list.items.filter((r) => r.instrument === 'Plate reader 2 (demo)').reverse();
+    expect(demo).toHaveLength(22);
+    const by = (n: number) => demo[n - 1]!;
+    // Seeded z-values (server/db/seed/demo-runs.ts) judged by the rule definitions of Westgard et al. 1981:
+    // 1-2s: one |z| > 2 → warning; 1-3s: one |z| > 3 → reject; 2-2s: two levels > +2 in the same run → reject.
+    expect(by(12)).toMatchObject({ qcStatus: 'warn', override: null });
+    expect(by(12).violations.map((v) => v.rule)).toEqual(['1-2s']);
+    expect(by(16)).toMatchObject({ qcStatus: 'reject', override: null });
+    expect(by(16).violations.map((v) => v.rule)).toContain('1-3s');
+    expect(by(19).qcStatus).toBe('reject');
+    expect(by(19).violations.map((v) => v.rule)).toContain('2-2s');
+    expect(by(19).override?.reason).toMatch(/new NADH lot/);
+    const others = demo.filter((_, i) => ![12, 16, 19].includes(i + 1));
+    expect(others.map((r) => r.qcStatus)).toEqual(others.map(() => 'accept'));
+    // The last two carry a demo case's specimen.
+    expect(by(21).caseCount).toBe(1);
+    expect(by(22).caseCount).toBe(1);
+  });
+});

@@ -89,7 +89,7 @@ const plans: Partial<Record<DemoCaseName, Plan>> = {
 /* ---------------------------------------------------------------- numbers */
 
 /** mulberry32: small, seeded, the same on every machine. */
-function seeded(seed: number): () => number {
+export function seeded(seed: number): () => number {
   let s = seed >>> 0;
   return () => {
     s = (s + 0x6d2b79f5) >>> 0;
@@ -103,24 +103,24 @@ function seeded(seed: number): () => number {
 const definitionOf = (a: AssayCode) => defaultAssayDefinitions.find((d) => d.code === a)!;
 
 /** Conditions of the demo readings: plate wells (200 µL in 0.32 cm² → 0.625 cm) or a 1 mL, 1 cm cuvette. */
-const PLATE = { pathlengthCm: 0.625, reactionVolumeUl: 200, sampleVolumeUl: 5 };
+export const PLATE = { pathlengthCm: 0.625, reactionVolumeUl: 200, sampleVolumeUl: 5 };
 const CUVETTE = { pathlengthCm: 1, reactionVolumeUl: 1000, sampleVolumeUl: 20 };
 
 /** The specific ΔA/min that gives `activity` (the activity formula of docs/domain.md §1, solved for the slope). */
-function specificSlope(assay: AssayCode, activity: number, c: typeof PLATE, proteinMgPerMl: number): number {
+export function specificSlope(assay: AssayCode, activity: number, c: typeof PLATE, proteinMgPerMl: number): number {
   const d = definitionOf(assay);
   const magnitude = (activity * d.epsilonPerMmPerCm * c.pathlengthCm * c.sampleVolumeUl * proteinMgPerMl) / (c.reactionVolumeUl * 1000);
   return d.direction === 'rises' ? magnitude : -magnitude;
 }
 
 /** Invented background slope: a tenth of the specific rate, same direction, where the assay subtracts one. */
-function backgroundSlope(assay: AssayCode, specific: number): number | null {
+export function backgroundSlope(assay: AssayCode, specific: number): number | null {
   return definitionOf(assay).background === 'none' ? null : specific * 0.1;
 }
 
-const START: Record<AssayCode, number> = { CI: 0.95, CII: 1.1, CIII: 0.35, CIV: 1.55, 'CI+III': 0.4, 'CII+III': 0.45, CS: 0.18 };
+export const START: Record<AssayCode, number> = { CI: 0.95, CII: 1.1, CIII: 0.35, CIV: 1.55, 'CI+III': 0.4, 'CII+III': 0.45, CS: 0.18 };
 
-function trace(random: () => number, a0: number, slopePerMin: number, points = 21, stepS = 15): TracePoint[] {
+export function trace(random: () => number, a0: number, slopePerMin: number, points = 21, stepS = 15): TracePoint[] {
   return Array.from({ length: points }, (_, i) => {
     const t = i * stepS;
     return { t, a: Number((a0 + (slopePerMin * t) / 60 + (random() - 0.5) * 0.0012).toFixed(4)) };
@@ -195,7 +195,7 @@ function demoPlateFile(activities: Activities, proteinMgPerMl: number, random: (
 
 /* ---------------------------------------------------------------- seeding */
 
-async function actor(email: string): Promise<User> {
+export async function actor(email: string): Promise<User> {
   const u = await findUserByEmail(email);
   if (!u) throw new Error(`demo seed: account ${email} is missing`);
   return publicUser(u);

@@ -8,6 +8,7 @@ import { seedDemoIntervals } from './demo-intervals';
 import type { NoticeDeps } from '../../modules/mail/notices.service';
 import { seedDemoReports } from './demo-reports';
 import { seedDemoMeasurements } from './demo-measurements';
+import { seedDemoRuns } from './demo-runs';
 
 /** Invented staff of an invented laboratory. No real people or institutions. */
 export const demoAccounts: { email: string; name: string; title: string; role: Role }[] = [
@@ -43,6 +44,7 @@ export async function seedDemoIfEmpty(sequelize: Sequelize, demoPassword: string
   await seedDemoIntervals(sequelize);
   const demoCaseIds = await seedDemoCases(sequelize);
   await seedDemoMeasurements(sequelize, demoCaseIds);
+  await seedDemoRuns(sequelize, demoCaseIds);
   // Last: signs cases the seeds above left awaiting review.
   await seedDemoReports(sequelize, demoCaseIds, notices);
   return true;
