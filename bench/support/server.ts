@@ -18,7 +18,22 @@ export type BenchServer = {
   stop: () => Promise<void>;
   /** SIGKILL: no shutdown handler runs. */
   kill: () => Promise<void>;
+  /** CPU time the server process has used so far, ms (user + system; NaN where /proc is missing). */
+  cpuMs: () => number;
 };
+
+/**
+ * CPU time of a process from /proc/<pid>/stat (utime + stime, in clock ticks of 10 ms on Linux). Unlike
+ * latency, CPU per request hardly depends on what else the machine is running.
+ */
+export function processCpuMs(pid: number | undefined): number {
+  try {
+    const fields = fs.readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1]!.split(' ');
+    return (Number(fields[11]) + Number(fields[12])) * 10;
+  } catch {
+    return NaN;
+  }
+}
 
 /**
  * The compiled server (dist/server, what `npm start` runs) when it has been built, else the TypeScript sources
@@ -94,13 +109,14 @@ export async function startBenchServer(opts: { dataDir?: string; env?: Record<st
     kind,
     stop: () => waitForExit(child, 'SIGTERM'),
     kill: () => waitForExit(child, 'SIGKILL'),
+    cpuMs: () => processCpuMs(child.pid),
   };
 }
 
 /** The bare Express floor (bench/floor-server.mjs) on a free port. */
-export async function startFloorServer(): Promise<{ origin: string; stop: () => Promise<void> }> {
+export async function startFloorServer(): Promise<{ origin: string; stop: () => Promise<void>; cpuMs: () => number }> {
   const { child, port } = await spawnUntilHealthy([path.join(ROOT, 'bench', 'floor-server.mjs')], {}, (p) => `http://localhost:${p}/`);
-  return { origin: `http://localhost:${port}`, stop: () => waitForExit(child, 'SIGTERM') };
+  return { origin: `http://localhost:${port}`, stop: () => waitForExit(child, 'SIGTERM'), cpuMs: () => processCpuMs(child.pid) };
 }
 
 /** Signs in as a demo account and returns the session cookie. */
