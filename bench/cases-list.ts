@@ -38,7 +38,7 @@ const GOAL_P95_MS = 50;
 const PASSWORD = 'bench-password-1';
 
 /** Deterministic noise (mulberry32), so every run builds the same registry. */
-function rng(seed: number): () => number {
+export function rng(seed: number): () => number {
   let s = seed >>> 0;
   return () => {
     s = (s + 0x6d2b79f5) >>> 0;
@@ -58,11 +58,11 @@ const PATTERN_CODES = [
   'normal', 'normal', 'normal', 'normal', 'isolated:CI', 'isolated:CIV', 'isolated:CIII', 'isolated:CII',
   'combined:CI,CIV', 'combined:CI,CIII,CIV', 'linked:CI+III', 'raised_cs', 'isolated:CI+raised_cs', 'insufficient',
 ];
-const pick = <T>(r: () => number, xs: readonly T[]): T => xs[Math.floor(r() * xs.length)]!;
+export const pick = <T>(r: () => number, xs: readonly T[]): T => xs[Math.floor(r() * xs.length)]!;
 /** Sequelize's SQLite date format, so bulk-inserted rows compare and sort like rows the app writes. */
-const sqlDate = (d: Date) => d.toISOString().replace('T', ' ').replace('Z', ' +00:00');
+export const sqlDate = (d: Date) => d.toISOString().replace('T', ' ').replace('Z', ' +00:00');
 
-async function bulkInsert(sequelize: Sequelize, transaction: Transaction, table: string, columns: string[], rows: unknown[][]): Promise<void> {
+export async function bulkInsert(sequelize: Sequelize, transaction: Transaction, table: string, columns: string[], rows: unknown[][]): Promise<void> {
   const cols = columns.map((c) => `"${c}"`).join(', ');
   for (let i = 0; i < rows.length; i += CHUNK) {
     const values = rows
@@ -152,8 +152,8 @@ function percentile(sorted: number[], p: number): number {
   return sorted[idx]!;
 }
 
-async function time(runs: number, fn: () => Promise<unknown>): Promise<{ p50: number; p95: number }> {
-  for (let i = 0; i < WARMUP; i++) await fn();
+export async function time(runs: number, fn: () => Promise<unknown>, warmup = WARMUP): Promise<{ p50: number; p95: number }> {
+  for (let i = 0; i < warmup; i++) await fn();
   const ms: number[] = [];
   for (let i = 0; i < runs; i++) {
     const t0 = performance.now();
@@ -164,18 +164,35 @@ async function time(runs: number, fn: () => Promise<unknown>): Promise<{ p50: nu
   return { p50: percentile(ms, 50), p95: percentile(ms, 95) };
 }
 
-export default async function run(): Promise<BenchResult> {
-  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'cristae-bench-cases-'));
+/** A temporary SQLite file with the migrations, the invented staff and the laboratory profile (nothing else). */
+export async function openRegistryDatabase(tag: string): Promise<{ dir: string; sequelize: Sequelize }> {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), `cristae-bench-${tag}-`));
   const sequelize = await openDatabase(path.join(dir, 'registry.sqlite'));
+  initModels(sequelize);
+  await migrate(sequelize);
+  // Only the invented staff and the laboratory profile: the list needs clinicians and a technologist to sign in.
+  const passwordHash = await hashPassword(PASSWORD);
+  await sequelize.transaction(async (transaction) => {
+    for (const a of demoAccounts) await insertUser({ ...a, passwordHash }, transaction);
+  });
+  await saveLabProfile(sequelize, null, demoLabProfile);
+  return { dir, sequelize };
+}
+
+/** The Express app over that database, and a supertest agent signed in as the demo technologist. */
+export async function signedInAgent(sequelize: Sequelize) {
+  const config = loadConfig({ NODE_ENV: 'test', PORT: '3000', DEMO_PASSWORD: PASSWORD });
+  const app = createApp({ sequelize, config, loginAttemptsPerWindow: 1000 });
+  const agent = request.agent(app);
+  agent.set('Origin', 'http://localhost:3000');
+  const login = await agent.post('/api/auth/login').send({ email: 'technologist@demo.test', password: PASSWORD });
+  if (login.status !== 200) throw new Error(`sign-in failed: ${login.status}`);
+  return agent;
+}
+
+export default async function run(): Promise<BenchResult> {
+  const { dir, sequelize } = await openRegistryDatabase('cases');
   try {
-    initModels(sequelize);
-    await migrate(sequelize);
-    // Only the invented staff and the laboratory profile: the list needs clinicians and a technologist to sign in.
-    const passwordHash = await hashPassword(PASSWORD);
-    await sequelize.transaction(async (transaction) => {
-      for (const a of demoAccounts) await insertUser({ ...a, passwordHash }, transaction);
-    });
-    await saveLabProfile(sequelize, null, demoLabProfile);
     const t0 = performance.now();
     const { sampleAccession, sampleLabId } = await seedRegistry(sequelize);
     const seedSeconds = (performance.now() - t0) / 1000;
@@ -204,12 +221,7 @@ export default async function run(): Promise<BenchResult> {
       rows.push({ metric: `service: ${label}`, value: `p50 ${p50.toFixed(1)} ms, p95 ${p95.toFixed(1)} ms`, goal: `p95 < ${GOAL_P95_MS} ms`, met: p95 < GOAL_P95_MS });
     }
 
-    const config = loadConfig({ NODE_ENV: 'test', PORT: '3000', DEMO_PASSWORD: PASSWORD });
-    const app = createApp({ sequelize, config, loginAttemptsPerWindow: 1000 });
-    const agent = request.agent(app);
-    agent.set('Origin', 'http://localhost:3000');
-    const login = await agent.post('/api/auth/login').send({ email: 'technologist@demo.test', password: PASSWORD });
-    if (login.status !== 200) throw new Error(`sign-in failed: ${login.status}`);
+    const agent = await signedInAgent(sequelize);
     const httpViews: [string, string][] = [
       ['GET /api/cases (landing page)', '/api/cases?page=1&pageSize=25'],
       ['GET /api/cases?state=received', '/api/cases?state=received&pageSize=50'],
@@ -236,9 +248,13 @@ export default async function run(): Promise<BenchResult> {
   }
 }
 
-if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) {
-  const result = await run();
+/** Runs a benchmark file on its own (`node --import tsx bench/<file>.ts`) and prints its figures. */
+export async function runWhenMain(moduleUrl: string, bench: () => Promise<BenchResult>): Promise<void> {
+  if (!process.argv[1] || moduleUrl !== pathToFileURL(process.argv[1]).href) return;
+  const result = await bench();
   console.log(result.title);
   for (const r of result.rows) console.log(`${r.met ? ' ' : '!'} ${r.metric}: ${r.value} (goal ${r.goal})`);
   if (result.notes) console.log(result.notes);
 }
+
+await runWhenMain(import.meta.url, run);

@@ -5,7 +5,8 @@ import type { BenchResult } from './types';
 
 /*
  * Runs every benchmark in turn and records the figures in docs/performance.md. Speed goals live here,
- * never in timed tests. `npm run bench -- engine` runs only the benchmarks whose name contains "engine".
+ * never in timed tests. `npm run bench -- engine` runs only the benchmarks whose name contains "engine", and
+ * replaces only their sections of docs/performance.md (each section starts with a `<!-- bench:name -->` mark).
  */
 const benches: { name: string; load: () => Promise<{ default: () => Promise<BenchResult> }> }[] = [
   { name: 'engine-plate', load: () => import('./engine-plate') },
@@ -13,7 +14,7 @@ const benches: { name: string; load: () => Promise<{ default: () => Promise<Benc
   { name: 'write-path', load: () => import('./write-path') },
   { name: 'start-up', load: () => import('./start-up') },
 ];
-for (const extra of ['cases-list', 'postgres']) {
+for (const extra of ['cases-list', 'cohort-search', 'postgres']) {
   if (fs.existsSync(path.join(import.meta.dirname, `${extra}.ts`))) benches.push({ name: extra, load: () => import(`./${extra}.ts`) });
 }
 
@@ -41,22 +42,42 @@ async function main() {
     `Last run: ${new Date().toISOString()} on ${machine}.`,
     '',
   ];
+  const sections = new Map<string, string[]>();
   for (const { name, result, error } of results) {
-    lines.push(`## ${result?.title ?? name}`, '');
+    const section: string[] = [];
+    sections.set(name, section);
+    section.push(`<!-- bench:${name} -->`, `## ${result?.title ?? name}`, '');
     if (!result) {
-      lines.push(`Failed: ${error}`, '');
+      section.push(`Failed: ${error}`, '');
       continue;
     }
-    lines.push('| metric | value | goal | met |', '|---|---|---|---|');
-    for (const r of result.rows) lines.push(`| ${r.metric} | ${r.value} | ${r.goal} | ${r.met ? 'yes' : '**no**'} |`);
-    lines.push('');
-    if (result.notes) lines.push(result.notes, '');
+    section.push('| metric | value | goal | met |', '|---|---|---|---|');
+    for (const r of result.rows) section.push(`| ${r.metric} | ${r.value} | ${r.goal} | ${r.met ? 'yes' : '**no**'} |`);
+    section.push('');
+    if (result.notes) section.push(result.notes, '');
+    if (only) section.push(`Run alone (\`npm run bench -- ${only}\`) at ${new Date().toISOString()} on ${machine}.`, '');
   }
   const out = path.join(import.meta.dirname, '..', 'docs', 'performance.md');
   if (only && fs.existsSync(out)) {
-    console.log('(a partial run does not rewrite docs/performance.md)');
+    // A partial run replaces its own sections (each from its mark to the next mark) and
+    // appends the ones the page does not have yet; every other figure stays as the last full run wrote it.
+    let text = fs.readFileSync(out, 'utf8');
+    for (const [name, section] of sections) {
+      const mark = `<!-- bench:${name} -->`;
+      const start = text.indexOf(mark);
+      const body = `${section.join('\n')}\n`;
+      if (start < 0) {
+        text = `${text.trimEnd()}\n\n${body}`;
+        continue;
+      }
+      const next = text.indexOf('<!-- bench:', start + mark.length);
+      text = text.slice(0, start) + body + (next < 0 ? '' : text.slice(next));
+    }
+    fs.writeFileSync(out, text);
+    console.log(`updated ${[...sections.keys()].join(', ')} in ${path.relative(process.cwd(), out)}`);
     return;
   }
+  for (const section of sections.values()) lines.push(...section);
   fs.writeFileSync(out, lines.join('\n'));
   console.log(`wrote ${path.relative(process.cwd(), out)}`);
 }

@@ -53,8 +53,9 @@ export async function up({ context: qi }: { context: QueryInterface }): Promise<
     mean: { type: DataTypes.DOUBLE, allowNull: true },
   });
   await qi.addIndex('cohort_values', ['memberId'], { name: 'cohort_values_member' });
-  await qi.addIndex('cohort_values', ['assay', 'measure', 'pctOfMean'], { name: 'cohort_values_pct' });
-  await qi.addIndex('cohort_values', ['assay', 'measure', 'value'], { name: 'cohort_values_value' });
+  // Range conditions read only these indexes (memberId included): no lookup into the table per matching value.
+  await qi.addIndex('cohort_values', ['assay', 'measure', 'pctOfMean', 'memberId'], { name: 'cohort_values_pct' });
+  await qi.addIndex('cohort_values', ['assay', 'measure', 'value', 'memberId'], { name: 'cohort_values_value' });
 
   await qi.createTable('saved_searches', {
     id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },

@@ -219,8 +219,10 @@ function quantileOfBins(bins: { at: number; count: number }[], n: number, q: num
  */
 export async function cohortPlots(filters: CohortCriteria): Promise<CohortPlots> {
   const { sql: where, replacements } = cohortWhere(filters);
-  const scope = `FROM cohort_values v JOIN cohort_members m ON m.id = v."memberId"
-    ${where ? `${where} AND` : 'WHERE'} v.measure = 'ratio_cs' AND v.assay IN (:complexes)`;
+  // With no criteria every value belongs to the cohort, so the members need not be joined at all.
+  const scope = where
+    ? `FROM cohort_values v JOIN cohort_members m ON m.id = v."memberId" ${where} AND v.measure = 'ratio_cs' AND v.assay IN (:complexes)`
+    : `FROM cohort_values v WHERE v.measure = 'ratio_cs' AND v.assay IN (:complexes)`;
   const base = { ...replacements, complexes: [...cohortComplexes] };
   const [{ n: total }] = (await db().query(`SELECT COUNT(*) AS n FROM cohort_members m ${where}`, {
     replacements,
