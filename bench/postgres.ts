@@ -23,7 +23,7 @@ const GOAL_WRITE_P95_MS = 300;
 const GOAL_READ_P95_MS = 150;
 const WORKERS = 2;
 
-type Inner = { rows: BenchResult['rows']; kind: string };
+type Inner = { rows: BenchResult['rows']; kind: string; loadAverage: number };
 
 async function startTwoProcesses(databaseUrl: string) {
   const { args, kind } = serverCommand();
@@ -55,6 +55,7 @@ async function startTwoProcesses(databaseUrl: string) {
 }
 
 async function inner(out: string): Promise<void> {
+  const loadAverage = os.loadavg()[0]!;
   const databaseUrl = process.env.DATABASE_URL;
   if (!databaseUrl) throw new Error('run through scripts/with-postgres.sh (DATABASE_URL is not set)');
   const floor = await startFloorServer();
@@ -126,7 +127,7 @@ async function inner(out: string): Promise<void> {
         met: stored >= writes.ok && stored <= sent,
       },
     ];
-    fs.writeFileSync(out, JSON.stringify({ rows, kind: app.kind } satisfies Inner));
+    fs.writeFileSync(out, JSON.stringify({ rows, kind: app.kind, loadAverage } satisfies Inner));
   } finally {
     await db.end();
     await app.stop();
@@ -146,7 +147,7 @@ export default async function run(): Promise<BenchResult> {
     child.on('exit', resolve);
   });
   if (code !== 0 || !fs.existsSync(out)) throw new Error(`the PostgreSQL run ended with status ${code}`);
-  const { rows, kind } = JSON.parse(fs.readFileSync(out, 'utf8')) as Inner;
+  const { rows, kind, loadAverage } = JSON.parse(fs.readFileSync(out, 'utf8')) as Inner;
   return {
     title: `PostgreSQL, ${WORKERS} application processes behind one port: case list and mixed load, ${CONNECTIONS} clients each, ${DURATION_S} s (autocannon, loopback)`,
     rows,
@@ -155,7 +156,8 @@ export default async function run(): Promise<BenchResult> {
       `${WORKERS} application processes (${kind === 'compiled' ? 'the compiled server' : 'TypeScript sources through tsx'}) sharing one port through node:cluster, ` +
       'the database server, the floor and the load generator all on the same 2-core machine. Writes take one advisory lock per transaction ' +
       '(server/db/write-transaction.ts), so they stay one at a time across both processes, as on SQLite. The floor is the bare Express ' +
-      'handler of bench/floor-server.mjs, measured in the same run.',
+      'handler of bench/floor-server.mjs, measured in the same run. ' +
+      `The machine's one-minute load average when the run began: ${loadAverage.toFixed(1)} (other work on the same 2 cores slows the floor and the application alike).`,
   };
 }
 
