@@ -65,6 +65,14 @@ export const api = {
     apiRequest(path, schema, { method: 'POST', formData }),
 };
 
+/** The multipart body of a plate upload: the plan as JSON text in "plan", then the file in "file". */
+export function planAndFile({ file, plan }: { file: File; plan: unknown }): FormData {
+  const form = new FormData();
+  form.append('plan', JSON.stringify(plan));
+  form.append('file', file, file.name);
+  return form;
+}
+
 /** Builds a query string from defined values only. */
 export function toQuery(params: Record<string, string | number | boolean | undefined | null>): string {
   const sp = new URLSearchParams();

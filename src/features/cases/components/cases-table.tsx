@@ -10,6 +10,7 @@ import { useCallback, useMemo } from 'react';
 import { Link, useSearchParams } from 'react-router-dom';
 import { DataTable, type DataTableClasses } from '@/components/ui/data-table';
 import { Notice } from '@/components/ui/layout';
+import { TablePager } from '@/components/ui/table-pager';
 import { paths } from '@/config/paths';
 import { specimenTypeLabels } from '@/schemas/common';
 import { caseSortFields, type CaseListQuery, type CaseSummary } from '@/schemas/case';
@@ -133,8 +134,6 @@ export function CasesTable({ timeZone }: { timeZone: string }) {
     },
   });
 
-  const first = total === 0 ? 0 : (page - 1) * pageSize + 1;
-  const last = Math.min(page * pageSize, total);
 
   return (
     <div className="flex flex-col gap-4">
@@ -168,34 +167,7 @@ export function CasesTable({ timeZone }: { timeZone: string }) {
           ) : null}
         </DataTable>
       </div>
-      <div className="flex flex-wrap items-center justify-between gap-3 text-sm text-ink-soft">
-        <p role="status" aria-live="polite">
-          {/* While the first page loads, the table says so; "No cases" only once the answer is in. */}
-          {isPending ? '' : total === 0 ? 'No cases' : `Cases ${first.toLocaleString('en-GB')}–${last.toLocaleString('en-GB')} of ${total.toLocaleString('en-GB')}`}
-          {isFetching && !isPending ? <span className="ml-2 text-ink-faint">updating…</span> : null}
-        </p>
-        <div className="flex items-center gap-2">
-          <label className="flex items-center gap-1.5">
-            Rows
-            <select className="rounded border border-paper-line bg-paper-raised px-1.5 py-1" value={pageSize} onChange={(e) => table.setPageSize(Number(e.target.value))}>
-              {pageSizes.map((n) => (
-                <option key={n} value={n}>
-                  {n}
-                </option>
-              ))}
-            </select>
-          </label>
-          <button type="button" className="rounded-md border border-paper-line px-2.5 py-1 hover:bg-paper-sunk disabled:opacity-40" onClick={() => table.previousPage()} disabled={!table.getCanPreviousPage()}>
-            ← Previous
-          </button>
-          <span className="num">
-            Page {page} of {table.getPageCount().toLocaleString('en-GB')}
-          </span>
-          <button type="button" className="rounded-md border border-paper-line px-2.5 py-1 hover:bg-paper-sunk disabled:opacity-40" onClick={() => table.nextPage()} disabled={!table.getCanNextPage()}>
-            Next →
-          </button>
-        </div>
-      </div>
+      <TablePager table={table} total={total} noun="Cases" pageSizes={pageSizes} isPending={isPending} isFetching={isFetching} />
     </div>
   );
 }

@@ -1,4 +1,5 @@
 import { useState } from 'react';
+import { LayoutProblems } from '@/components/plate/layout-problems';
 import { Button } from '@/components/ui/button';
 import { SelectField, TextField } from '@/components/ui/field';
 import { Notice } from '@/components/ui/layout';
@@ -175,13 +176,7 @@ export function PlateMapEditor({ initial, onSaved }: { initial: StoredPlateMap |
           {erase ? 'Empty the block' : 'Fill the block'}
         </Button>
       </fieldset>
-      {problems.length > 0 ? (
-        <ul aria-label="Problems in the layout" className="list-disc pl-5 text-sm text-below">
-          {problems.map((p, i) => (
-            <li key={i}>{p}</li>
-          ))}
-        </ul>
-      ) : null}
+      <LayoutProblems problems={problems} />
       {message ? <Notice tone={message.tone}>{message.text}</Notice> : null}
       <div className="flex flex-wrap gap-2">
         {initial ? (

@@ -1,4 +1,5 @@
 import { useState } from 'react';
+import { LayoutProblems } from '@/components/plate/layout-problems';
 import { Button } from '@/components/ui/button';
 import { SelectField, TextField } from '@/components/ui/field';
 import { Notice } from '@/components/ui/layout';
@@ -150,13 +151,7 @@ export function LayoutEditor({
       </div>
 
       {message ? <Notice tone="error">{message}</Notice> : null}
-      {problems.length > 0 ? (
-        <ul aria-label="Problems in the layout" className="list-disc pl-5 text-sm text-below">
-          {problems.map((p, i) => (
-            <li key={i}>{p}</li>
-          ))}
-        </ul>
-      ) : null}
+      <LayoutProblems problems={problems} />
       <div className="flex items-center gap-3">
         <Button variant="quiet" onClick={() => onChange([])}>
           Empty the plate

@@ -186,8 +186,10 @@ export function NewRun() {
 
   const fail = (err: unknown) => {
     if (err instanceof ApiError) {
-      setFields(err.fields);
-      setProblems(err.issues.length ? err.issues : fieldProblems(err.fields, wells, names));
+      // The server names plan fields as "plan.<field>"; the form's fields are the plan's own.
+      const named = Object.fromEntries(Object.entries(err.fields).map(([k, v]) => [k.replace(/^plan\./, ''), v]));
+      setFields(named);
+      setProblems(err.issues.length ? err.issues : fieldProblems(named, wells, names));
       setMessage({ tone: 'error', text: err.message });
     } else setMessage({ tone: 'error', text: 'The server could not be reached; nothing was saved.' });
   };

@@ -5,6 +5,7 @@ import { Link, useSearchParams } from 'react-router-dom';
 import { DataTable, type DataTableClasses } from '@/components/ui/data-table';
 import { SelectField, TextField } from '@/components/ui/field';
 import { Notice } from '@/components/ui/layout';
+import { TablePager } from '@/components/ui/table-pager';
 import { paths } from '@/config/paths';
 import { runListQuerySchema, runQcStatuses, runQcStatusLabels, type RunListQuery, type RunSummary } from '@/schemas/run';
 import { formatWhen } from '@/utils/format';
@@ -85,8 +86,6 @@ export function RunsTable() {
       else change({ page: next.pageIndex === 0 ? null : next.pageIndex + 1 });
     },
   });
-  const first = total === 0 ? 0 : (page - 1) * pageSize + 1;
-  const last = Math.min(page * pageSize, total);
 
   return (
     <div className="flex flex-col gap-4">
@@ -117,33 +116,7 @@ export function RunsTable() {
           ) : null}
         </DataTable>
       </div>
-      <div className="flex flex-wrap items-center justify-between gap-3 text-sm text-ink-soft">
-        <p role="status" aria-live="polite">
-          {total === 0 ? 'No runs' : `Runs ${first}–${last} of ${total}`}
-          {isFetching && !isPending ? <span className="ml-2 text-ink-faint">updating…</span> : null}
-        </p>
-        <div className="flex items-center gap-2">
-          <label className="flex items-center gap-1.5">
-            Rows
-            <select className="rounded border border-paper-line bg-paper-raised px-1.5 py-1" value={pageSize} onChange={(e) => table.setPageSize(Number(e.target.value))}>
-              {PAGE_SIZES.map((n) => (
-                <option key={n} value={n}>
-                  {n}
-                </option>
-              ))}
-            </select>
-          </label>
-          <button type="button" className="rounded-md border border-paper-line px-2.5 py-1 hover:bg-paper-sunk disabled:opacity-40" onClick={() => table.previousPage()} disabled={!table.getCanPreviousPage()}>
-            ← Previous
-          </button>
-          <span className="num">
-            Page {page} of {table.getPageCount()}
-          </span>
-          <button type="button" className="rounded-md border border-paper-line px-2.5 py-1 hover:bg-paper-sunk disabled:opacity-40" onClick={() => table.nextPage()} disabled={!table.getCanNextPage()}>
-            Next →
-          </button>
-        </div>
-      </div>
+      <TablePager table={table} total={total} noun="Runs" pageSizes={PAGE_SIZES} isPending={isPending} isFetching={isFetching} />
     </div>
   );
 }
