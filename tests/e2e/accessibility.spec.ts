@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import type { CaseList, CaseSummary } from '@/schemas/case';
 import { countNodes, describeFindings, seriousViolations } from './support/axe';
-import { screenshot, signIn } from './support/browser';
+import { screenshot } from './support/browser';
 import { useAppInBrowser } from './support/app';
+import { demoCaseIn, pageAs, settle } from './support/pages';
 
 const app = useAppInBrowser();
 
@@ -12,11 +12,6 @@ const app = useAppInBrowser();
  * [confirmed] WCAG 2.1 (W3C Recommendation) via axe-core's rule tags: no serious or critical violation.
  */
 
-async function settle(page: Page): Promise<void> {
-  await page.waitForLoadState('networkidle');
-  await page.locator('h1').first().waitFor();
-  await page.waitForFunction(() => !/Loading/.test(document.querySelector('main')?.textContent ?? document.body.textContent ?? ''));
-}
 
 type Scanned = { label: string; path: string; title: string; nodes: number; text: string };
 /** Every page's document title, by path, across the role tests: each route must name itself. */
@@ -24,7 +19,13 @@ const titles = new Map<string, string>();
 /** Console lines of every page opened, for the warning checks. */
 const consoleLines: string[] = [];
 
+const listening = new WeakSet<Page>();
+
 async function scan(page: Page, path: string, label: string): Promise<Scanned> {
+  if (!listening.has(page)) {
+    listening.add(page);
+    page.on('console', (m) => consoleLines.push(`${m.type()}: ${m.text()}`));
+  }
   await page.goto(`${app.server.origin}${path}`);
   await settle(page);
   const found = await seriousViolations(page);
@@ -36,21 +37,7 @@ async function scan(page: Page, path: string, label: string): Promise<Scanned> {
   return { label, path, title, nodes: countNodes(found), text: describeFindings(found) };
 }
 
-async function asRole(email: string): Promise<Page> {
-  await app.browser.clearCookies();
-  const page = await app.browser.newPage();
-  page.on('console', (m) => consoleLines.push(`${m.type()}: ${m.text()}`));
-  await signIn(page, app.server.origin, email);
-  return page;
-}
 
-async function caseWith(page: Page, state: CaseSummary['state']): Promise<CaseSummary> {
-  const res = await page.request.get(`${app.server.origin}/api/cases?pageSize=100`);
-  const list = (await res.json()) as CaseList;
-  const found = list.items.find((c) => c.state === state);
-  if (!found) throw new Error(`no demo case in state ${state}`);
-  return found;
-}
 
 function report(results: Scanned[]): string {
   return results.filter((r) => r.nodes > 0).map((r) => `## ${r.label} (${r.nodes})\n${r.text}`).join('\n');
@@ -66,9 +53,9 @@ describe('every main page passes axe-core (WCAG 2.1 A/AA, nothing serious or cri
   });
 
   it("when a technologist opens each page of the workup, then every page passes", async () => {
-    const page = await asRole('technologist@demo.test');
-    const inAssay = await caseWith(page, 'in_assay');
-    const waiting = await caseWith(page, 'awaiting_review');
+    const page = await pageAs(app, 'technologist@demo.test');
+    const inAssay = await demoCaseIn(app, page, 'in_assay');
+    const waiting = await demoCaseIn(app, page, 'awaiting_review');
     const results = [];
     for (const [path, label] of [
       ['/cases', 'tech-cases'],
@@ -91,8 +78,8 @@ describe('every main page passes axe-core (WCAG 2.1 A/AA, nothing serious or cri
   });
 
   it('when a director opens the review and definition pages, then every page passes', async () => {
-    const page = await asRole('director@demo.test');
-    const waiting = await caseWith(page, 'awaiting_review');
+    const page = await pageAs(app, 'director@demo.test');
+    const waiting = await demoCaseIn(app, page, 'awaiting_review');
     const results = [];
     for (const [path, label] of [
       ['/review', 'dir-review'],
@@ -113,14 +100,14 @@ describe('every main page passes axe-core (WCAG 2.1 A/AA, nothing serious or cri
   });
 
   it("when a clinician opens the reports page, then it passes", async () => {
-    const page = await asRole('clinician@demo.test');
+    const page = await pageAs(app, 'clinician@demo.test');
     const results = [await scan(page, '/my-reports', 'clin-reports')];
     await page.close();
     expect(report(results)).toBe('');
   });
 
   it('when an administrator opens each admin page, then every page passes', async () => {
-    const page = await asRole('admin@demo.test');
+    const page = await pageAs(app, 'admin@demo.test');
     const results = [];
     for (const [path, label] of [
       ['/admin/accounts', 'admin-accounts'],
@@ -151,7 +138,7 @@ describe('titles, skipping the menu and a quiet console', () => {
   });
 
   it('when a keyboard user presses Tab on a page, then the first stop skips to the content, and Enter puts focus there', async () => {
-    const page = await asRole('technologist@demo.test');
+    const page = await pageAs(app, 'technologist@demo.test');
     await page.goto(`${app.server.origin}/cases`);
     await settle(page);
     await page.keyboard.press('Tab');
@@ -168,7 +155,7 @@ describe('titles, skipping the menu and a quiet console', () => {
   });
 
   it('when the user follows a link in the menu, then focus moves to the new page content', async () => {
-    const page = await asRole('technologist@demo.test');
+    const page = await pageAs(app, 'technologist@demo.test');
     await page.goto(`${app.server.origin}/cases`);
     await settle(page);
     await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Reference intervals' }).click();

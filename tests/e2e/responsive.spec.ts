@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import type { CaseList, CaseSummary } from '@/schemas/case';
-import { screenshot, signIn } from './support/browser';
+import { screenshot } from './support/browser';
 import { useAppInBrowser } from './support/app';
+import { demoCaseIn, pageAs, settle } from './support/pages';
 
 const app = useAppInBrowser();
 
@@ -14,19 +14,7 @@ const app = useAppInBrowser();
 const PHONE = { width: 390, height: 844 };
 const TABLET = { width: 768, height: 1024 };
 
-async function settle(page: Page): Promise<void> {
-  await page.waitForLoadState('networkidle');
-  await page.locator('h1').first().waitFor();
-  await page.waitForFunction(() => !/Loading/.test(document.querySelector('main')?.textContent ?? ''));
-}
 
-async function asRole(email: string, size: { width: number; height: number }): Promise<Page> {
-  await app.browser.clearCookies();
-  const page = await app.browser.newPage();
-  await page.setViewportSize(size);
-  await signIn(page, app.server.origin, email);
-  return page;
-}
 
 async function widths(page: Page): Promise<{ scroll: number; viewport: number }> {
   return page.evaluate(() => ({ scroll: document.documentElement.scrollWidth, viewport: window.innerWidth }));
@@ -44,18 +32,12 @@ function tooWide(rows: { label: string; scroll: number; viewport: number }[]): s
   return rows.filter((r) => r.scroll > r.viewport).map((r) => `${r.label}: ${r.scroll} px in a ${r.viewport} px window`);
 }
 
-async function caseWith(page: Page, state: CaseSummary['state']): Promise<CaseSummary> {
-  const res = await page.request.get(`${app.server.origin}/api/cases?pageSize=100`);
-  const found = ((await res.json()) as CaseList).items.find((c) => c.state === state);
-  if (!found) throw new Error(`no demo case in state ${state}`);
-  return found;
-}
 
 describe('on a 390 px phone', () => {
   it('when the technologist opens the lab pages, then none is wider than the screen', async () => {
-    const page = await asRole('technologist@demo.test', PHONE);
-    const waiting = await caseWith(page, 'awaiting_review');
-    const inAssay = await caseWith(page, 'in_assay');
+    const page = await pageAs(app, 'technologist@demo.test', PHONE);
+    const waiting = await demoCaseIn(app, page, 'awaiting_review');
+    const inAssay = await demoCaseIn(app, page, 'in_assay');
     const rows = [];
     for (const [path, label] of [
       ['/cases', 'phone-cases'],
@@ -74,22 +56,22 @@ describe('on a 390 px phone', () => {
   });
 
   it('when the director opens the review queue and a case, then neither is wider than the screen', async () => {
-    const page = await asRole('director@demo.test', PHONE);
-    const waiting = await caseWith(page, 'awaiting_review');
+    const page = await pageAs(app, 'director@demo.test', PHONE);
+    const waiting = await demoCaseIn(app, page, 'awaiting_review');
     const rows = [await open(page, '/review', 'phone-review'), await open(page, `/review/${waiting.id}`, 'phone-review-case'), await open(page, '/assays', 'phone-assay-definitions')];
     expect(tooWide(rows)).toEqual([]);
     await page.close();
   });
 
   it('when the administrator opens the accounts and the sent e-mail, then neither is wider than the screen', async () => {
-    const page = await asRole('admin@demo.test', PHONE);
+    const page = await pageAs(app, 'admin@demo.test', PHONE);
     const rows = [await open(page, '/admin/accounts', 'phone-accounts'), await open(page, '/admin/outbox', 'phone-outbox')];
     expect(tooWide(rows)).toEqual([]);
     await page.close();
   });
 
   it("when a clinician reads the reports between patients, then the list fits, the text runs in full lines and the PDF button is easy to tap", async () => {
-    const page = await asRole('clinician@demo.test', PHONE);
+    const page = await pageAs(app, 'clinician@demo.test', PHONE);
     const row = await open(page, '/my-reports', 'phone-my-reports');
     expect(tooWide([row])).toEqual([]);
     // Text runs across the card, not one or two words a line: the card's heading is nearly the screen's width.
@@ -103,7 +85,7 @@ describe('on a 390 px phone', () => {
   });
 
   it('when the menu button is pressed, then the menu opens, a link in it works and the menu closes again', async () => {
-    const page = await asRole('technologist@demo.test', PHONE);
+    const page = await pageAs(app, 'technologist@demo.test', PHONE);
     await page.goto(`${app.server.origin}/cases`);
     await settle(page);
     const nav = page.getByRole('navigation', { name: 'Main' });
@@ -124,7 +106,7 @@ describe('on a 390 px phone', () => {
   });
 
   it('when the case list is wider than the phone, then the table scrolls in its own box, not the page', async () => {
-    const page = await asRole('technologist@demo.test', PHONE);
+    const page = await pageAs(app, 'technologist@demo.test', PHONE);
     await page.goto(`${app.server.origin}/cases`);
     await settle(page);
     const box = page.getByRole('region', { name: 'Cases' });
@@ -137,10 +119,10 @@ describe('on a 390 px phone', () => {
 
 describe('on a 768 px bench tablet', () => {
   it('when the technologist works at the assay bench, then the page fits and the entry form has the full width', async () => {
-    const page = await asRole('technologist@demo.test', TABLET);
-    const inAssay = await caseWith(page, 'in_assay');
+    const page = await pageAs(app, 'technologist@demo.test', TABLET);
+    const inAssay = await demoCaseIn(app, page, 'in_assay');
     const rows = [await open(page, `/cases/${inAssay.id}/assays`, 'tablet-assays'), await open(page, '/cases', 'tablet-cases')];
-    const waiting = await caseWith(page, 'awaiting_review');
+    const waiting = await demoCaseIn(app, page, 'awaiting_review');
     rows.push(await open(page, `/cases/${waiting.id}/results`, 'tablet-results'));
     expect(tooWide(rows)).toEqual([]);
     await page.goto(`${app.server.origin}/cases/${inAssay.id}/assays`);

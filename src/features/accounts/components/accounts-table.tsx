@@ -81,8 +81,8 @@ function AccountActions({ account, onMessage }: { account: UserAccount; onMessag
         <div role="group" aria-label={`Confirm the change for ${account.name}`} className="flex basis-full flex-wrap items-center gap-2 rounded-md border border-caution-line bg-caution-bg px-2 py-1.5 text-sm text-caution">
           <span>
             {pending.kind === 'role'
-              ? `Make ${account.name} ${roleLabels[pending.role].toLowerCase()}? What they can open and do changes with it.`
-              : `Deactivate ${account.name}? They can no longer sign in until an administrator reactivates the account.`}
+              ? `Change the role of ${account.name} to ${roleLabels[pending.role]}? What they can open and do changes with it.`
+              : `Deactivate ${account.name}? Their sessions end and they cannot sign in until the account is reactivated.`}
           </span>
           <Button variant={pending.kind === 'role' ? 'primary' : 'danger'} disabled={update.isPending} onClick={confirm}>
             {pending.kind === 'role' ? 'Change the role' : 'Deactivate'}

@@ -26,11 +26,12 @@ function Event({ e, timeZone }: { e: CaseHistoryEvent; timeZone: string }) {
       </p>
       {e.note ? <p className="mt-1 text-sm italic text-ink">“{e.note}”</p> : null}
       {e.changes.length > 0 && e.changes.every((c) => c.before === null) ? (
-        <dl className="mt-2 grid max-w-3xl grid-cols-1 gap-x-3 text-sm sm:grid-cols-[11rem_minmax(0,1fr)]">
+        // What a new record held, field after field in running text, so a phone shows it in a few lines.
+        <dl className="mt-2 flex max-w-3xl flex-wrap gap-x-4 gap-y-0.5 text-sm">
           {e.changes.map((c) => (
-            <div key={c.field} className="contents">
-              <dt className="border-t border-paper-line/60 pt-1 text-ink-soft sm:py-1">{c.field}</dt>
-              <dd className="break-words pb-1 text-ink sm:border-t sm:border-paper-line/60 sm:py-1">{c.unit ? `${c.after} ${c.unit}` : c.after}</dd>
+            <div key={c.field} className="flex min-w-0 gap-1">
+              <dt className="shrink-0 text-ink-soft">{c.field}:</dt>
+              <dd className="break-words text-ink">{c.unit ? `${c.after} ${c.unit}` : c.after}</dd>
             </div>
           ))}
         </dl>
