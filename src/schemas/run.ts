@@ -1,7 +1,7 @@
 import { z } from 'zod';
-import { calculationResultSchema, flagSchema, rateWindowSchema, tracePointSchema } from './assay';
+import { flagSchema, rateWindowSchema } from './assay';
 import { assayCodeSchema, dateTimeSchema, plainText } from './common';
-import { platePathlengthSchema, plateReplicateSummarySchema, uploadSummarySchema } from './measurement';
+import { plateGroupPreviewSchema, platePathlengthSchema, plateReplicateSummarySchema, uploadSummarySchema } from './measurement';
 import {
   anyWellIdSchema,
   describeWellRange,
@@ -241,28 +241,22 @@ export type RunControlResult = z.infer<typeof runControlResultSchema>;
 /* ---------------------------------------------------------------- preview */
 
 /** One well group of the preview (a specimen's or a control's replicate), with its window-editing readings. */
-export const runGroupPreviewSchema = z.object({
-  /** runGroupId: the key of plan.windows. */
-  id: z.string(),
-  use: z.enum(['specimen', 'control']),
-  assay: assayCodeSchema,
-  replicate: z.number().int(),
-  /** For a specimen group: the specimen and its case; null for a control. */
-  specimenId: z.number().int().nullable(),
-  specimenLabel: z.string().nullable(),
-  caseId: z.number().int().nullable(),
-  accession: z.string().nullable(),
-  /** For a control group: the material; null for a specimen. */
-  controlMaterialId: z.number().int().nullable(),
-  controlLabel: z.string().nullable(),
-  wells: z.object({ total: anyWellIdSchema, background: anyWellIdSchema.nullable(), blank: anyWellIdSchema.nullable() }),
-  total: z.array(tracePointSchema),
-  background: z.array(tracePointSchema).nullable(),
-  blank: z.array(tracePointSchema).nullable(),
-  result: calculationResultSchema,
-  /** A measurement of this specimen, assay and replicate is already saved: importing would be refused. */
-  alreadySaved: z.boolean(),
-});
+export const runGroupPreviewSchema = plateGroupPreviewSchema
+  .omit({ specimenRef: true, specimenId: true, specimenLabel: true })
+  .extend({
+    /** runGroupId: the key of plan.windows. */
+    id: z.string(),
+    use: z.enum(['specimen', 'control']),
+    /** For a specimen group: the specimen and its case; null for a control. */
+    specimenId: z.number().int().nullable(),
+    specimenLabel: z.string().nullable(),
+    caseId: z.number().int().nullable(),
+    accession: z.string().nullable(),
+    /** For a control group: the material; null for a specimen. */
+    controlMaterialId: z.number().int().nullable(),
+    controlLabel: z.string().nullable(),
+  });
+/** Also carried: assay, replicate, wells {total, background, blank}, the readings, result and alreadySaved. */
 export type RunGroupPreview = z.infer<typeof runGroupPreviewSchema>;
 
 /** POST /api/runs/preview: what the file gives with this plan; nothing is stored. */

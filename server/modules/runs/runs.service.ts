@@ -31,7 +31,7 @@ import { recordAudit } from '../audit/audit.service';
 import { findCaseById, type CaseRecord } from '../cases/cases.repository';
 import { labTimeZone } from '../cases/lab-zone';
 import { labYear, parseLabDateTime } from '../cases/lab-time';
-import { auditSummary, computeFromInputs } from '../measurements/compute';
+import { computeFromInputs } from '../measurements/compute';
 import * as measurementsRepo from '../measurements/measurements.repository';
 import {
   alreadySaved,
@@ -41,7 +41,7 @@ import {
 } from '../measurements/measurements.service';
 import { evaluateRunControls, type RunControlEvaluation } from '../qc/run-evaluation';
 import { confirmSigner } from '../reports/report-signing.service';
-import { pathlengthOf, summariseSpecimenAssays, type IncomingFile } from '../uploads/plate-import.service';
+import { pathlengthOf, savePlateGroup, summariseSpecimenAssays, type IncomingFile } from '../uploads/plate-import.service';
 import { findUploadSummary, insertUpload } from '../uploads/uploads.repository';
 import { blockingStatuses } from './run-release';
 import * as repo from './runs.repository';
@@ -389,32 +389,9 @@ export async function importRun(sequelize: Sequelize, actor: User, file: Incomin
     const measurementIds: number[] = [];
     for (const g of prepared.specimenGroups) {
       const p = g.preview;
-      // Checked again row by row: a clash part-way through rolls back the run, the file and every group before it.
-      if (await measurementsRepo.findMeasurementByKey(p.specimenId!, p.assay, p.replicate, t)) {
-        throw alreadySaved(`${p.specimenLabel} of case ${p.accession}`, p.assay, p.replicate, `groups.${p.id}`);
-      }
-      const m = await measurementsRepo.insertMeasurement(
-        {
-          caseId: p.caseId!,
-          specimenId: p.specimenId!,
-          assay: p.assay,
-          replicate: p.replicate,
-          inputs: { ...g.inputs, uploadId },
-          result: p.result,
-          definitionId: g.definitionId,
-          definitionVersion: g.definitionVersion,
-          uploadId,
-          createdById: actor.id,
-          runId: run.id,
-        },
-        t,
-      );
-      measurementIds.push(m.id);
-      await recordAudit(
-        actor,
-        { action: 'create', entity: 'measurement', entityId: m.id, caseId: p.caseId, after: { ...auditSummary(m), runNumber: run.runNumber } },
-        t,
-      );
+      // Checked again group by group: a clash part-way through rolls back the run, the file and every group before it.
+      const at = { ...p, caseId: p.caseId!, specimenId: p.specimenId!, label: `${p.specimenLabel} of case ${p.accession}` };
+      measurementIds.push(await savePlateGroup(actor, at, g, uploadId, run, t));
     }
     for (const caseId of prepared.cases.keys()) await startAssayIfReceived(sequelize, actor, caseId, t);
     const [summary] = await repo.toSummaries([run], t);

@@ -240,33 +240,49 @@ export async function importPlate(
     );
     const measurementIds: number[] = [];
     for (const g of prepared.groups) {
-      const p = g.preview;
-      // Checked here, group by group, so a clash part-way through rolls back the file and the groups before it.
-      if (await measurementsRepo.findMeasurementByKey(p.specimenId, p.assay, p.replicate, t)) {
-        throw alreadySaved(p.specimenLabel, p.assay, p.replicate, `groups.${p.id}`);
-      }
-      const m = await measurementsRepo.insertMeasurement(
-        {
-          caseId,
-          specimenId: p.specimenId,
-          assay: p.assay,
-          replicate: p.replicate,
-          inputs: { ...g.inputs, uploadId },
-          result: p.result,
-          definitionId: g.definitionId,
-          definitionVersion: g.definitionVersion,
-          uploadId,
-          createdById: actor.id,
-        },
-        t,
-      );
-      measurementIds.push(m.id);
-      await recordAudit(actor, { action: 'create', entity: 'measurement', entityId: m.id, caseId, after: auditSummary(m) }, t);
+      measurementIds.push(await savePlateGroup(actor, { ...g.preview, caseId, label: g.preview.specimenLabel }, g, uploadId, null, t));
     }
     await startAssayIfReceived(sequelize, actor, caseId, t);
     const upload = (await repo.findUploadSummary(uploadId, t))!;
     return { upload, measurementIds };
   });
+}
+
+/**
+ * Saves one well group as a plate measurement, with its audit event. The clash with a saved replicate is checked
+ * here, group by group, so a clash part-way through rolls back the file and the groups before it. `label` names
+ * the specimen in the 409; `run` is the analytical run the group was read on, if any.
+ */
+export async function savePlateGroup(
+  actor: User,
+  p: { id: string; caseId: number; specimenId: number; label: string; assay: AssayCode; replicate: number; result: CalculationResult },
+  g: { inputs: StoredInputs & { mode: 'plate' }; definitionId: number; definitionVersion: number },
+  uploadId: number,
+  run: { id: number; runNumber: string } | null,
+  t: Transaction,
+): Promise<number> {
+  if (await measurementsRepo.findMeasurementByKey(p.specimenId, p.assay, p.replicate, t)) {
+    throw alreadySaved(p.label, p.assay, p.replicate, `groups.${p.id}`);
+  }
+  const m = await measurementsRepo.insertMeasurement(
+    {
+      caseId: p.caseId,
+      specimenId: p.specimenId,
+      assay: p.assay,
+      replicate: p.replicate,
+      inputs: { ...g.inputs, uploadId },
+      result: p.result,
+      definitionId: g.definitionId,
+      definitionVersion: g.definitionVersion,
+      uploadId,
+      createdById: actor.id,
+      runId: run?.id ?? null,
+    },
+    t,
+  );
+  const after = run ? { ...auditSummary(m), runNumber: run.runNumber } : auditSummary(m);
+  await recordAudit(actor, { action: 'create', entity: 'measurement', entityId: m.id, caseId: p.caseId, after }, t);
+  return m.id;
 }
 
 export async function getUploadFile(id: number): Promise<{ filename: string; mimeType: string; sha256: string; content: Buffer }> {
