@@ -20,6 +20,17 @@ describe('Tukey fences: Q1 − 1.5 IQR, Q3 + 1.5 IQR [from memory]', () => {
     expect(screenTukey([30, 2, 4, 5, 6, 7, 8, 9])).toEqual({ kept: [2, 4, 5, 6, 7, 8, 9], excluded: [30] });
   });
 
+  it('keeps a value lying exactly on a fence and excludes one just beyond it', () => {
+    // [from memory] Tukey (Exploratory Data Analysis, 1977): values beyond the inner fences are "outside", so a
+    // value on a fence stays. Five values: Q1 and Q3 are the 2nd and 4th (4 and 6) by the linear-interpolation
+    // quantile the test above checks against simple-statistics, so IQR 2 and fences 1 and 9, exact in binary.
+    expect(screenTukey([1, 4, 5, 6, 9])).toEqual({ kept: [1, 4, 5, 6, 9], excluded: [] });
+    expect(screenTukey([0.5, 4, 5, 6, 9.5])).toEqual({ kept: [4, 5, 6], excluded: [0.5, 9.5] });
+  });
+  it('leaves fewer than four values to the other screens: nothing excluded, all returned sorted', () => {
+    // [common practice] quartiles of one to three values do not describe a spread, so Tukey's rule is not applied.
+    expect(screenTukey([100, 1, 2])).toEqual({ kept: [1, 2, 100], excluded: [] });
+  });
   it('excludes exactly what fences built from simple-statistics quantile and interquartileRange exclude', () => {
     // Integer data keep every quartile a multiple of 1/4, so both computations are exact.
     fc.assert(
