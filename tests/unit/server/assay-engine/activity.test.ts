@@ -155,6 +155,9 @@ describe('pathlengthFromFill', () => {
     expect(() => pathlengthFromFill(0, 0.32)).toThrow(/volumeUl/);
     expect(() => pathlengthFromFill(200, -1)).toThrow(/wellAreaCm2/);
     expect(() => pathlengthFromFill(Number.NaN, 0.32)).toThrow(/volumeUl/);
+    // [common practice] a well of area 0 holds no liquid column: the division by it must be refused, not answered
+    // with Infinity.
+    expect(() => pathlengthFromFill(200, 0)).toThrow(/wellAreaCm2/);
   });
 
   it('when the plate pathlength is used, then activity scales as 1/pathlength against a 1 cm cuvette', () => {
