@@ -25,6 +25,11 @@ function page(name: PathName, load: () => Promise<{ default: React.ComponentType
   };
 }
 
+/** Nothing to show: the index route's loader sends every user to their own landing page. */
+function Redirecting() {
+  return null;
+}
+
 export function createAppRouter(queryClient: QueryClient) {
   const requireSession = async ({ request }: { request: Request }) => {
     const user = await queryClient.ensureQueryData(sessionQueries.me());
@@ -56,6 +61,8 @@ export function createAppRouter(queryClient: QueryClient) {
             const user = await requireSession({ request });
             return redirect(landingFor[user.role]);
           },
+          // The loader always redirects; a component keeps React Router from warning about an empty leaf route.
+          Component: Redirecting,
         },
         page('cases', () => import('./routes/cases/case-list')),
         page('caseNew', () => import('./routes/cases/register-case')),

@@ -42,7 +42,7 @@ export function ControlTable({ controls, caption }: { controls: RunControlResult
               <td className="py-1 pr-3">{c.target ? `${fmt(c.target.mean)} ± ${fmt(c.target.sd, 3)}` : '—'}</td>
               <td className={`py-1 pr-3 ${c.z !== null && Math.abs(c.z) > 2 ? 'font-semibold' : ''}`}>
                 {zText(c.z)}
-                {c.z !== null && Math.abs(c.z) > 2 ? <span className="ml-1 text-xs">(beyond 2 SD)</span> : null}
+                {c.z !== null && Math.abs(c.z) > 2 ? <span className="ml-1 text-xs">(beyond {Math.abs(c.z) > 3 ? 3 : 2} SD)</span> : null}
               </td>
               <td className="py-1 pr-3 text-xs text-ink-soft">{c.groups.map((g) => `r${g.replicate} ${fmt(g.activity)}`).join(', ')}</td>
             </tr>
