@@ -1,7 +1,6 @@
+import { FormFooter } from '@/components/ui/form-footer';
 import { useState } from 'react';
-import { Button } from '@/components/ui/button';
 import { SelectField, TextArea, TextField } from '@/components/ui/field';
-import { Notice } from '@/components/ui/layout';
 import { applyServerError, useUnsavedChangesPrompt, useZodForm } from '@/lib/form';
 import {
   absorbanceDirections,
@@ -68,19 +67,7 @@ export function DefinitionEditor({ definition, onDone }: { definition: AssayDefi
       <div className="sm:col-span-3">
         <TextArea label="What changed and why" registration={form.register('changeNote')} error={form.formState.errors.changeNote?.message} />
       </div>
-      {formError ? (
-        <div className="sm:col-span-3">
-          <Notice tone="error">{formError}</Notice>
-        </div>
-      ) : null}
-      <div className="flex gap-2 sm:col-span-3">
-        <Button type="submit" disabled={save.isPending}>
-          {save.isPending ? 'Saving…' : 'Save as a draft for a second director'}
-        </Button>
-        <Button variant="quiet" onClick={onDone}>
-          Cancel
-        </Button>
-      </div>
+      <FormFooter error={formError} saving={save.isPending} saveLabel="Save as a draft for a second director" onCancel={onDone} columns={3} />
     </form>
   );
 }

@@ -1,3 +1,4 @@
+import { FormFooter } from '@/components/ui/form-footer';
 import { useQuery } from '@tanstack/react-query';
 import { useState } from 'react';
 import { Link } from 'react-router-dom';
@@ -39,19 +40,7 @@ function NewMaterialForm({ onDone }: { onDone: () => void }) {
       <div className="sm:col-span-3">
         <TextArea label="Description (optional)" registration={form.register('description')} error={errors.description?.message} />
       </div>
-      {message ? (
-        <div className="sm:col-span-4">
-          <Notice tone="error">{message}</Notice>
-        </div>
-      ) : null}
-      <div className="flex gap-2 sm:col-span-4">
-        <Button type="submit" disabled={create.isPending}>
-          {create.isPending ? 'Saving…' : 'Add the material'}
-        </Button>
-        <Button variant="quiet" onClick={onDone}>
-          Cancel
-        </Button>
-      </div>
+      <FormFooter error={message} saving={create.isPending} saveLabel="Add the material" onCancel={onDone} columns={4} />
     </form>
   );
 }

@@ -1,7 +1,6 @@
+import { FormFooter } from '@/components/ui/form-footer';
 import { useState } from 'react';
-import { Button } from '@/components/ui/button';
 import { TextArea, TextField } from '@/components/ui/field';
-import { Notice } from '@/components/ui/layout';
 import { applyServerError, useZodForm } from '@/lib/form';
 import { editDraftBodySchema, type StoredInterval } from '@/schemas/reference-interval-api';
 import { useEditDraft } from '../api/change-interval-status';
@@ -50,19 +49,7 @@ export function EditDraftForm({ interval, onClose }: { interval: StoredInterval;
       <div className="sm:col-span-4">
         <TextArea label="Source" registration={form.register('sourceNote')} error={errors.sourceNote?.message} />
       </div>
-      {message ? (
-        <div className="sm:col-span-4">
-          <Notice tone="error">{message}</Notice>
-        </div>
-      ) : null}
-      <div className="flex gap-2 sm:col-span-4">
-        <Button type="submit" disabled={edit.isPending}>
-          {edit.isPending ? 'Saving…' : 'Save the draft'}
-        </Button>
-        <Button variant="quiet" onClick={onClose}>
-          Cancel
-        </Button>
-      </div>
+      <FormFooter error={message} saving={edit.isPending} saveLabel="Save the draft" onCancel={onClose} columns={4} />
     </form>
   );
 }
