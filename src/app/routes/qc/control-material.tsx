@@ -1,4 +1,5 @@
-import { Link, useParams } from 'react-router-dom';
+import { Link } from 'react-router-dom';
+import { useRecordId } from '@/hooks/use-record-id';
 import { PageHeader } from '@/components/ui/layout';
 import { paths } from '@/config/paths';
 import { MaterialDetail } from '@/features/qc/components/material-detail';
@@ -6,10 +7,9 @@ import NotFoundPage from '../not-found';
 import { useApprovalViewer } from '../../use-approval-viewer';
 
 export default function ControlMaterialPage() {
-  const { id } = useParams();
+  const numeric = useRecordId();
   const viewer = useApprovalViewer();
-  const numeric = Number(id);
-  if (!Number.isInteger(numeric) || numeric < 1) return <NotFoundPage />;
+  if (numeric === null) return <NotFoundPage />;
   return (
     <>
       <PageHeader

@@ -1,6 +1,7 @@
 import { useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
-import { Link, useNavigate, useParams } from 'react-router-dom';
+import { Link, useNavigate } from 'react-router-dom';
+import { useRecordId } from '@/hooks/use-record-id';
 import { Card, Loading, Notice, PageHeader, ResultsCaution } from '@/components/ui/layout';
 import { paths } from '@/config/paths';
 import { reportKeys, reportPdfHref } from '@/features/reports/api/report-queries';
@@ -133,8 +134,7 @@ function ReviewCase({ caseId }: { caseId: number }) {
 }
 
 export default function ReviewCasePage() {
-  const { id } = useParams();
-  const numeric = Number(id);
-  if (!Number.isInteger(numeric) || numeric < 1) return <NotFoundPage />;
+  const numeric = useRecordId();
+  if (numeric === null) return <NotFoundPage />;
   return <ReviewCase key={numeric} caseId={numeric} />;
 }
