@@ -118,6 +118,8 @@ describe('reference intervals, in Chromium', () => {
     await cs.getByRole('button', { name: 'Save as a draft for a second director' }).click();
     await cs.getByText(/This laboratory has a single director, so you may approve it yourself/).waitFor();
     await cs.getByRole('button', { name: 'Approve version 2' }).click();
+    // The approval re-renders the section; open the versions only once it has landed (the button is gone).
+    await cs.getByRole('button', { name: 'Approve version 2' }).waitFor({ state: 'detached' });
     await cs.getByRole('button', { name: 'Versions' }).click();
     await cs.getByText(/v2 · approved .*approved by Dr Ilse Marchetti \(its own author\)/).waitFor();
     await screenshot(page, 'assay-definition-self-approved');
