@@ -48,6 +48,11 @@ describe('on a 390 px phone', () => {
       [`/cases/${inAssay.id}/assays`, 'phone-assays'],
       ['/intervals', 'phone-intervals'],
       ['/plate-maps', 'phone-plate-maps'],
+      ['/runs', 'phone-runs'],
+      // The demo's nineteenth run: rejected, then released by a director (a long file checksum and reason).
+      ['/runs/19', 'phone-run'],
+      ['/qc', 'phone-qc'],
+      ['/cohorts', 'phone-cohorts'],
     ] as const) {
       rows.push(await open(page, path, label));
     }

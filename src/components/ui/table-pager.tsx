@@ -32,7 +32,7 @@ export function TablePager<T>({
         {isPending ? '' : total === 0 ? `No ${noun.toLowerCase()}` : `${noun} ${n(first)}–${n(last)} of ${n(total)}`}
         {isFetching && !isPending ? <span className="ml-2 text-ink-faint">updating…</span> : null}
       </p>
-      <div className="flex items-center gap-2">
+      <div className="flex flex-wrap items-center gap-2">
         <label className="flex items-center gap-1.5">
           Rows
           <select className="rounded border border-paper-line bg-paper-raised px-1.5 py-1" value={pageSize} onChange={(e) => table.setPageSize(Number(e.target.value))}>

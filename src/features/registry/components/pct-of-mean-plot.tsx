@@ -56,15 +56,18 @@ export function PctOfMeanPlot({ plots, members }: { plots: CohortPlots; members:
         <span>Box: middle half of the cohort, bar at the median (whole percent); line: lowest to highest</span>
         <span><span aria-hidden="true" className="text-copper-500">●</span> the cases on this page of the table</span>
       </figcaption>
-      <table className="sr-only">
-        <caption>Ratio to CS, % of reference mean, by complex</caption>
-        <thead><tr><th>Complex</th><th>n</th><th>Lowest</th><th>Lower quartile</th><th>Median</th><th>Upper quartile</th><th>Highest</th></tr></thead>
-        <tbody>
-          {rows.map((r) => (
-            <tr key={r.assay}><td>{r.assay}</td><td>{r.n}</td><td>{r.min ?? '—'}</td><td>{r.q1 ?? '—'}</td><td>{r.median ?? '—'}</td><td>{r.q3 ?? '—'}</td><td>{r.max ?? '—'}</td></tr>
-          ))}
-        </tbody>
-      </table>
+      {/* A table ignores the 1 px width of sr-only; the wrapper carries it, so the hidden table cannot widen the page. */}
+      <div className="sr-only">
+        <table>
+          <caption>Ratio to CS, % of reference mean, by complex</caption>
+          <thead><tr><th>Complex</th><th>n</th><th>Lowest</th><th>Lower quartile</th><th>Median</th><th>Upper quartile</th><th>Highest</th></tr></thead>
+          <tbody>
+            {rows.map((r) => (
+              <tr key={r.assay}><td>{r.assay}</td><td>{r.n}</td><td>{r.min ?? '—'}</td><td>{r.q1 ?? '—'}</td><td>{r.median ?? '—'}</td><td>{r.q3 ?? '—'}</td><td>{r.max ?? '—'}</td></tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
     </figure>
   );
 }

@@ -165,7 +165,7 @@ export function RunDetailView({ run, canOverride }: { run: RunDetail; canOverrid
               {run.upload.filename}
             </a>{' '}
             <span className="text-ink-soft">
-              · {formatBytes(run.upload.sizeBytes)} · SHA-256 <span className="font-mono text-xs">{run.upload.sha256}</span>
+              · {formatBytes(run.upload.sizeBytes)} · SHA-256 <span className="font-mono text-xs break-all">{run.upload.sha256}</span>
             </span>
           </p>
         ) : (
