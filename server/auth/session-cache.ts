@@ -5,7 +5,8 @@ type SessionStoreLike = Pick<Store, 'get' | 'set' | 'destroy' | 'touch'>;
 
 /** How often a session's expiry is pushed forward (and its cookie sent again): at most once per interval. */
 export const SESSION_EXTEND_EVERY_MS = 5 * 60_000;
-const MAX_ENTRIES = 10_000;
+/** How many sessions one process keeps in memory; the next one empties the cache (it fills again as sessions are read). */
+export const SESSION_CACHE_MAX_ENTRIES = 10_000;
 /** How long a process serves its copy of a session from a store other processes also write (PostgreSQL). */
 export const SHARED_SESSION_CACHE_MS = 5_000;
 
@@ -47,7 +48,7 @@ export function cacheSessionReads(store: SessionStoreLike, opts: { maxAgeMs?: nu
   caches.add(cache);
   const remember = (sid: string, data: { [key: string]: Plain }) => {
     const expires = (data.cookie as { expires?: string } | null)?.expires;
-    if (cache.size >= MAX_ENTRIES) cache.clear();
+    if (cache.size >= SESSION_CACHE_MAX_ENTRIES) cache.clear();
     cache.set(sid, { data, expiresAt: expires ? Date.parse(expires) : Infinity, readAt: Date.now() });
   };
 

@@ -1,0 +1,26 @@
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { defineConfig } from 'vitest/config';
+
+// Mutation testing of server/auth's database-bound code (`npm run mutation:auth`, stryker.auth.config.json):
+// sign-in, passport, ending sessions and the lock-out counter run only behind the HTTP layer and a database, so
+// besides the unit tests of server/auth this runs the focused API tests of signing in (tests/api/auth-*.api.test.ts:
+// cheap password hashes, one in-memory database per file). supertest drives the app in the same process, so
+// Stryker's per-test coverage sees the code each test reaches. The heavier API files (auth, account-security,
+// trust-proxy, request-path) can be added here; each adds its set-up time to every mutant it covers.
+const root = path.dirname(fileURLToPath(import.meta.url));
+
+export default defineConfig({
+  resolve: { alias: { '@': path.resolve(root, 'src') } },
+  test: {
+    name: 'mutation-auth',
+    environment: 'node',
+    include: [
+      'tests/unit/server/auth/**/*.test.ts',
+      'tests/api/auth-*.api.test.ts',
+    ],
+    setupFiles: ['tests/setup/node.ts'],
+    testTimeout: 30_000,
+    hookTimeout: 60_000,
+  },
+});
