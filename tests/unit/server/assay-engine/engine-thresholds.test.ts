@@ -1,0 +1,103 @@
+import { describe, expect, it } from 'vitest';
+import { defaultAssayDefinitions, type AssayDefinition, type FlagCode, type Trace } from '@/schemas/assay';
+import type { AssayCode } from '@/schemas/common';
+import { calculateActivity, calculateActivityFromRates } from '../../../../server/domain/assay-engine/engine';
+
+/*
+ * The engine's per-definition limits exactly at, just below and just above the limit. Typed rates keep the
+ * arithmetic exact. Limits: near-zero slope 0.001 A/min, background share 70%, plausible ceiling per assay,
+ * photometer linear range 0–2 A (defaults in src/schemas/assay.ts, each lab-set [common practice]).
+ * Activity = |ΔA/min| × V_r·1000 / (ε·l·V_s·protein) (docs/domain.md §1 [derived]); with ε 20, l 1 cm,
+ * V_r 1000 µL, V_s 50 µL and 1 mg/mL the factor is 10⁶ / (20 × 50) = 1000 exactly [derived by hand].
+ */
+
+const def = (code: AssayCode, over: Partial<AssayDefinition> = {}): AssayDefinition => ({
+  ...defaultAssayDefinitions.find((d) => d.code === code)!,
+  ...over,
+});
+const codes = (r: { flags: { code: FlagCode }[] }) => r.flags.map((f) => f.code);
+const cuvette = { pathlengthCm: 1, reactionVolumeUl: 1000, sampleVolumeUl: 50, proteinMgPerMl: 1 };
+
+const rates = (assay: AssayCode, total: number, background: number | null, definition = def(assay)) =>
+  calculateActivityFromRates({ assay, ...cuvette, totalRatePerMin: total, backgroundRatePerMin: background }, definition);
+
+describe('near-zero slope (|specific| below 0.001 A/min is flagged)', () => {
+  it('exactly 0.001 is measurable; 0.000999 is flagged; 0.001001 is not', () => {
+    // CIV subtracts nothing, so the specific slope is the total (falls: negative).
+    expect(codes(rates('CIV', -0.001, null))).not.toContain('NEAR_ZERO');
+    expect(codes(rates('CIV', -0.000999, null))).toContain('NEAR_ZERO');
+    expect(codes(rates('CIV', -0.001001, null))).not.toContain('NEAR_ZERO');
+  });
+
+  it('the flag names the slope and the limit, and still gives the number', () => {
+    const r = rates('CIV', -0.0005, null);
+    expect(r.flags.find((f) => f.code === 'NEAR_ZERO')!.message).toBe(
+      "Specific slope -0.0005 /min is within ±0.001 /min of zero, the laboratory's limit of a measurable rate",
+    );
+    expect(r.activity).not.toBeNull();
+  });
+
+  it('a specific slope of exactly 0 is near zero but not of the wrong sign', () => {
+    const r = rates('CIV', 0, null);
+    expect(codes(r)).toContain('NEAR_ZERO');
+    expect(codes(r)).not.toContain('WRONG_SIGN');
+    expect(r.activity).toBe(0);
+  });
+
+  it('the smallest slope of the wrong sign is refused', () => {
+    const r = rates('CIV', 1e-12, null);
+    expect(codes(r)).toContain('WRONG_SIGN');
+    expect(r.activity).toBeNull();
+  });
+});
+
+describe('background share of the total rate (above 70% is flagged)', () => {
+  // CI with rotenone: total −0.5, background −0.35 → 70% exactly [analytic: 0.35/0.5].
+  it('exactly 70% no flag; 70.1% flagged; 69.9% no flag', () => {
+    expect(codes(rates('CI', -0.5, -0.35))).not.toContain('HIGH_BACKGROUND_FRACTION');
+    const high = rates('CI', -0.5, -0.3505);
+    expect(codes(high)).toContain('HIGH_BACKGROUND_FRACTION');
+    expect(high.flags.find((f) => f.code === 'HIGH_BACKGROUND_FRACTION')!.values!.backgroundPct).toBeCloseTo(70.1, 9);
+    expect(codes(rates('CI', -0.5, -0.3495))).not.toContain('HIGH_BACKGROUND_FRACTION');
+  });
+
+  it('a background running the other way is no share of the total', () => {
+    expect(codes(rates('CI', -0.5, 0.4))).not.toContain('HIGH_BACKGROUND_FRACTION');
+  });
+
+  it('the message says which inhibitor and how much of the total is left', () => {
+    const f = rates('CI', -0.5, -0.4).flags.find((x) => x.code === 'HIGH_BACKGROUND_FRACTION')!;
+    // 0.4 / 0.5 = 80% with rotenone; 20% is CI [analytic].
+    expect(f.message).toMatch(/^The rate with rotenone \(inhibitor-insensitive\) is 80% of the total rate \(limit 70%\): only 20% is the CI activity/);
+  });
+});
+
+describe('plausible activity ceiling (above it no activity is given)', () => {
+  // ε 20 with the cuvette above: factor 1000, so 0.1 A/min is 100 nmol/min/mg exactly [derived by hand].
+  const cs = (ceiling: number) => def('CS', { epsilonPerMmPerCm: 20, plausibleActivityMax: ceiling });
+  it('activity exactly at the ceiling is given; a ceiling just below it refuses; just above gives it', () => {
+    expect(rates('CS', 0.1, 0, cs(100)).activity).toBe(100);
+    const refused = rates('CS', 0.1, 0, cs(99.99));
+    expect(refused.activity).toBeNull();
+    expect(codes(refused)).toContain('IMPLAUSIBLE_ACTIVITY');
+    expect(refused.flags.find((f) => f.code === 'IMPLAUSIBLE_ACTIVITY')!.values).toEqual({ computed: 100, ceiling: 99.99 });
+    expect(rates('CS', 0.1, 0, cs(100.01)).activity).toBe(100);
+  });
+});
+
+describe('photometer linear range (readings outside 0–2 A are flagged)', () => {
+  // A falling CIV line, one reading every 10 s for 2 min, starting at a chosen absorbance.
+  const line = (a0: number): Trace => Array.from({ length: 13 }, (_, i) => ({ t: i * 10, a: a0 - 0.01 * i }));
+  const civ = (total: Trace) =>
+    calculateActivity({ assay: 'CIV', ...cuvette, total }, def('CIV'));
+  it('a first reading of exactly 2 A is inside; 2.001 is outside; 1.999 is inside', () => {
+    expect(codes(civ(line(2)))).not.toContain('OUT_OF_LINEAR_RANGE');
+    expect(codes(civ(line(2.001)))).toContain('OUT_OF_LINEAR_RANGE');
+    expect(codes(civ(line(1.999)))).not.toContain('OUT_OF_LINEAR_RANGE');
+  });
+
+  it('a last reading of exactly 0 A is inside; below 0 is outside', () => {
+    expect(codes(civ(line(0.12)))).not.toContain('OUT_OF_LINEAR_RANGE');
+    expect(codes(civ(line(0.119)))).toContain('OUT_OF_LINEAR_RANGE');
+  });
+});
