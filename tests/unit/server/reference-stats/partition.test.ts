@@ -100,3 +100,80 @@ describe('summarizeGroup', () => {
     expect(() => summarizeGroup('infants', [3])).toThrow(/"infants" needs at least 2 values/);
   });
 });
+
+describe('checkPartition: refusals name the group and field, reasons name the wider group', () => {
+  // Bad input gets a clear error naming the field [house rule]; both Harris & Boyd statistics need n ≥ 2, a
+  // finite mean and an SD above 0 per group [analytic: the standard error is undefined otherwise].
+  const ok = { label: 'ok', n: 30, mean: 10, sd: 2 };
+  const refusal = (a: typeof ok, b: typeof ok) => {
+    try {
+      checkPartition(a, b);
+    } catch (error) {
+      expect(error).toBeInstanceOf(ReferenceStatsInputError);
+      return { field: (error as ReferenceStatsInputError).field, message: (error as Error).message };
+    }
+    throw new Error('expected a refusal');
+  };
+
+  it('n of 1 refused, n of 2 accepted; a fractional n refused', () => {
+    expect(refusal({ ...ok, label: 'infants', n: 1 }, ok)).toEqual({ field: 'a.n', message: 'Group "infants" needs at least 2 values' });
+    expect(refusal(ok, { ...ok, label: 'teens', n: 2.5 })).toEqual({ field: 'b.n', message: 'Group "teens" needs at least 2 values' });
+    expect(checkPartition({ ...ok, n: 2 }, { ...ok, n: 2 }).decision).toBe('combine');
+  });
+
+  it('a non-finite mean refused on that group', () => {
+    expect(refusal(ok, { ...ok, label: 'adults', mean: Number.NaN })).toEqual({
+      field: 'b.mean',
+      message: 'Group "adults" has no finite mean',
+    });
+    expect(refusal({ ...ok, mean: Number.POSITIVE_INFINITY }, ok).field).toBe('a.mean');
+  });
+
+  it('an SD of 0, below 0 or not finite refused on that group', () => {
+    expect(refusal({ ...ok, label: 'flat', sd: 0 }, ok)).toEqual({
+      field: 'a.sd',
+      message: 'Group "flat" needs an SD above 0 (are all its values identical?)',
+    });
+    expect(refusal(ok, { ...ok, sd: -1 }).field).toBe('b.sd');
+    expect(refusal(ok, { ...ok, sd: Number.NaN }).field).toBe('b.sd');
+    expect(refusal({ ...ok, sd: Number.POSITIVE_INFINITY }, ok).field).toBe('a.sd');
+  });
+
+  it('when the first group is the wider one, the reason names it; both reasons are joined', () => {
+    // z = 0.5/√(256/100 + 100/100) = 0.265; SD ratio 16/10 = 1.6 > 1.5 [from memory].
+    const r = checkPartition({ label: 'boys', n: 100, mean: 50.5, sd: 16 }, { label: 'girls', n: 100, mean: 50, sd: 10 });
+    expect(r.reason).toBe('Separate intervals: the SD of "boys" is 1.60 times the other (limit 1.5).');
+    // Means 100 and 112 as in the first worked example, and SDs 20 and 32: z = 12/√(400/60 + 1024/80) = 2.72 >
+    // 2.29, SD ratio 1.6 > 1.5 — both rules fire.
+    const both = checkPartition({ label: 'a', n: 60, mean: 100, sd: 20 }, { label: 'b', n: 80, mean: 112, sd: 32 });
+    expect(both.reason).toBe(
+      'Separate intervals: the means differ: z = 2.72 exceeds the critical 2.29; the SD of "b" is 1.60 times the other (limit 1.5).',
+    );
+  });
+
+  it('a combine decision explains both statistics against their limits', () => {
+    // The second worked example above: z = 1.5492, critical 3, SD ratio 1.
+    const r = checkPartition({ label: 'A', n: 120, mean: 100, sd: 15 }, { label: 'B', n: 120, mean: 103, sd: 15 });
+    expect(r.reason).toBe('One interval: z = 1.55 is within the critical 3.00 and the SD ratio 1.00 is within 1.5.');
+    expect(r.sdRatioLimit).toBe(1.5);
+    expect(r.groups.map((g) => g.label)).toEqual(['A', 'B']);
+  });
+
+  it('summarizeGroup names its field and refuses a non-finite value', () => {
+    try {
+      summarizeGroup('infants', [1, Number.NaN]);
+      expect.unreachable();
+    } catch (error) {
+      expect((error as ReferenceStatsInputError).field).toBe('groups.infants');
+    }
+    try {
+      summarizeGroup('infants', []);
+      expect.unreachable();
+    } catch (error) {
+      expect((error as ReferenceStatsInputError).field).toBe('groups.infants');
+      expect((error as Error).message).toBe('Group "infants" needs at least 2 values; got 0');
+    }
+    // Two equal values: SD 0 [analytic], returned as 0 (checkPartition then refuses it).
+    expect(summarizeGroup('pair', [4, 4]).sd).toBe(0);
+  });
+});
