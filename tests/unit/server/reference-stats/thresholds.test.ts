@@ -2,7 +2,7 @@ import * as ss from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
 import { deriveInterval } from '../../../../server/domain/reference-stats/derive';
 import { ReferenceStatsInputError } from '../../../../server/domain/reference-stats/errors';
-import { nonparametricInterval } from '../../../../server/domain/reference-stats/nonparametric';
+import { nonparametricCiRanks, nonparametricInterval } from '../../../../server/domain/reference-stats/nonparametric';
 import { screenDixonReed, screenTukey } from '../../../../server/domain/reference-stats/outliers';
 import { meanTwoSdInterval, pctOfMeanInterval } from '../../../../server/domain/reference-stats/parametric';
 import { percentileEp28, valueAtRank } from '../../../../server/domain/reference-stats/quantiles';
@@ -275,5 +275,43 @@ describe('outlier screens at their limits', () => {
     const fence = q3 + 1.5 * (q3 - q1); // simple-statistics quantile (type 7) [common practice]
     expect(screenTukey([...base, fence]).excluded).toEqual([]);
     expect(screenTukey([...base, fence + 1e-9]).excluded).toEqual([fence + 1e-9]);
+  });
+});
+
+describe('smallest n that has a 90% confidence interval of the 2.5th percentile', () => {
+  // The CI's lower rank cannot go below 1, so it exists only when P(X = 0) = 0.975ⁿ ≤ 5% for X ~ Bin(n, 0.025):
+  // 0.975¹¹⁸ = 0.0504 > 0.05, 0.975¹¹⁹ = 0.0492 ≤ 0.05 [derived by hand; simple-statistics binomial below].
+  it('n = 118 has none and is refused on "values"; n = 119 has ranks 1–7 [derived]', () => {
+    expect(ss.binomialDistribution(118, 0.025)![0]).toBeGreaterThan(0.05);
+    expect(ss.binomialDistribution(119, 0.025)![0]).toBeLessThanOrEqual(0.05);
+    expect(fieldOf(() => nonparametricCiRanks(118))).toBe('values');
+    expect(() => nonparametricCiRanks(118)).toThrow('n = 118 is too small for a 90% confidence interval of the 2.5th percentile');
+    const r = nonparametricCiRanks(119);
+    expect(r.lowerCi[0]).toBe(1);
+    expect(r.upperCi[1]).toBe(119);
+  });
+
+  it('nonparametricInterval reports the CI order statistics and ranks of 1..120 [from memory: EP28-A3c 1–7, 114–120]', () => {
+    const r = nonparametricInterval(Array.from({ length: 120 }, (_, i) => 120 - i));
+    expect(r.lowerCi).toEqual([1, 7]);
+    expect(r.upperCi).toEqual([114, 120]);
+    expect(r.ranks.lower).toBeCloseTo(3.025, 12);
+    expect(r.ranks.upper).toBeCloseTo(117.975, 12);
+  });
+});
+
+describe('descriptive statistics', () => {
+  it('the mean of ten 0.1 values is 0.1: compensated summation [from memory: Kahan 1965] where a plain loop gives 0.0999…', () => {
+    const tenths = Array(10).fill(0.1);
+    // The plain left-to-right sum is 0.9999999999999999 in IEEE doubles [analytic].
+    expect(tenths.reduce((a, b) => a + b, 0)).not.toBe(1);
+    expect(deriveInterval({ method: 'pct_of_mean', outliers: 'none', values: tenths, pctLower: 50, pctUpper: 150 }).mean).toBe(0.1);
+  });
+
+  it('a non-finite value is refused naming its position (1-based)', () => {
+    expect(() => deriveInterval({ method: 'pct_of_mean', outliers: 'none', values: [1, 2, Number.NaN] })).toThrow(
+      'Value 3 is not a finite number',
+    );
+    expect(fieldOf(() => deriveInterval({ method: 'pct_of_mean', outliers: 'none', values: [Number.POSITIVE_INFINITY, 1, 2] }))).toBe('values');
   });
 });
