@@ -1,7 +1,9 @@
+import { linearRegression, linearRegressionLine, rSquared } from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
 import { defaultAssayDefinitions, type AssayDefinition, type FlagCode, type Trace } from '@/schemas/assay';
 import type { AssayCode } from '@/schemas/common';
 import { calculateActivity, calculateActivityFromRates } from '../../../../server/domain/assay-engine/engine';
+import { isStraight, type WindowShape } from '../../../../server/domain/assay-engine/linearity';
 
 /*
  * The engine's per-definition limits exactly at, just below and just above the limit. Typed rates keep the
@@ -99,5 +101,54 @@ describe('photometer linear range (readings outside 0–2 A are flagged)', () =>
   it('a last reading of exactly 0 A is inside; below 0 is outside', () => {
     expect(codes(civ(line(0.12)))).not.toContain('OUT_OF_LINEAR_RANGE');
     expect(codes(civ(line(0.119)))).toContain('OUT_OF_LINEAR_RANGE');
+  });
+});
+
+describe('r² threshold of a chosen window (below it is flagged)', () => {
+  // y = 0.5 − 0.01·i + 0.01·e_i with e = (1, −2, 0, 2, −1), which is orthogonal to 1 and to i, so
+  // SSE = 10·10⁻⁴ and SST = (10 + 10)·10⁻⁴: r² = 1 − 10/20 = 0.5 [analytic]; simple-statistics agrees.
+  const e = [1, -2, 0, 2, -1];
+  const total: Trace = e.map((ei, i) => ({ t: i * 15, a: 0.5 - 0.01 * i + 0.01 * ei }));
+  const run = (r2Threshold: number) =>
+    calculateActivity({ assay: 'CIV', ...cuvette, total, window: { fromS: 0, toS: 60 } }, def('CIV', { r2Threshold }));
+
+  it('the window r² is the analytic 0.5 (simple-statistics rSquared)', () => {
+    const data = total.map((p) => [p.t, p.a]);
+    const expected = rSquared(data, linearRegressionLine(linearRegression(data)));
+    expect(expected).toBeCloseTo(0.5, 12);
+    expect(run(0.9).r2).toBeCloseTo(expected, 12);
+  });
+
+  it('a threshold equal to the r² does not flag; just above flags; just below does not', () => {
+    const r2 = run(0.9).r2!;
+    expect(codes(run(r2))).not.toContain('LOW_R2');
+    expect(codes(run(r2 + 1e-9))).toContain('LOW_R2');
+    expect(codes(run(r2 - 1e-9))).not.toContain('LOW_R2');
+  });
+});
+
+describe('curvature limit (a significant change larger than the limit is not straight)', () => {
+  // The window's rate may change by at most the laboratory's limit, default 5% [common practice in kinetic-assay
+  // software; docs/domain.md §5a]; only a statistically significant curvature counts.
+  const shape = (changePct: number, significant: boolean): WindowShape => ({
+    n: 10,
+    slopePerMin: -0.05,
+    slopeSePerMin: 0.001,
+    startSlopePerMin: -0.05,
+    changePct,
+    curvatureT: significant ? 10 : 0.5,
+    significant,
+    r2: 0.999,
+  });
+  it('exactly 5% either way is straight; 5.001% is not; 4.999% is', () => {
+    expect(isStraight(shape(-5, true), 5)).toBe(true);
+    expect(isStraight(shape(5, true), 5)).toBe(true);
+    expect(isStraight(shape(-5.001, true), 5)).toBe(false);
+    expect(isStraight(shape(5.001, true), 5)).toBe(false);
+    expect(isStraight(shape(-4.999, true), 5)).toBe(true);
+  });
+
+  it('a large change that is not significant is still straight', () => {
+    expect(isStraight(shape(-40, false), 5)).toBe(true);
   });
 });
