@@ -4,6 +4,7 @@ import { defaultAssayDefinitions, type AssayDefinition, type FlagCode, type Trac
 import type { AssayCode } from '@/schemas/common';
 import { calculateActivity, calculateActivityFromRates } from '../../../../server/domain/assay-engine/engine';
 import { isStraight, type WindowShape } from '../../../../server/domain/assay-engine/linearity';
+import { curveAbsorbance, fitProteinCurve, interpolateProtein } from '../../../../server/domain/assay-engine/protein';
 
 /*
  * The engine's per-definition limits exactly at, just below and just above the limit. Typed rates keep the
@@ -150,5 +151,56 @@ describe('curvature limit (a significant change larger than the limit is not str
 
   it('a large change that is not significant is still straight', () => {
     expect(isStraight(shape(-40, false), 5)).toBe(true);
+  });
+});
+
+describe('protein: dilution factor and the range of the standards', () => {
+  // Never extrapolate beyond the standards [common practice for standard curves]; a dilution factor below 1
+  // would be a concentration step, not a dilution [analytic]. Standards on A = 0.1 + 0.5·c exactly.
+  const curve = fitProteinCurve(
+    [0, 0.5, 1, 2].map((c) => ({ concentrationMgPerMl: c, absorbance: 0.1 + 0.5 * c })),
+    'linear',
+  );
+  it('dilution exactly 1 accepted, 0.999 refused naming the field', () => {
+    // 0.6 on A = 0.1 + 0.5c is 1 mg/mL [analytic].
+    expect(interpolateProtein(curve, { absorbances: [0.6], dilutionFactor: 1 }).mgPerMl).toBeCloseTo(1, 10);
+    const r = interpolateProtein(curve, { absorbances: [0.6], dilutionFactor: 0.999 });
+    expect(r.mgPerMl).toBeNull();
+    expect(r.flags).toEqual([{ code: 'NON_FINITE', message: 'dilutionFactor must be a finite number of at least 1 (got 0.999)' }]);
+  });
+
+  it('an unknown reading exactly at the highest or lowest standard is read; just beyond is refused', () => {
+    const top = curveAbsorbance(curve, 2);
+    const bottom = curveAbsorbance(curve, 0);
+    expect(top).toBeCloseTo(1.1, 10);
+    expect(interpolateProtein(curve, { absorbances: [top], dilutionFactor: 1 }).mgPerMl).toBeCloseTo(2, 9);
+    expect(interpolateProtein(curve, { absorbances: [bottom], dilutionFactor: 1 }).mgPerMl).toBeCloseTo(0, 9);
+    const above = interpolateProtein(curve, { absorbances: [top + 1e-9], dilutionFactor: 1 });
+    expect(above.mgPerMl).toBeNull();
+    expect(above.flags[0]!.message).toMatch(/^Absorbance 1\.1 is above the highest standard \(2 mg\/mL reads 1\.1\): dilute further/);
+    const below = interpolateProtein(curve, { absorbances: [bottom - 1e-9], dilutionFactor: 1 });
+    expect(below.flags[0]!.message).toMatch(/is below the lowest standard \(0 mg\/mL reads 0\.1\): dilute less/);
+  });
+});
+
+describe('time between readings (at least 1 ms, times strictly increasing)', () => {
+  // No photometer reads faster than 1 ms apart [our choice, documented in trace.ts].
+  const civ = (times: number[]) =>
+    calculateActivity(
+      { assay: 'CIV', ...cuvette, total: times.map((t, i) => ({ t, a: 1 - 0.001 * i })) },
+      def('CIV'),
+    );
+  const later = [10, 20, 30, 40, 50, 60];
+  it('1 ms apart is accepted; 0.9 ms is refused as too fast; the same time twice as not increasing', () => {
+    expect(codes(civ([0, 0.001, ...later]))).not.toContain('TIME_NOT_INCREASING');
+    const fast = civ([0, 0.0009, ...later]);
+    expect(fast.flags.find((f) => f.code === 'TIME_NOT_INCREASING')!.message).toBe(
+      'total trace, reading 2: time 0.0009 s is less than 1 ms after the previous reading (0 s); no photometer reads that fast',
+    );
+    expect(fast.activity).toBeNull();
+    const same = civ([0, 0, ...later]);
+    expect(same.flags.find((f) => f.code === 'TIME_NOT_INCREASING')!.message).toBe(
+      'total trace, reading 2: time 0 s is not after the previous reading (0 s); times must strictly increase',
+    );
   });
 });
