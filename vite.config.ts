@@ -22,6 +22,8 @@ export default defineConfig({
           environment: 'node',
           include: ['tests/unit/server/**/*.test.ts', 'tests/unit/schemas/**/*.test.ts', 'tests/api/**/*.test.ts'],
           setupFiles: ['tests/setup/node.ts'],
+          // One migrated and seeded SQLite database per run, copied into each API test file's in-memory database.
+          globalSetup: ['tests/setup/sqlite-template.ts'],
           testTimeout: 20_000,
           hookTimeout: 30_000,
         },
@@ -57,6 +59,8 @@ export default defineConfig({
           environment: 'jsdom',
           include: ['tests/ui/**/*.test.tsx', 'tests/unit/client/**/*.test.ts?(x)'],
           setupFiles: ['tests/setup/jsdom.ts'],
+          // Page tests fed by the real app in-process (tests/setup/real-app-fetch.ts) copy the same seeded database.
+          globalSetup: ['tests/setup/sqlite-template.ts'],
         },
       },
       {

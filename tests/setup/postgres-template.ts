@@ -1,10 +1,6 @@
-import { initModels } from '../../server/db/models';
-import { migrate } from '../../server/db/migrate';
-import { seedDemoIfEmpty } from '../../server/db/seed/demo';
 import { openDatabase } from '../../server/db/sequelize';
-import { ensureDefaultDefinitions } from '../../server/modules/assay-definitions/assay-definitions.service';
+import { prepareDemoDatabase } from './demo-database';
 import { createPostgresDatabase, TEMPLATE_DATABASE } from './test-database';
-import { DEMO_PASSWORD } from './test-app';
 
 /**
  * Global set-up of the "api-pg" project: one database migrated and seeded exactly as makeTestApp() would, which
@@ -14,10 +10,7 @@ import { DEMO_PASSWORD } from './test-app';
 export default async function setup(): Promise<() => Promise<void>> {
   const template = await createPostgresDatabase(TEMPLATE_DATABASE);
   const sequelize = await openDatabase(template.url);
-  initModels(sequelize);
-  await migrate(sequelize);
-  await ensureDefaultDefinitions(sequelize);
-  await seedDemoIfEmpty(sequelize, DEMO_PASSWORD);
+  await prepareDemoDatabase(sequelize);
   await sequelize.close();
   return template.drop;
 }

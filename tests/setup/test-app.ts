@@ -3,15 +3,13 @@ import type { Sequelize } from 'sequelize';
 import request from 'supertest';
 import { createApp, type AppOptions } from '../../server/app';
 import { loadConfig } from '../../server/config';
-import { initModels } from '../../server/db/models';
-import { migrate } from '../../server/db/migrate';
-import { demoAccounts, seedDemoIfEmpty } from '../../server/db/seed/demo';
+import { demoAccounts } from '../../server/db/seed/demo';
+import { DEMO_PASSWORD, prepareDemoDatabase } from './demo-database';
 import { openTestDatabase } from './test-database';
-import { ensureDefaultDefinitions } from '../../server/modules/assay-definitions/assay-definitions.service';
 import type { Role } from '@/schemas/common';
 
 export const ORIGIN = 'http://localhost:3000';
-export const DEMO_PASSWORD = 'cristae-demo';
+export { DEMO_PASSWORD };
 
 export type TestApp = {
   app: Express;
@@ -33,15 +31,13 @@ function sameOriginAgent(app: Express) {
 
 /**
  * A fresh database with migrations and the demo seed, and an app on top of it: in-memory SQLite, or a database
- * of its own on the PostgreSQL test server (tests/setup/test-database.ts), dropped by close().
+ * of its own on the PostgreSQL test server (tests/setup/test-database.ts), dropped by close(). The database is a
+ * copy of the run's seeded template; the migrations and the seed still run on it and find nothing to do.
  */
 export async function makeTestApp(overrides: Partial<AppOptions> = {}): Promise<TestApp> {
   const db = await openTestDatabase({ seeded: true });
   const sequelize = db.sequelize;
-  initModels(sequelize);
-  await migrate(sequelize);
-  await ensureDefaultDefinitions(sequelize);
-  await seedDemoIfEmpty(sequelize, DEMO_PASSWORD);
+  await prepareDemoDatabase(sequelize);
   const config = loadConfig({ NODE_ENV: 'test', PORT: '3000', DEMO_PASSWORD });
   const app = createApp({ sequelize, config, loginAttemptsPerWindow: 1000, ...overrides });
   const withOptions = (more: Partial<AppOptions>) => createApp({ sequelize, config, loginAttemptsPerWindow: 1000, ...overrides, ...more });

@@ -1,7 +1,9 @@
 import { randomBytes } from 'node:crypto';
 import pg from 'pg';
 import type { Sequelize } from 'sequelize';
+import { inject } from 'vitest';
 import { openDatabase } from '../../server/db/sequelize';
+import { copySqliteDatabase, SQLITE_TEMPLATE_KEY } from './demo-database';
 
 /**
  * Which database the API tests run on: SQLite in memory (project "node"), or PostgreSQL (project "api-pg", run
@@ -46,12 +48,16 @@ export async function createPostgresDatabase(
 }
 
 /**
- * A fresh database of the dialect under test, one per test file: an empty in-memory SQLite, or on PostgreSQL a
- * copy of the migrated and seeded template (`seeded`), else an empty database.
+ * A fresh database of the dialect under test, one per test file: an in-memory SQLite, or a database of its own
+ * on the PostgreSQL server; with `seeded`, a copy of the run's migrated and seeded template
+ * (tests/setup/sqlite-template.ts, tests/setup/postgres-template.ts), else empty. A SQLite run without the
+ * template (a configuration without that global set-up) starts empty and makeTestApp() seeds it in place.
  */
 export async function openTestDatabase(opts: { seeded?: boolean } = {}): Promise<TestDatabase> {
   if (testDialect === 'sqlite') {
     const sequelize = await openDatabase(':memory:');
+    const template = opts.seeded ? inject(SQLITE_TEMPLATE_KEY) : undefined;
+    if (template) await copySqliteDatabase(sequelize, template, 'from-file');
     return { sequelize, url: ':memory:', drop: () => sequelize.close() };
   }
   const db = await createPostgresDatabase(undefined, opts.seeded ? TEMPLATE_DATABASE : undefined);
