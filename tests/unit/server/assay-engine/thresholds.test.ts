@@ -68,6 +68,8 @@ describe('findInterval: age band edges (lower bound inclusive, upper bound exclu
     expect(findInterval([from5], 'CS', 'activity', muscleAt(120))?.id).toBe('from-5');
     // Half-open bands never match an unknown age; only an all-age interval does.
     expect(findInterval([upTo5, from5], 'CS', 'activity', muscleAt(null))).toBeNull();
+    const allAges = interval({ id: 'all-ages' });
+    expect(findInterval([upTo5, allAges, from5], 'CS', 'activity', muscleAt(null))?.id).toBe('all-ages');
   });
 
   it('other assay, measure or specimen type never match', () => {
