@@ -5,12 +5,15 @@ import { checkCredentials } from '../../server/auth/sign-in';
 import { createPassport, loginUser } from '../../server/auth/passport';
 import { forgetCachedSessions } from '../../server/auth/session-cache';
 import { endSessionsOfUser } from '../../server/auth/user-sessions';
+import { createApp, type AppOptions } from '../../server/app';
 import { loadConfig } from '../../server/config';
+import { initModels } from '../../server/db/models';
+import { migrate } from '../../server/db/migrate';
 import { writeTransaction } from '../../server/db/write-transaction';
 import { AuditEventModel } from '../../server/modules/audit/audit.model';
 import { UserModel } from '../../server/modules/users/user.model';
 import { insertUser } from '../../server/modules/users/users.repository';
-import { ORIGIN, makeTestApp, type TestApp } from '../setup/test-app';
+import { openTestDatabase, type TestDatabase } from '../setup/test-database';
 
 /*
  * Every threshold of signing in, tested at its edge (one below, on it, one above), against the written rules:
@@ -25,14 +28,24 @@ import { ORIGIN, makeTestApp, type TestApp } from '../setup/test-app';
  * - trust proxy: with n trusted hops the client is the n-th address from the right of X-Forwarded-For (Express
  *   "Express behind proxies" guide [from memory]; proxies append, RFC 7239 §1 [confirmed]).
  * Accounts here store scrypt hashes with tiny parameters (N = 16, r = 1, p = 1), made by node:crypto itself: the
- * stored form carries its parameters (RFC 7914 §2), so sign-in checks them cheaply and these tests stay fast.
+ * stored form carries its parameters (RFC 7914 §2), so sign-in checks them cheaply and these tests stay fast. The
+ * database is migrated but not seeded: every account here is made by the test (also why `npm run mutation:auth`
+ * can run this file for each mutant in seconds).
  */
 
-let t: TestApp;
+const ORIGIN = 'http://localhost:3000';
+const config = loadConfig({ NODE_ENV: 'test', PORT: '3000' });
+let db: TestDatabase;
+const t = {} as { app: ReturnType<typeof createApp>; sequelize: TestDatabase['sequelize']; withOptions: (o: Partial<AppOptions>) => ReturnType<typeof createApp> };
 beforeAll(async () => {
-  t = await makeTestApp();
-});
-afterAll(() => t.close());
+  db = await openTestDatabase();
+  initModels(db.sequelize);
+  await migrate(db.sequelize);
+  t.sequelize = db.sequelize;
+  t.withOptions = (o) => createApp({ sequelize: db.sequelize, config, loginAttemptsPerWindow: 1000, ...o });
+  t.app = t.withOptions({});
+}, 180_000);
+afterAll(() => db?.drop());
 
 function cheapHash(password: string): string {
   const salt = randomBytes(16);
