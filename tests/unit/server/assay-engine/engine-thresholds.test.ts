@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest';
 import { defaultAssayDefinitions, type AssayDefinition, type FlagCode, type Trace } from '@/schemas/assay';
 import type { AssayCode } from '@/schemas/common';
 import { calculateActivity, calculateActivityFromRates } from '../../../../server/domain/assay-engine/engine';
-import { isStraight, type WindowShape } from '../../../../server/domain/assay-engine/linearity';
+import { isStraight, worstOutlier, type WindowShape } from '../../../../server/domain/assay-engine/linearity';
 import { curveAbsorbance, fitProteinCurve, interpolateProtein } from '../../../../server/domain/assay-engine/protein';
 
 /*
@@ -202,5 +202,45 @@ describe('time between readings (at least 1 ms, times strictly increasing)', () 
     expect(same.flags.find((f) => f.code === 'TIME_NOT_INCREASING')!.message).toBe(
       'total trace, reading 2: time 0 s is not after the previous reading (0 s); times must strictly increase',
     );
+  });
+});
+
+describe('a stray reading (beyond 4 residual SDs of the line through the others)', () => {
+  // Externally studentised residual [from memory: Belsley, Kuh & Welsch 1980]; the SD floored at the reading
+  // noise, 0.002 A by default. Seven readings exactly on a line and one raised by `bump`: the others' SD is 0,
+  // so the floor applies and the reading lies bump / 0.002 SDs off [analytic].
+  const trace = (bump: number): Trace =>
+    Array.from({ length: 8 }, (_, i) => ({ t: i * 10, a: 1 - 0.001 * i + (i === 4 ? bump : 0) }));
+  it('3.99 SDs off is kept; 4.01 SDs off is named (reading 5)', () => {
+    expect(worstOutlier(trace(0.00798), 0, 7, 4, 0.002)).toBeNull();
+    const found = worstOutlier(trace(0.00802), 0, 7, 4, 0.002)!;
+    expect(found.index).toBe(4);
+    expect(found.sds).toBeCloseTo(4.01, 6);
+    expect(found.deviation).toBeCloseTo(0.00802, 9);
+  });
+
+  it('fewer than 5 readings are never screened', () => {
+    expect(worstOutlier(trace(0.5), 0, 3, 4, 0.002)).toBeNull();
+    expect(worstOutlier(trace(0.5), 2, 6, 4, 0.002)?.index).toBe(4);
+  });
+});
+
+describe('the laboratory minimum of readings in a chosen window (5 by default)', () => {
+  const total: Trace = Array.from({ length: 12 }, (_, i) => ({ t: i * 10, a: 1 - 0.002 * i }));
+  const run = (toS: number) =>
+    calculateActivity({ assay: 'CIV', ...cuvette, total, window: { fromS: 0, toS } }, def('CIV'));
+  it('5 readings pass; 4 are flagged but still fitted; 2 give no slope', () => {
+    expect(codes(run(40))).not.toContain('TOO_FEW_POINTS');
+    const four = run(30);
+    expect(four.flags.find((f) => f.code === 'TOO_FEW_POINTS')!.message).toBe(
+      'total trace has 4 readings between 0 and 30 s, fewer than the laboratory minimum of 5',
+    );
+    // 0.002 A per 10 s = 0.012 A/min [analytic].
+    expect(four.specificSlopePerMin).toBeCloseTo(-0.012, 10);
+    const two = run(10);
+    expect(two.flags.find((f) => f.code === 'TOO_FEW_POINTS')!.message).toBe(
+      'total trace has 2 readings between 0 and 10 s; at least 3 are needed for a slope',
+    );
+    expect(two.activity).toBeNull();
   });
 });
