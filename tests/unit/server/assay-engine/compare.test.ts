@@ -30,6 +30,8 @@ describe('compareValue', () => {
   });
 
   it('when the interval has no SD, then there is no z-score but still a % of mean', () => {
+    // "% of control mean" needs only the mean; a z-score needs an SD (docs/domain.md §3 [common practice]).
+    // Hand-worked: 0.2 / 0.25 = 80%; 1 / 4 = 25%.
     const noSd: ComparisonInterval = { ...ciToCs, sd: null };
     const c = compareValue({ assay: 'CI', measure: 'ratio_cs', value: 0.2 }, noSd, muscle);
     expect(c.zScore).toBeNull();
@@ -39,6 +41,9 @@ describe('compareValue', () => {
   });
 
   it('when no interval exists for the specimen, then NO_INTERVAL and no position', () => {
+    // Each laboratory sets its own intervals per tissue (docs/domain.md §2: Mitochondrion 2004;4:427–439
+    // [confirmed], CLIA 42 CFR 493.1253 [confirmed]); cell lines need their own (Clin Chim Acta 1996;253:79–90
+    // [confirmed]). The demo set is skeletal muscle only, so a fibroblast value is compared with nothing.
     const fibro = { specimenType: 'fibroblasts' as const, ageYears: 8 };
     const i = findInterval(demoReferenceIntervals, 'CI', 'ratio_cs', fibro);
     const c = compareValue({ assay: 'CI', measure: 'ratio_cs', value: 0.1 }, i, fibro);
@@ -47,6 +52,8 @@ describe('compareValue', () => {
   });
 
   it('when citrate synthase is compared, then no criteria band is given', () => {
+    // CS is the marker of mitochondrial content and the ratios' denominator (docs/domain.md §2, Frazier 2020
+    // [confirmed]); the Bernier enzyme criteria grade the complexes (Neurology 2002 [from memory]).
     const cs = demoReferenceIntervals.find((i) => i.assay === 'CS' && i.measure === 'activity')!;
     expect(compareValue({ assay: 'CS', measure: 'activity', value: 20 }, cs, muscle).band).toBeNull();
   });
@@ -70,6 +77,8 @@ describe('criteriaBand', () => {
   });
 
   it('when a laboratory passes its own rule set, then its thresholds are used', () => {
+    // The Bernier thresholds are a configurable, director-approved rule set (docs/domain.md §2 [from memory]);
+    // hand-worked: 22% is under the laboratory's 25% major line.
     const strict = { ...defaultDiagnosticCriteria, tissue: { majorBelowPct: 25, minorBelowPct: 35 } };
     expect(criteriaBand(22, 'skeletal_muscle', strict)).toBe('major');
     expect(defaultDiagnosticCriteria.citation).toMatch(/Bernier.*2002.*from memory/);
@@ -83,14 +92,20 @@ describe('findInterval', () => {
   const intervals = [base, child, older];
 
   it('when an age band fits, then the narrowest band wins over all ages', () => {
+    // Results are read against the laboratory's interval for that tissue and age group (product brief; age
+    // partitions after Harris & Boyd, Clin Chem 1990;36:265–270 [confirmed], docs/domain.md §3): the most
+    // specific partition holding the patient applies [common practice].
     expect(findInterval(intervals, 'CS', 'activity', { specimenType: 'skeletal_muscle', ageYears: 8 })?.id).toBe('child');
   });
 
   it('when only all-age intervals fit, then the latest version wins', () => {
+    // Every interval change is a new, director-approved version; the newest in force applies and a result keeps
+    // the version it was compared with (product brief, second release [common practice]).
     expect(findInterval(intervals, 'CS', 'activity', { specimenType: 'skeletal_muscle', ageYears: 40 })?.id).toBe('all-v2');
   });
 
   it('when the age is unknown, then only all-age intervals are considered', () => {
+    // An age band cannot be chosen without an age [common practice]; only an interval for all ages applies.
     expect(findInterval([child], 'CS', 'activity', { specimenType: 'skeletal_muscle', ageYears: null })).toBeNull();
   });
 });
@@ -107,6 +122,7 @@ describe('computeRatios', () => {
   });
 
   it('when CS is zero or missing, then the ratio is withheld with NO_DENOMINATOR', () => {
+    // A ratio to CS needs a CS activity (docs/domain.md §2, Frazier 2020 [confirmed]); x / 0 has no value [derived].
     const ratios = computeRatios({ CI: 30, CS: 0 });
     const ci = ratios.find((r) => r.assay === 'CI' && r.measure === 'ratio_cs')!;
     expect(ci.value).toBeNull();

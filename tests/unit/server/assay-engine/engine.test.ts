@@ -246,6 +246,9 @@ describe('flags', () => {
   });
 
   it('NEAR_ZERO: when the specific slope is under the lab limit, then the activity comes with a flag', () => {
+    // Specific slope 0.0305 − 0.0300 = 0.0005 A/min (total minus rotenone, docs/domain.md §1 [confirmed]);
+    // × the consensus CI factor 4032.3 [derived] ≈ 2.0 nmol/min/mg. The near-zero limit is the laboratory's own
+    // per assay [common practice].
     const r = calculateActivity(request('CI', line(0.9, -0.0305), { background: line(0.9, -0.03) }), def('CI'));
     expect(codes(r)).toContain('NEAR_ZERO');
     expect(r.activity).toBeCloseTo(0.0005 * 4032.26, 2);

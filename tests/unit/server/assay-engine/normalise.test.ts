@@ -29,6 +29,7 @@ describe('computeRatios: the numerator', () => {
   }
 
   it('when the numerator is 0, then the ratio is 0 (a measured zero, not a missing value)', () => {
+    // Ratios to CS (docs/domain.md §2, Frazier 2020 [confirmed]); a measured 0 is a value [common practice].
     // 0 / 150 = 0 [analytic].
     const r = ratioOf({ CI: 0, CS: 150 }, 'CI', 'ratio_cs');
     expect(r.value).toBe(0);
@@ -62,6 +63,8 @@ describe('computeRatios: the denominator at and around zero', () => {
   });
 
   it('when CS is just above 0, then the ratio is given (the limit is "above zero", not a minimum activity)', () => {
+    // Only a non-positive denominator makes the ratio meaningless [derived]; how small a measured CS may be
+    // is the near-zero flag's business, set per assay by the laboratory [common practice].
     // 1e-6 / 1e-3 = 1e-3 [analytic].
     const r = ratioOf({ CI: 1e-6, CS: 1e-3 }, 'CI', 'ratio_cs');
     expect(r.value).toBeCloseTo(1e-3, 15);

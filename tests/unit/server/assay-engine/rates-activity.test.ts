@@ -43,6 +43,9 @@ describe('activity from typed rates', () => {
   });
 
   it('when the specific rate is within the near-zero limit, then a number is given with NEAR_ZERO', () => {
+    // Specific rate = total − background (docs/domain.md §1 consensus table [confirmed]): 0.0105 − 0.0100 =
+    // 0.0005 A/min [derived], under the definition's near-zero limit. A rate that small is given but flagged,
+    // its limit set by the laboratory per assay [common practice].
     const r = calculateActivityFromRates(rates('CI', -0.0105, -0.0100), def('CI'));
     expect(r.activity).not.toBeNull();
     // 0.0100 / 0.0105 = 95% of the total stays with rotenone, above the default 70% limit, so that is said too.

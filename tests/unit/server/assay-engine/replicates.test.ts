@@ -19,6 +19,9 @@ describe('replicates', () => {
   });
 
   it('HIGH_CV: when the CV exceeds the lab limit, then the summary is flagged', () => {
+    // CV = SD/mean × 100 with the sample SD (n − 1) [common practice]; the limit is the laboratory's own per
+    // assay definition [common practice] (reproducibility between laboratories averages 16%, Rodenburg 2013,
+    // docs/domain.md §2 [confirmed], so no single value is universal).
     // 98, 102, 110: mean 103.33, SD 6.110 (n − 1), CV 5.91% [hand-computed].
     expect(summariseReplicates([98, 102, 110], 5).flags.map((f) => f.code)).toEqual(['HIGH_CV']);
     expect(summariseReplicates([98, 102, 110], 15).flags).toEqual([]);

@@ -43,6 +43,9 @@ describe('derive (POST /api/reference-intervals/derive contract)', () => {
   });
 
   it('when the robust method is used with n < 120, then it warns and gives no confidence intervals', () => {
+    // Nonparametric limits need ≥ 120 values (CLSI EP28-A3c [confirmed]); below that the robust method of Horn,
+    // Pesce & Copeland (Clin Chem 1998;44:622–631 [confirmed]) is used, flagged as such, without the
+    // order-statistic CIs [derived: the binomial CI ranks exist only from n = 120 in this product's rule].
     const result = derive({ method: 'robust', outliers: 'none', values: gaussianScores(40) });
     expect(result.n).toBe(40);
     expect(result.lowerCi).toBeNull();
@@ -66,6 +69,8 @@ describe('derive (POST /api/reference-intervals/derive contract)', () => {
   });
 
   it('warns when a limit falls below zero for values that are all 0 or more', () => {
+    // An activity cannot be negative, so a lower limit under 0 from mean − 2 SD on skewed data is a sign the
+    // method does not fit (mean ± 2 SD on small control groups, docs/domain.md §3 [common practice]).
     const skewed = [1, 1, 1, 2, 2, 2, 3, 3, 5, 8, 13, 21];
     const result = derive({ method: 'mean2sd', outliers: 'none', values: skewed });
     expect(result.lower).toBeLessThan(0);

@@ -25,6 +25,8 @@ describe('valueAtRank', () => {
   });
 
   it('when the rank falls outside 1..n, then it clamps to the extremes', () => {
+    // CLSI EP28-A3c ranks p(n + 1) [confirmed] fall below 1 or above n for small n; the nearest order statistic
+    // is taken, never an extrapolation [common practice: R's quantile type 6 does the same].
     expect(valueAtRank([3, 5, 9], 0.2)).toBe(3);
     expect(valueAtRank([3, 5, 9], 3.9)).toBe(9);
   });
