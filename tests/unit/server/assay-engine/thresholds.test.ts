@@ -290,3 +290,13 @@ describe('firstNonFinite: the path of the first NaN or infinity', () => {
     expect(firstNonFinite([{ a: 1 }, { a: Number.NaN }, Number.NaN])).toBe('[1].a');
   });
 });
+
+describe('replicate SD far from zero', () => {
+  it('shifting every value leaves the SD unchanged: 10⁹ + (0, 0, 1) has the SD of 0, 0, 1, 1/√3 [analytic]', () => {
+    // The mean 10⁹ + 1/3 cannot be held exactly, so this also checks that the deviations are squared as
+    // deviations (a sum of v² − mean² would lose everything to rounding here).
+    const s = summariseReplicates([1e9, 1e9, 1e9 + 1], 50);
+    expect(s.sd).toBeCloseTo(1 / Math.sqrt(3), 6);
+    expect(sampleStandardDeviation([0, 0, 1])).toBeCloseTo(1 / Math.sqrt(3), 12);
+  });
+});
