@@ -63,11 +63,10 @@ export async function currentDefinitions(agent: Agent): Promise<AssayDefinition[
   return (defsRes.body.items as unknown[]).map((d) => storedAssayDefinitionSchema.parse(d).definition);
 }
 
-/** Registers a case, enters its assays and submits it; returns the case as it awaits review. */
-export async function createCaseAwaitingReview(
-  tech: Agent,
-  opts: { referringClinicianId: number; activities?: Record<AssayCode, number>; overrides?: Partial<RegisterCaseInput> },
-): Promise<CaseDetail> {
+type WorkupOptions = { referringClinicianId: number; activities?: Record<AssayCode, number>; overrides?: Partial<RegisterCaseInput> };
+
+/** Registers a case, records its protein and enters one rate per assay; returns the case as it is before submission. */
+export async function createCaseWithAssays(tech: Agent, opts: WorkupOptions): Promise<CaseDetail> {
   const created = await createCase(tech, { referringClinicianId: opts.referringClinicianId, ...opts.overrides });
   const specimen = created.specimens[0]!;
   check(
@@ -85,8 +84,14 @@ export async function createCaseAwaitingReview(
   }
   const current = await tech.get(`/api/cases/${created.id}`);
   check(current, 200, 'case');
-  check(await tech.post(`/api/cases/${created.id}/submit`).send({ version: current.body.version }), 200, 'submit');
-  const after = await tech.get(`/api/cases/${created.id}`);
+  return current.body as CaseDetail;
+}
+
+/** Registers a case, enters its assays and submits it; returns the case as it awaits review. */
+export async function createCaseAwaitingReview(tech: Agent, opts: WorkupOptions): Promise<CaseDetail> {
+  const current = await createCaseWithAssays(tech, opts);
+  check(await tech.post(`/api/cases/${current.id}/submit`).send({ version: current.version }), 200, 'submit');
+  const after = await tech.get(`/api/cases/${current.id}`);
   check(after, 200, 'case after submit');
   return after.body as CaseDetail;
 }
