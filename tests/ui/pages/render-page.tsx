@@ -1,6 +1,10 @@
 import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
-import { render } from '@testing-library/react';
+import { configure, render } from '@testing-library/react';
 import { createMemoryRouter, RouterProvider } from 'react-router-dom';
+
+// The real server answers these pages (password hashing, PDF rendering) on a shared, busy machine: findBy* and
+// waitFor wait up to 45 s for what the user would see.
+configure({ asyncUtilTimeout: 45_000 });
 
 /** One page at one address, with a fresh query cache and React Router, as the app mounts it (without the shell). */
 export function renderPage(routePath: string, url: string, Page: React.ComponentType) {
