@@ -9,7 +9,6 @@ import { ensureDefaultDefinitions } from './modules/assay-definitions/assay-defi
 import { openDatabase, withStartupLock } from './db/sequelize';
 import { logError, logInfo } from './lib/log';
 import { startMail } from './modules/mail/mail-setup';
-import { warmUpReportRendering } from './domain/report-pdf/warm-up';
 
 /** The project folder: the nearest one above this file with a package.json (server/ from sources, dist/server/ compiled). */
 function projectRoot(): string {
@@ -39,7 +38,9 @@ async function main(): Promise<void> {
   const server = app.listen(config.port, () => {
     logInfo(`Cristae is serving on http://localhost:${config.port}`);
     // The first report after a start should be as quick as the rest (bench: first PDF).
-    void warmUpReportRendering().catch((err: unknown) => logError(err, 'warming up report rendering'));
+    void import('./domain/report-pdf/warm-up')
+      .then(({ warmUpReportRendering }) => warmUpReportRendering())
+      .catch((err: unknown) => logError(err, 'warming up report rendering'));
   });
 
   const stop = (signal: string) => {

@@ -1,5 +1,5 @@
-import type { Sequelize } from 'sequelize';
-import { SequelizeStorage, Umzug } from 'umzug';
+import { QueryTypes, type Sequelize } from 'sequelize';
+import type { MigrateDownOptions, MigrateUpOptions } from 'umzug';
 import * as m0001 from './migrations/0001-foundation';
 import * as m0002 from './migrations/0002-registry';
 import * as m0003 from './migrations/0003-registry-indexes';
@@ -21,16 +21,39 @@ const migrations = [m0001, m0002, m0003, m0004, m0005, m0006, m0008, m0009, m001
 /** Names of the migrations this code knows (a restored database must not carry others). */
 export const knownMigrationNames = (): string[] => migrations.map((m) => m.name);
 
+/**
+ * Umzug over the list above. Umzug (with its command-line parser) is loaded on the first `up` or `down`, so a
+ * start on a database that is already current does not load it.
+ */
 export function createMigrator(sequelize: Sequelize) {
-  return new Umzug({
-    migrations: migrations.map((m) => ({ name: m.name, up: m.up, down: m.down })),
-    context: sequelize.getQueryInterface(),
-    storage: new SequelizeStorage({ sequelize }),
-    logger: undefined,
-  });
+  const umzug = async () => {
+    const { SequelizeStorage, Umzug } = await import('umzug');
+    return new Umzug({
+      migrations: migrations.map((m) => ({ name: m.name, up: m.up, down: m.down })),
+      context: sequelize.getQueryInterface(),
+      storage: new SequelizeStorage({ sequelize }),
+      logger: undefined,
+    });
+  };
+  return {
+    up: async (options?: MigrateUpOptions) => (await umzug()).up(options),
+    down: async (options?: MigrateDownOptions) => (await umzug()).down(options),
+  };
+}
+
+/** Whether SequelizeMeta already records every known migration (false when the table is missing). */
+async function schemaIsCurrent(sequelize: Sequelize): Promise<boolean> {
+  try {
+    const rows = await sequelize.query<{ name: string }>('SELECT "name" FROM "SequelizeMeta"', { type: QueryTypes.SELECT });
+    const applied = new Set(rows.map((r) => r.name));
+    return migrations.every((m) => applied.has(m.name));
+  } catch {
+    return false;
+  }
 }
 
 export async function migrate(sequelize: Sequelize): Promise<string[]> {
+  if (await schemaIsCurrent(sequelize)) return [];
   const done = await createMigrator(sequelize).up();
   return done.map((m) => m.name);
 }

@@ -1,6 +1,6 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import pg from 'pg';
+import type pg from 'pg';
 import sqlite3 from 'sqlite3';
 import { Sequelize } from 'sequelize';
 import { tuneSqliteConnections } from './sqlite-connections';
@@ -46,17 +46,18 @@ async function openSqlite(storage: string): Promise<Sequelize> {
  * numbers. Every count this application makes fits a double exactly, so bigints are read as numbers (a value
  * beyond 2^53 is refused rather than rounded).
  */
-function readBigintsAsNumbers(): void {
-  pg.types.setTypeParser(pg.types.builtins.INT8, (text: string) => {
+function readBigintsAsNumbers(types: typeof pg.types): void {
+  types.setTypeParser(types.builtins.INT8, (text: string) => {
     const n = Number(text);
     if (!Number.isSafeInteger(n)) throw new RangeError(`bigint ${text} does not fit a JavaScript number`);
     return n;
   });
 }
 
-/** PostgreSQL through `pg`. Every connection works in UTC, like the SQLite dates. */
+/** PostgreSQL through `pg` (loaded only here: a SQLite start need not load it). Every connection works in UTC, like the SQLite dates. */
 async function openPostgres(url: string): Promise<Sequelize> {
-  readBigintsAsNumbers();
+  const { default: pg } = await import('pg');
+  readBigintsAsNumbers(pg.types);
   const sequelize = new Sequelize(url, {
     dialect: 'postgres',
     dialectModule: pg,

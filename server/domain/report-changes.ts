@@ -1,7 +1,7 @@
 import type { ChangedValue, ReportDocument, ReportResult, ReportSpecimenSection } from '@/schemas/report-document';
 import { intervalThresholds } from '@/schemas/result-format';
 import { formatNumber, formatPercent } from './report-pdf/format';
-import { BAND_WORDS, MEASURE_PHRASES, STATUS_WORDS, formatInterval } from './report-pdf/sections';
+import { BAND_WORDS, MEASURE_PHRASES, STATUS_WORDS, formatInterval } from './report-pdf/words';
 
 /*
  * What a corrected report says changed: every value both versions print, compared as printed (so a difference

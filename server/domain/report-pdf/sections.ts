@@ -5,7 +5,6 @@ import {
   type ReportResult,
   type ReportSpecimen,
   type ReportSpecimenSection,
-  type ResultStatus,
 } from '@/schemas/report-document';
 import { specimenTypeLabels, type Measure } from '@/schemas/common';
 import { intervalThresholds } from '@/schemas/result-format';
@@ -13,9 +12,9 @@ import { formatDate, formatDateOrDateTime, formatDateTime, formatNumber, formatP
 import { drawBarGraphic } from './bar-graphic';
 import { COLORS, Composer, PAGE, STYLES, type Block } from './layout';
 import type { Segment, TextStyle } from './text';
+import { BAND_WORDS, formatInterval, MEASURE_PHRASES, REPORT_TITLE, STATUS_WORDS } from './words';
 
-/** The report's own title, printed on the first page and in the running header. */
-export const REPORT_TITLE = 'Respiratory-chain enzyme report';
+export { BAND_WORDS, formatInterval, MEASURE_PHRASES, REPORT_TITLE, STATUS_WORDS };
 
 const MEASURE_LABELS: Record<Measure, string> = {
   activity: 'Activity',
@@ -23,22 +22,7 @@ const MEASURE_LABELS: Record<Measure, string> = {
   ratio_cii: 'Ratio to CII',
 };
 
-export const MEASURE_PHRASES: Record<Measure, string> = {
-  activity: 'activity',
-  ratio_cs: 'ratio to CS',
-  ratio_cii: 'ratio to CII',
-};
-
 const MEASURE_ORDER: Measure[] = ['activity', 'ratio_cs', 'ratio_cii'];
-
-export const STATUS_WORDS: Record<ResultStatus, string> = {
-  below: 'Below interval',
-  within: 'Within interval',
-  above: 'Above interval',
-  not_compared: 'Not compared',
-};
-
-export const BAND_WORDS = { major: 'major-criterion band', minor: 'minor-criterion band' } as const;
 
 const seg = (text: string, style: TextStyle): Segment => ({ text, style });
 
@@ -322,17 +306,6 @@ const COLUMNS: Column[] = [
 ];
 const CELL_PAD_X = 4;
 const CELL_PAD_Y = 3.2;
-
-export function formatInterval(r: ReportResult): string {
-  const f = (v: number): string => formatNumber(v, r.decimals);
-  let range: string;
-  if (r.referenceLower !== null && r.referenceUpper !== null) {
-    range = `${f(r.referenceLower)}\u2013${f(r.referenceUpper)}`;
-  } else if (r.referenceLower !== null) range = `${f(r.referenceLower)} or more`;
-  else if (r.referenceUpper !== null) range = `up to ${f(r.referenceUpper)}`;
-  else return 'No interval';
-  return r.referenceMean !== null ? `${range} (${f(r.referenceMean)})` : range;
-}
 
 function statusSegments(r: ReportResult): Segment[] {
   const color = r.status === 'below' ? COLORS.below : r.status === 'above' ? COLORS.above : COLORS.ink;

@@ -4,7 +4,7 @@ import { BAND_WORDS, MEASURE_PHRASES, REPORT_TITLE, STATUS_WORDS } from './secti
 import { drawLine, registerFonts, wrapText } from './text';
 
 /** Text of the kind every report prints: words, digits, units and the symbols that need the fallback faces. */
-const SAMPLE = [
+const SAMPLES = [
   REPORT_TITLE,
   ...Object.values(MEASURE_PHRASES),
   ...Object.values(STATUS_WORDS),
@@ -14,14 +14,15 @@ const SAMPLE = [
   'Specimen skeletal muscle liver fibroblasts received collected accession CR-2026-00001 version 1 page 1 of 2',
   'Pattern interpretation method reference interval signed approved corrected laboratory director technologist',
   'ABCDEFGHIJKLMNOPQRSTUVWXYZ abcdefghijklmnopqrstuvwxyz 0123456789 .,;:!?()[]/-+=*%&\'"',
-].join(' ');
+];
 
 const nextTurn = () => new Promise<void>((resolve) => setImmediate(resolve));
 
 /**
  * Lays out and draws sample report text in every report style and writes the throw-away PDF, so the first real
  * report after a start finds the faces parsed, the common widths measured and fontkit's and pdfkit's code
- * compiled. Yields to the event loop between styles so the server keeps answering while it runs.
+ * compiled. Yields to the event loop between pieces of text (each a few milliseconds) so the server keeps
+ * answering while it runs.
  */
 export async function warmUpReportRendering(): Promise<void> {
   const doc = new PDFDocument({ size: 'A4', margin: 0, autoFirstPage: false, bufferPages: true });
@@ -34,10 +35,12 @@ export async function warmUpReportRendering(): Promise<void> {
   doc.addPage({ size: 'A4', margin: 0 });
   let y: number = PAGE.contentTop;
   for (const style of Object.values(STYLES)) {
-    await nextTurn();
-    for (const line of wrapText(doc, SAMPLE, style, CONTENT_WIDTH)) {
-      y = y > PAGE.contentBottom ? PAGE.contentTop : y + style.size * 1.4;
-      drawLine(doc, line, PAGE.marginX, y);
+    for (const sample of SAMPLES) {
+      await nextTurn();
+      for (const line of wrapText(doc, sample, style, CONTENT_WIDTH)) {
+        y = y > PAGE.contentBottom ? PAGE.contentTop : y + style.size * 1.4;
+        drawLine(doc, line, PAGE.marginX, y);
+      }
     }
   }
   doc.rect(PAGE.marginX, PAGE.contentTop, 10, 10).fill(COLORS.band);

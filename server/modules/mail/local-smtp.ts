@@ -1,6 +1,6 @@
 import type { AddressInfo } from 'node:net';
 import type { Sequelize } from 'sequelize';
-import { simpleParser, type AddressObject } from 'mailparser';
+import type { AddressObject } from 'mailparser';
 import { SMTPServer } from 'smtp-server';
 import { logError } from '../../lib/log';
 import { insertOutboxMessage } from './mail.repository';
@@ -26,7 +26,9 @@ export async function startLocalSmtpServer(sequelize: Sequelize, port: number): 
     closeTimeout: 2000,
     size: 5 * 1024 * 1024,
     onData(stream, session, callback) {
-      simpleParser(stream)
+      // mailparser loads with the first message received, not at start-up.
+      import('mailparser')
+        .then(({ simpleParser }) => simpleParser(stream))
         .then((parsed) =>
           insertOutboxMessage(sequelize, {
             messageId: parsed.messageId ?? null,

@@ -1,4 +1,4 @@
-import nodemailer from 'nodemailer';
+import type { Transporter } from 'nodemailer';
 import type { AppConfig } from '../../config';
 import { PermanentMailError } from './notice-schedule';
 
@@ -42,19 +42,24 @@ export function createSmtpMailer(mail: AppConfig['mail'], localPort?: number): M
           }
         : null;
   if (!options) return createDisabledMailer(mail.from);
-  const transport = nodemailer.createTransport({
-    ...options,
-    connectionTimeout: 10_000,
-    greetingTimeout: 10_000,
-    socketTimeout: 20_000,
-  });
+  // nodemailer loads with the first message sent, not at start-up.
+  let transport: Promise<Transporter> | null = null;
+  const open = () =>
+    (transport ??= import('nodemailer').then(({ default: nodemailer }) =>
+      nodemailer.createTransport({
+        ...options,
+        connectionTimeout: 10_000,
+        greetingTimeout: 10_000,
+        socketTimeout: 20_000,
+      }),
+    ));
   return {
     kind: localPort !== undefined ? 'local' : 'smtp',
     from: mail.from,
     send: async ({ to, subject, text }) => {
-      const info = await transport.sendMail({ from: mail.from, to, subject, text });
+      const info = await (await open()).sendMail({ from: mail.from, to, subject, text });
       return { messageId: info.messageId };
     },
-    close: () => transport.close(),
+    close: () => void transport?.then((t) => t.close()),
   };
 }

@@ -11,7 +11,6 @@ import {
 import type { User } from '@/schemas/user';
 import { verifyPassword } from '../../auth/password';
 import { admitRightPassword, countWrongPassword, refuseIfLocked } from '../../auth/lockout';
-import { renderReportPdf, ReportDocumentError } from '../../domain/report-pdf/render-report-pdf';
 import { AppError, conflict, forbidden, invalidState, notFound, staleVersion } from '../../lib/errors';
 import { recordAudit } from '../audit/audit.service';
 import { transitionCase } from '../cases/case-state';
@@ -109,6 +108,8 @@ async function renderSigned(
     signature: { signerName: signer.name, signerTitle: signer.title?.trim() || 'Laboratory director', signedAt, meaning },
     version,
   });
+  // pdfkit and fontkit load on the first report (or the warm-up after start-up), not before the server listens.
+  const { renderReportPdf, ReportDocumentError } = await import('../../domain/report-pdf/render-report-pdf');
   let pdf: Buffer;
   try {
     pdf = await renderReportPdf(document);
