@@ -7,12 +7,14 @@ import connectSessionSequelize from 'connect-session-sequelize';
 import type { Sequelize } from 'sequelize';
 import type { AppConfig } from './config';
 import { requireSameOrigin } from './auth/origin-check';
-import { createPassport } from './auth/passport';
+import { createPassport, sessionUsers } from './auth/passport';
 import { errorPage, notFound, toHttpError, wantsErrorPage } from './lib/errors';
 import { cacheSessionReads, extendSessions, SHARED_SESSION_CACHE_MS } from './auth/session-cache';
 import { serveClient, serveClientIndex } from './client-assets';
 import { logError } from './lib/log';
 import { route } from './lib/route';
+import { scoped } from './lib/scoped-router';
+import { fixedHeaders } from './lib/fixed-headers';
 import { assayDefinitionsRouter } from './modules/assay-definitions/assay-definitions.router';
 import { auditRouter } from './modules/audit/audit.router';
 import { authRouter } from './modules/auth/auth.router';
@@ -59,26 +61,26 @@ export function createApp(opts: AppOptions): Express {
   // session cookie is set and per-address limits see the real client.
   app.set('trust proxy', config.trustProxy);
 
-  app.use(
-    helmet({
-      contentSecurityPolicy: {
-        useDefaults: false,
-        directives: {
-          defaultSrc: ["'self'"],
-          scriptSrc: ["'self'"],
-          styleSrc: ["'self'"],
-          imgSrc: ["'self'", 'data:', 'blob:'],
-          fontSrc: ["'self'"],
-          connectSrc: ["'self'"],
-          objectSrc: ["'none'"],
-          frameSrc: ["'self'"],
-          baseUri: ["'self'"],
-          formAction: ["'self'"],
-          frameAncestors: ["'self'"],
-        },
+  // Helmet's headers are the same for every answer: worked out once (server/lib/fixed-headers.ts).
+  const securityHeaders = helmet({
+    contentSecurityPolicy: {
+      useDefaults: false,
+      directives: {
+        defaultSrc: ["'self'"],
+        scriptSrc: ["'self'"],
+        styleSrc: ["'self'"],
+        imgSrc: ["'self'", 'data:', 'blob:'],
+        fontSrc: ["'self'"],
+        connectSrc: ["'self'"],
+        objectSrc: ["'none'"],
+        frameSrc: ["'self'"],
+        baseUri: ["'self'"],
+        formAction: ["'self'"],
+        frameAncestors: ["'self'"],
       },
-    }),
-  );
+    },
+  });
+  app.use(fixedHeaders(securityHeaders));
 
   const SequelizeStore = connectSessionSequelize(session.Store);
   const store = new SequelizeStore({
@@ -117,36 +119,36 @@ export function createApp(opts: AppOptions): Express {
   );
   app.use('/api', extendSessions());
   const passport = createPassport(sequelize);
-  app.use('/api', passport.initialize(), passport.session());
+  app.use('/api', sessionUsers(app, passport));
 
   const health = express.Router();
   route(health, 'GET /api/health', {}, (_in, _req, res) => {
     res.json({ status: 'ok' });
   });
-  app.use(health);
-  app.use(authRouter(sequelize, passport, { loginAttemptsPerWindow: opts.loginAttemptsPerWindow ?? 20 }));
-  app.use(usersRouter(sequelize));
-  app.use(labProfileRouter(sequelize));
-  app.use(auditRouter());
-  app.use(assayDefinitionsRouter(sequelize));
-  app.use(patientsRouter(sequelize));
-  app.use(casesRouter(sequelize));
-  app.use(specimensRouter(sequelize));
-  app.use(referenceIntervalsRouter(sequelize));
-  app.use(qcRouter(sequelize));
-  app.use(runsRouter(sequelize));
+  app.use(scoped(health));
+  app.use(scoped(authRouter(sequelize, passport, { loginAttemptsPerWindow: opts.loginAttemptsPerWindow ?? 20 })));
+  app.use(scoped(usersRouter(sequelize)));
+  app.use(scoped(labProfileRouter(sequelize)));
+  app.use(scoped(auditRouter()));
+  app.use(scoped(assayDefinitionsRouter(sequelize)));
+  app.use(scoped(patientsRouter(sequelize)));
+  app.use(scoped(casesRouter(sequelize)));
+  app.use(scoped(specimensRouter(sequelize)));
+  app.use(scoped(referenceIntervalsRouter(sequelize)));
+  app.use(scoped(qcRouter(sequelize)));
+  app.use(scoped(runsRouter(sequelize)));
 
   const mailer = opts.mailer ?? createDisabledMailer(config.mail.from);
-  app.use(reportsRouter(sequelize, { publicOrigin: config.publicOrigin }));
-  app.use(reviewRouter(sequelize));
-  app.use(mailRouter(sequelize, mailer));
+  app.use(scoped(reportsRouter(sequelize, { publicOrigin: config.publicOrigin })));
+  app.use(scoped(reviewRouter(sequelize)));
+  app.use(scoped(mailRouter(sequelize, mailer)));
 
-  app.use(measurementsRouter(sequelize));
-  app.use(uploadsRouter(sequelize));
-  app.use(plateMapsRouter(sequelize));
-  app.use(resultsRouter(sequelize));
-  app.use(registryRouter(sequelize));
-  app.use(registryExportRouter(sequelize));
+  app.use(scoped(measurementsRouter(sequelize)));
+  app.use(scoped(uploadsRouter(sequelize)));
+  app.use(scoped(plateMapsRouter(sequelize)));
+  app.use(scoped(resultsRouter(sequelize)));
+  app.use(scoped(registryRouter(sequelize)));
+  app.use(scoped(registryExportRouter(sequelize)));
 
   app.use('/api', (req, _res, next) => next(notFound('API route', `${req.method} ${req.path}`)));
 

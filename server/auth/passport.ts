@@ -1,3 +1,4 @@
+import type { Express, RequestHandler } from 'express';
 import { Passport, type PassportStatic } from 'passport';
 import type { Sequelize } from 'sequelize';
 
@@ -49,13 +50,45 @@ export function createPassport(sequelize: Sequelize): CristaePassport {
     done(null, { id: user.id, gen } satisfies StoredLogin);
   });
   passport.deserializeUser((stored: unknown, done) => {
-    const login = readStored(stored);
-    if (!login) return done(null, false);
-    findSessionAccount(login.id).then(
-      // A deactivated account, or a password changed or reset since this session opened, ends the session.
-      (a) => done(null, a && a.generation === login.gen ? a.user : false),
+    deserialize(stored).then(
+      (user) => done(null, user),
       (err: unknown) => done(err),
     );
   });
   return passport;
+}
+
+/** The signed-in user a stored login stands for, or false when that login has ended. */
+async function deserialize(stored: unknown): Promise<SessionUser | false> {
+  const login = readStored(stored);
+  if (!login) return false;
+  const a = await findSessionAccount(login.id);
+  // A deactivated account, or a password changed or reset since this session opened, ends the session.
+  return a && a.generation === login.gen ? a.user : false;
+}
+
+/**
+ * What `passport.initialize()` and `passport.session()` do for every request, done with less work: the
+ * request helpers initialize() copies onto each request (req.login, req.logout, req.isAuthenticated, the
+ * session manager) are put once on the app's request prototype, which every request inherits from, by running
+ * initialize() against it; and the session's stored login is turned into req.user the way passport's session
+ * strategy does it (a login that has ended is removed from the session and the request goes on signed out),
+ * without building a strategy object per request.
+ */
+export function sessionUsers(app: Express, passport: CristaePassport): RequestHandler {
+  passport.initialize()(app.request, {} as never, () => undefined);
+  return (req, _res, next) => {
+    if (!req.session) return next(new Error('Login sessions require session support'));
+    const login = (req.session as { passport?: { user?: unknown } }).passport;
+    const stored = login?.user;
+    if (!stored && stored !== 0) return next();
+    deserialize(stored).then(
+      (user) => {
+        if (user) req.user = user;
+        else delete login!.user;
+        next();
+      },
+      (err: unknown) => next(err),
+    );
+  };
 }
