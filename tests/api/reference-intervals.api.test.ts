@@ -16,6 +16,7 @@ import {
   toComparisonInterval,
 } from '../../server/modules/reference-intervals/reference-intervals.service';
 import { compareValue } from '../../server/domain/assay-engine/compare';
+import { buildIntervalDraft } from '../factories/intervals';
 import { countRows, makeTestApp, type TestApp } from '../setup/test-app';
 
 type Agent = Awaited<ReturnType<TestApp['signedIn']>>;
@@ -36,25 +37,7 @@ afterAll(() => t.close());
 const range = (from: number, to: number) => Array.from({ length: to - from + 1 }, (_, i) => from + i);
 
 /** A manual draft body; each test picks its own key so tests do not share versions. */
-function draftBody(overrides: Record<string, unknown> = {}) {
-  return {
-    setName: 'Test set (fictitious)',
-    assay: 'CIII',
-    measure: 'activity',
-    specimenType: 'liver',
-    ageBand: { label: 'All ages', minYears: 0, maxYears: null },
-    lower: 50,
-    upper: 150,
-    mean: 100,
-    sd: 25,
-    n: 40,
-    method: 'mean2sd',
-    sourceNote: 'Typed in for a test; invented numbers',
-    effectiveFrom: '2025-03-01',
-    effectiveTo: null,
-    ...overrides,
-  };
-}
+const draftBody = buildIntervalDraft;
 
 async function createDraft(overrides: Record<string, unknown> = {}): Promise<StoredInterval> {
   const res = await director.post('/api/reference-intervals').send(draftBody(overrides));

@@ -3,6 +3,7 @@ import { mean as ssMean, sampleStandardDeviation } from 'simple-statistics';
 import { expect } from 'vitest';
 import { assayCodes, type AssayCode } from '@/schemas/common';
 import { westgardRules } from '@/schemas/qc';
+import { buildIntervalDraft } from '../../factories/intervals';
 import { binary } from '../../setup/binary-body';
 import { nextSerial, ok } from './fixtures';
 import { once, perCall, type Ctx, type Rows } from './harness';
@@ -20,21 +21,9 @@ const range = (from: number, to: number) => Array.from({ length: to - from + 1 }
 export function intervalAndQcRows(ctx: Ctx): Rows {
   const director = () => ctx.as('director');
 
-  /** A typed-in interval (invented numbers) for one key. */
-  const draftBody = (key: { assay: AssayCode; measure: (typeof measures)[number]; specimenType: string }) => ({
-    setName: 'Matrix set (fictitious)',
-    ...key,
-    ageBand: { label: 'All ages', minYears: 0, maxYears: null },
-    lower: 50,
-    upper: 150,
-    mean: 100,
-    sd: 25,
-    n: 40,
-    method: 'mean2sd',
-    sourceNote: 'Typed in for the role matrix; invented numbers',
-    effectiveFrom: '2026-02-01',
-    effectiveTo: null,
-  });
+  /** A typed-in interval (invented numbers) for one key, from 1 February 2026. */
+  const draftBody = (key: { assay: AssayCode; measure: (typeof measures)[number]; specimenType: string }) =>
+    buildIntervalDraft({ ...key, setName: 'Matrix set (fictitious)', effectiveFrom: '2026-02-01' });
 
   let keySerial = 0;
   /** A stored draft for a key of its own (specimen type "other", a new assay × measure each time), by `who`. */
