@@ -14,6 +14,9 @@ export default defineConfig({
   server: { proxy: { '/api': 'http://localhost:3000' } },
   test: {
     reporters: ['default', './tests/setup/plain-summary-reporter.ts'],
+    // Two test files at a time in every project, browser specs included (each has its own server, port, database
+    // and Chromium). Vitest's default is one fewer than the cores: a single worker on the 2-core machines we use.
+    maxWorkers: 2,
     projects: [
       {
         resolve: { alias },
@@ -69,9 +72,10 @@ export default defineConfig({
           name: 'e2e',
           environment: 'node',
           include: ['tests/e2e/**/*.spec.ts'],
+          // The real server seeds one database per run; each spec's server starts on a copy of it.
+          globalSetup: ['tests/e2e/support/template.ts'],
           testTimeout: 120_000,
           hookTimeout: 180_000,
-          fileParallelism: false,
         },
       },
     ],
