@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { CohortPage, CohortPlots, SavedSearch } from '@/schemas/registry';
 import type { ReportResult } from '@/schemas/report-document';
 import { createMigrator } from '../../server/db/migrate';
-import { writeCohortRows, type CohortSection, type CohortSource } from '../../server/modules/registry/cohort-rows';
+import { measureColumns, writeCohortRows, type CohortSection, type CohortSource } from '../../server/modules/registry/cohort-rows';
 import { DEMO_PASSWORD, countRows, makeTestApp, type TestApp } from '../setup/test-app';
 
 /*
@@ -75,13 +75,20 @@ describe('rows written at signing', () => {
 
   it('the migration’s backfill rebuilds the same rows from the stored reports', async () => {
     const snapshot = async () => ({
+      // With every measure column of migration 0017: its own backfill (from cohort_values) must give what signing wrote.
       members: await query(`SELECT "reportId", "caseId", "specimenId", accession, "reportVersion", "reportStatus", "specimenLabel",
-        "specimenType", sex, "ageYears", "signedOn", "patternCode", "isIsolated", "lowCIV" FROM cohort_members ORDER BY "caseId", "specimenLabel"`),
+        "specimenType", sex, "ageYears", "signedOn", "patternCode", "isIsolated", "lowCIV", ${measureColumns.map((c) => `"${c}"`).join(', ')}
+        FROM cohort_members ORDER BY "caseId", "specimenLabel"`),
       values: await query(`SELECT m."caseId", v.assay, v.measure, v.value, v."pctOfMean", v.lower, v.upper, v.mean
         FROM cohort_values v JOIN cohort_members m ON m.id = v."memberId" ORDER BY m."caseId", v.id`),
     });
     const atSigning = await snapshot();
     expect(atSigning.members.length).toBeGreaterThan(0);
+    // Signing filled the columns: CI/CS of each member is the value its report printed.
+    for (const m of atSigning.members) {
+      const printed = atSigning.values.find((v) => v.caseId === m.caseId && v.assay === 'CI' && v.measure === 'ratio_cs');
+      expect(m.CI_ratio_cs_value).toBe(printed?.value ?? null);
+    }
     const migrator = createMigrator(t.sequelize);
     await migrator.down({ to: '0016-cohorts' });
     await migrator.up();
@@ -358,4 +365,121 @@ describe('saved searches', () => {
     // Another user may use the same name.
     expect((await director.post('/api/registry/saved-searches').send({ name: 'Twice', filters: {} })).status).toBe(201);
   });
+});
+
+/* ---------------------------------------------------------------- plots against the rows */
+
+/** Deterministic noise (mulberry32), so the random cohort is the same on every run. */
+function noise(seed: number): () => number {
+  let s = seed >>> 0;
+  return () => {
+    s = (s + 0x6d2b79f5) >>> 0;
+    let x = Math.imul(s ^ (s >>> 15), s | 1);
+    x ^= x + Math.imul(x ^ (x >>> 7), x | 61);
+    return ((x ^ (x >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+const COMPLEX_INTERVALS: Record<string, [number, number, number][]> = {
+  // Two invented intervals per complex (lower, upper, mean), the first met more often.
+  CI: [[0.15, 0.35, 0.25], [0.12, 0.3, 0.21]],
+  CII: [[0.12, 0.28, 0.2], [0.1, 0.26, 0.18]],
+  CIII: [[0.5, 1.1, 0.8], [0.4, 1.0, 0.7]],
+  CIV: [[0.7, 1.7, 1.2], [0.6, 1.5, 1.05]],
+  'CI+III': [[0.16, 0.44, 0.3], [0.14, 0.4, 0.27]],
+  'CII+III': [[0.15, 0.4, 0.27], [0.13, 0.36, 0.24]],
+};
+
+/**
+ * 240 invented specimens over four cases: each complex's CI/CS-style ratio drawn from 0 to 3 × its upper limit
+ * (a long tail past the drawn bins), read against one of two intervals, or against none (then no % of mean),
+ * and sometimes not measured at all.
+ */
+function randomCohort(caseIds: number[], reportId: number): CohortSource[] {
+  const r = noise(13);
+  const types: CohortSection['type'][] = ['skeletal_muscle', 'skeletal_muscle', 'liver', 'fibroblasts'];
+  const kinds: CohortSection['findings'][] = [[{ kind: 'normal', complexes: [] }], [{ kind: 'isolated_deficiency', complexes: ['CI'] }], [{ kind: 'combined_deficiency', complexes: ['CI', 'CIV'] }]];
+  return caseIds.map((caseId, c) => ({
+    reportId,
+    caseId,
+    accession: `RAND-${c}`,
+    reportVersion: 1,
+    reportStatus: 'final',
+    sex: c % 2 ? 'male' : 'female',
+    signedOn: `2025-0${c + 1}-15`,
+    sections: Array.from({ length: 60 }, (_, i) =>
+      section(`R${i}`, types[Math.floor(r() * types.length)]!, Math.floor(r() * 80), kinds[Math.floor(r() * kinds.length)]!,
+        Object.entries(COMPLEX_INTERVALS).flatMap(([assay, choices]): ReportResult[] => {
+          if (r() < 0.1) return [];
+          const [lower, upper, mean] = choices[r() < 0.7 ? 0 : 1]!;
+          const value = r() * 3 * upper;
+          if (r() < 0.08) return [{ ...result(assay as ReportResult['assay'], 'ratio_cs', value, 0, 0, 0, 0), referenceLower: null, referenceUpper: null, referenceMean: null, pctOfMean: null }];
+          return [result(assay as ReportResult['assay'], 'ratio_cs', value, (value / mean) * 100, lower, upper, mean)];
+        }),
+      ),
+    ),
+  }));
+}
+
+/** Nearest rank [common practice]: the smallest value with at least q·n of the values at or below it. */
+const nearestRank = (sorted: number[], q: number) => sorted[Math.max(1, Math.ceil(q * sorted.length)) - 1]!;
+
+// Last: it replaces the hand-built cohort the tests above read.
+describe('plots agree with counts made from the rows', () => {
+  beforeAll(async () => {
+    await t.sequelize.query('DELETE FROM cohort_values');
+    await t.sequelize.query('DELETE FROM cohort_members');
+    const cases = await query('SELECT id FROM cases ORDER BY id LIMIT 4');
+    const [report] = await query('SELECT id FROM reports ORDER BY id LIMIT 1');
+    for (const s of randomCohort(cases.map((c) => Number(c.id)), Number(report!.id))) await writeCohortRows(t.sequelize, s);
+  });
+
+  /** Every member of the cohort with its values, read page by page through the search. */
+  async function everyMember(qs: string) {
+    const first = await cohort(qs);
+    const pages = await Promise.all(Array.from({ length: Math.ceil(first.total / 200) - 1 }, (_, i) => cohort(`${qs}&page=${i + 2}`)));
+    return { total: first.total, members: [first, ...pages].flatMap((p) => p.items) };
+  }
+
+  it.each(['', 'pattern=isolated', 'range=CI:ratio_cs:pct::60', 'specimenType=skeletal_muscle&sex=female', 'range=CIV:ratio_cs:value:1:&complex=CI'])(
+    'filter "%s": sizes, intervals, every bin and the quartiles match the rows',
+    async (qs) => {
+      const [{ total, members }, res] = await Promise.all([everyMember(qs), tech.get(`/api/registry/cohort/plots?${qs}`)]);
+      expect(res.status).toBe(200);
+      const plots = res.body as CohortPlots;
+      expect(total).toBeGreaterThan(0);
+      expect(plots.total).toBe(total);
+      for (const assay of Object.keys(COMPLEX_INTERVALS)) {
+        const rows = members.flatMap((m) => m.values).filter((v) => v.assay === assay && v.measure === 'ratio_cs');
+        const values = rows.filter((v) => v.value !== null).map((v) => v.value!);
+        const ratio = plots.ratioToCs.find((p) => p.assay === assay)!;
+        expect(ratio.n, assay).toBe(values.length);
+
+        // The interval shaded is the one most of the cohort's values were read against, counted here by hand.
+        const tally = new Map<string, number>();
+        for (const v of rows) if (v.value !== null && v.lower !== null && v.upper !== null) tally.set(JSON.stringify([v.lower, v.upper]), (tally.get(JSON.stringify([v.lower, v.upper])) ?? 0) + 1);
+        const [modal, modalN] = [...tally].sort((a, b) => b[1] - a[1])[0]!;
+        expect([ratio.interval!.lower, ratio.interval!.upper], assay).toEqual(JSON.parse(modal));
+        expect(ratio.interval!.n).toBe(modalN);
+
+        // Every bin: the values from its lower edge up to the next bin's, the last bin taking the tail.
+        const edges = ratio.bins.map((b) => b.from);
+        const counted = edges.map((from, i) => values.filter((v) => v >= from && (i === edges.length - 1 || v < edges[i + 1]!)).length);
+        expect(ratio.bins.map((b) => b.count), `${assay} bins`).toEqual(counted);
+        expect(counted.reduce((a, b) => a + b, 0)).toBe(values.length);
+        // Round widths: 1, 2 or 5 times a power of ten, the bins reaching past the interval's upper limit.
+        const mantissa = ratio.binWidth / 10 ** Math.floor(Math.log10(ratio.binWidth) + 1e-9);
+        expect([1, 2, 5].some((m) => Math.abs(mantissa - m) < 1e-9), `${assay} width ${ratio.binWidth}`).toBe(true);
+        expect(edges.at(-1)!).toBeGreaterThanOrEqual(ratio.interval!.upper);
+
+        // % of mean in whole percent, then nearest-rank quartiles of those.
+        const pcts = rows.filter((v) => v.pctOfMean !== null).map((v) => Math.floor(v.pctOfMean!)).sort((a, b) => a - b);
+        expect(plots.pctOfMean.find((p) => p.assay === assay), `${assay} % of mean`).toEqual(
+          pcts.length === 0
+            ? { assay, n: 0, min: null, q1: null, median: null, q3: null, max: null }
+            : { assay, n: pcts.length, min: pcts[0], q1: nearestRank(pcts, 0.25), median: nearestRank(pcts, 0.5), q3: nearestRank(pcts, 0.75), max: pcts.at(-1) },
+        );
+      }
+    },
+  );
 });

@@ -1,13 +1,14 @@
 import { QueryTypes, type Sequelize, type Transaction } from 'sequelize';
 import type { PatternKind } from '@/schemas/assay';
-import type { AssayCode, SpecimenType } from '@/schemas/common';
-import type { CohortComplex } from '@/schemas/registry';
+import { assayCodes, measures, type AssayCode, type Measure, type SpecimenType } from '@/schemas/common';
+import { cohortComplexes, rangeScales, type CohortComplex, type RangeScale } from '@/schemas/registry';
 import type { ReportDocument, ReportResult } from '@/schemas/report-document';
 import { patternCodeOf } from '@/schemas/results';
 
 /*
- * The rows of cohort_members and cohort_values (migration 0016) for one signed report: one member per accepted
- * specimen with results, one value per result row the report prints. Written at signing, in the signing
+ * The rows of cohort_members and cohort_values (migrations 0016, 0017) for one signed report: one member per accepted
+ * specimen with results (with each measure's value, % of mean and, for the ratios to CS, the interval as columns of
+ * its own), one value per result row the report prints. Written at signing, in the signing
  * transaction, replacing the rows of any earlier version of the case; and by the migration for reports signed
  * before the tables existed. Raw, portable SQL only: the migration runs this before any model is bound.
  */
@@ -29,6 +30,45 @@ export const complexFlagColumns = {
   'CI+III': 'lowCI_III',
   'CII+III': 'lowCII_III',
 } as const satisfies Record<CohortComplex, string>;
+
+/** Every assay × measure a result can carry: citrate synthase has an activity only, complex II no ratio to itself. */
+export const cohortMeasures: readonly { assay: AssayCode; measure: Measure }[] = assayCodes.flatMap((assay) =>
+  measures.filter((m) => (assay === 'CS' ? m === 'activity' : !(assay === 'CII' && m === 'ratio_cii'))).map((measure) => ({ assay, measure })),
+);
+
+/**
+ * The member column (migration 0017) holding one measure's value ('value') or its % of the reference mean ('pct'),
+ * e.g. "CI_III_ratio_cs_pct": range conditions read the member row alone.
+ */
+export const measureColumn = (assay: AssayCode, measure: Measure, scale: RangeScale): string => `${assay.replace('+', '_')}_${measure}_${scale}`;
+
+/** The member column with the reference interval a complex's ratio to CS was read against (the plots' shading). */
+export const intervalColumn = (complex: CohortComplex, bound: 'lower' | 'upper' | 'mean'): string => `${complex.replace('+', '_')}_ratio_cs_${bound}`;
+
+const INTERVAL_BOUNDS = { lower: 'referenceLower', upper: 'referenceUpper', mean: 'referenceMean' } as const;
+
+/** Every column migration 0017 adds to cohort_members, in order. */
+export const measureColumns: readonly string[] = [
+  ...cohortMeasures.flatMap(({ assay, measure }) => rangeScales.map((scale) => measureColumn(assay, measure, scale))),
+  ...cohortComplexes.flatMap((c) => Object.keys(INTERVAL_BOUNDS).map((b) => intervalColumn(c, b as keyof typeof INTERVAL_BOUNDS))),
+];
+
+/** A specimen's printed values as member columns (the first row printed for a measure, null where none was). */
+function measureColumnsOf(results: readonly ReportResult[]): Row {
+  const row: Row = Object.fromEntries(measureColumns.map((c) => [c, null]));
+  const seen = new Set<string>();
+  for (const r of results) {
+    const key = `${r.assay}:${r.measure}`;
+    if (seen.has(key) || !cohortMeasures.some((m) => m.assay === r.assay && m.measure === r.measure)) continue;
+    seen.add(key);
+    row[measureColumn(r.assay, r.measure, 'value')] = r.value;
+    row[measureColumn(r.assay, r.measure, 'pct')] = r.pctOfMean;
+    if (r.measure === 'ratio_cs' && r.assay !== 'CS') {
+      for (const [bound, field] of Object.entries(INTERVAL_BOUNDS)) row[intervalColumn(r.assay, bound as keyof typeof INTERVAL_BOUNDS)] = r[field];
+    }
+  }
+  return row;
+}
 
 const DEFICIENCY_KINDS: readonly PatternKind[] = ['isolated_deficiency', 'combined_deficiency', 'linked_activity_low'];
 
@@ -78,6 +118,7 @@ export function cohortRowsOf(src: CohortSource): { member: Row; values: Row[] }[
         ageYears: s.ageYears === null ? null : Math.floor(s.ageYears),
         signedOn: src.signedOn,
         patternCode: s.findings && s.findings.length > 0 ? patternCodeOf(s.findings) : null,
+        ...measureColumnsOf(s.results),
       };
       for (const [kind, column] of Object.entries(patternFlagColumns)) member[column] = kinds.has(kind as PatternKind);
       for (const [complex, column] of Object.entries(complexFlagColumns)) member[column] = low.has(complex as AssayCode);
@@ -96,9 +137,15 @@ export function cohortRowsOf(src: CohortSource): { member: Row; values: Row[] }[
 
 /**
  * Replaces the case's cohort rows with those of its newest signed report. Pass the signing transaction, so the
- * rows and the report are stored together or not at all.
+ * rows and the report are stored together or not at all. `measureColumns: false` writes the member columns of
+ * migration 0016 only (its backfill runs before 0017 adds the others, and 0017 fills them itself).
  */
-export async function writeCohortRows(sequelize: Sequelize, src: CohortSource, transaction?: Transaction): Promise<void> {
+export async function writeCohortRows(
+  sequelize: Sequelize,
+  src: CohortSource,
+  transaction?: Transaction,
+  { measureColumns: withMeasures = true }: { measureColumns?: boolean } = {},
+): Promise<void> {
   const qi = sequelize.getQueryInterface();
   const replacements = { caseId: src.caseId };
   await sequelize.query(
@@ -108,6 +155,7 @@ export async function writeCohortRows(sequelize: Sequelize, src: CohortSource, t
   await sequelize.query(`DELETE FROM cohort_members WHERE "caseId" = :caseId`, { replacements, transaction });
   const rows = cohortRowsOf(src);
   if (rows.length === 0) return;
+  if (!withMeasures) for (const r of rows) for (const c of measureColumns) delete r.member[c];
   await qi.bulkInsert('cohort_members', rows.map((r) => r.member), { transaction });
   // Inserted in order, so ids ascend in the order of the rows.
   const ids = (await sequelize.query(`SELECT id FROM cohort_members WHERE "caseId" = :caseId ORDER BY id`, {
@@ -183,7 +231,7 @@ export async function backfillCohort(sequelize: Sequelize): Promise<number> {
       for (const r of reports) {
         const snapshot = r.resultsSnapshot ? ((JSON.parse(r.resultsSnapshot) as { specimens?: SnapshotSpecimen[] }).specimens ?? []) : [];
         const source = cohortSourceOfStored(r, JSON.parse(r.document) as ReportDocument, specimens, snapshot);
-        await writeCohortRows(sequelize, source, transaction);
+        await writeCohortRows(sequelize, source, transaction, { measureColumns: false });
         written += 1;
       }
     });

@@ -5,6 +5,7 @@ import {
   ageBands,
   cohortComplexes,
   parseRangeToken,
+  type CohortComplex,
   type CohortCriteria,
   type CohortFilter,
   type CohortMember,
@@ -14,10 +15,11 @@ import {
   type CohortValue,
 } from '@/schemas/registry';
 import { ReportModel } from '../reports/report.model';
-import { complexFlagColumns, patternFlagColumns } from './cohort-rows';
+import { complexFlagColumns, intervalColumn, measureColumn, patternFlagColumns } from './cohort-rows';
 
 /*
- * Cohort queries over cohort_members / cohort_values (migration 0016). Portable SQL: double-quoted identifiers,
+ * Cohort queries over cohort_members / cohort_values (migrations 0016, 0017): every filter and the plots read
+ * the member rows alone; cohort_values gives a page's members their values. Portable SQL: double-quoted identifiers,
  * named replacements, LIMIT/OFFSET, FLOOR; nothing SQLite- or PostgreSQL-only.
  */
 
@@ -65,21 +67,18 @@ export function cohortWhere(f: CohortCriteria): Where {
     conds.push('m."signedOn" <= :signedTo');
     replacements.signedTo = f.signedTo;
   }
+  // Each measure's value and % of mean are columns of the member row (migration 0017): no subquery per range.
   (f.range ?? []).forEach((token, i) => {
     const r = parseRangeToken(token);
-    const column = r.scale === 'pct' ? '"pctOfMean"' : 'value';
-    const parts = [`assay = :ra${i}`, `measure = :rm${i}`, `${column} IS NOT NULL`];
-    replacements[`ra${i}`] = r.assay;
-    replacements[`rm${i}`] = r.measure;
+    const column = `m."${measureColumn(r.assay, r.measure, r.scale)}"`;
     if (r.min !== null) {
-      parts.push(`${column} >= :rlo${i}`);
+      conds.push(`${column} >= :rlo${i}`);
       replacements[`rlo${i}`] = r.min;
     }
     if (r.max !== null) {
-      parts.push(`${column} <= :rhi${i}`);
+      conds.push(`${column} <= :rhi${i}`);
       replacements[`rhi${i}`] = r.max;
     }
-    conds.push(`m.id IN (SELECT "memberId" FROM cohort_values WHERE ${parts.join(' AND ')})`);
   });
   return { sql: conds.length ? `WHERE ${conds.join(' AND ')}` : '', replacements };
 }
@@ -156,9 +155,11 @@ export async function findCohort(filters: CohortCriteria, paging: CohortPaging =
   if (total === 0 || (page - 1) * pageSize >= total) return { items: [], total, page, pageSize };
   const sort = paging.sort ?? 'signedOn';
   const dir = (paging.dir ?? (sort === 'signedOn' ? 'desc' : 'asc')) === 'asc' ? 'ASC' : 'DESC';
+  const order = `ORDER BY ${SORT_COLUMN[sort]} ${dir}, m.id ${dir}`;
+  // The page's ids first (a deep page steps over an index of the sort key, not over whole rows), then their rows.
   const rows = (await db().query(
-    `SELECT ${MEMBER_COLUMNS} FROM cohort_members m ${where}
-      ORDER BY ${SORT_COLUMN[sort]} ${dir}, m.id ${dir} LIMIT :limit OFFSET :offset`,
+    `SELECT ${MEMBER_COLUMNS} FROM cohort_members m
+      WHERE m.id IN (SELECT m.id FROM cohort_members m ${where} ${order} LIMIT :limit OFFSET :offset) ${order}`,
     { replacements: { ...replacements, limit: pageSize, offset: (page - 1) * pageSize }, type: QueryTypes.SELECT },
   )) as MemberRow[];
   return { items: await withValues(rows), total, page, pageSize };
@@ -212,77 +213,91 @@ function quantileOfBins(bins: { at: number; count: number }[], n: number, q: num
   return bins.at(-1)!.at;
 }
 
+type IntervalGroup = { lower: number | null; upper: number | null; mean: number | null; n: number; top: number };
+
 /**
  * What the cohort page draws, over the whole cohort: for each complex, the distribution of its ratio to CS in
  * round bins with the reference interval most members were read against; and the quartiles of that ratio as %
- * of the reference mean, counted in whole percent (the precision a report prints).
+ * of the reference mean, counted in whole percent (the precision a report prints). Two queries over the member
+ * rows (migration 0017), whatever the filter: the intervals, then every complex's bins.
  */
 export async function cohortPlots(filters: CohortCriteria): Promise<CohortPlots> {
   const { sql: where, replacements } = cohortWhere(filters);
-  // With no criteria every value belongs to the cohort, so the members need not be joined at all.
-  const scope = where
-    ? `FROM cohort_values v JOIN cohort_members m ON m.id = v."memberId" ${where} AND v.measure = 'ratio_cs' AND v.assay IN (:complexes)`
-    : `FROM cohort_values v WHERE v.measure = 'ratio_cs' AND v.assay IN (:complexes)`;
-  const base = { ...replacements, complexes: [...cohortComplexes] };
-  const [{ n: total }] = (await db().query(`SELECT COUNT(*) AS n FROM cohort_members m ${where}`, {
-    replacements,
-    type: QueryTypes.SELECT,
-  })) as [{ n: number | string }];
+  const ratio = (c: CohortComplex, scale: 'value' | 'pct') => `m."${measureColumn(c, 'ratio_cs', scale)}"`;
+  const BOUNDS = ['lower', 'upper', 'mean'] as const;
+  const intervals = cohortComplexes.flatMap((c) => BOUNDS.map((b) => `m."${intervalColumn(c, b)}"`));
 
+  // The cohort's size, and for each set of intervals met: each complex's count of values and largest value.
   const groups = (await db().query(
-    `SELECT v.assay, v.lower, v.upper, v.mean, COUNT(*) AS n, MAX(v.value) AS top ${scope} AND v.value IS NOT NULL
-      GROUP BY v.assay, v.lower, v.upper, v.mean`,
-    { replacements: base, type: QueryTypes.SELECT },
-  )) as { assay: string; lower: number | null; upper: number | null; mean: number | null; n: number | string; top: number | string }[];
+    `SELECT COUNT(*) AS n, ${cohortComplexes.map((c, i) => `COUNT(${ratio(c, 'value')}) AS n${i}, MAX(${ratio(c, 'value')}) AS top${i}`).join(', ')},
+            ${intervals.map((col, j) => `${col} AS i${j}`).join(', ')}
+       FROM cohort_members m ${where} GROUP BY ${intervals.join(', ')}`,
+    { replacements, type: QueryTypes.SELECT },
+  )) as Record<string, number | string | null>[];
+  const total = groups.reduce((sum, g) => sum + Number(g.n), 0);
 
-  const perAssay = cohortComplexes.map((assay) => {
-    const mine = groups.filter((g) => g.assay === assay);
-    const n = mine.reduce((s, g) => s + Number(g.n), 0);
-    const withInterval = mine.filter((g) => g.lower !== null && g.upper !== null);
-    const modal = withInterval.reduce<(typeof mine)[number] | null>((best, g) => (best === null || Number(g.n) > Number(best.n) ? g : best), null);
-    const top = Math.max(0, ...mine.map((g) => Number(g.top)));
+  const perAssay = cohortComplexes.map((assay, i) => {
+    // One entry per interval of this complex (the groups above also split on the other complexes' intervals).
+    const byInterval = new Map<string, IntervalGroup>();
+    for (const g of groups) {
+      const n = Number(g[`n${i}`]);
+      if (n === 0) continue;
+      const [lower, upper, mean] = BOUNDS.map((_, b) => num(g[`i${i * 3 + b}`] ?? null));
+      const key = JSON.stringify([lower, upper, mean]);
+      const seen = byInterval.get(key);
+      byInterval.set(key, { lower: lower!, upper: upper!, mean: mean!, n: (seen?.n ?? 0) + n, top: Math.max(seen?.top ?? -Infinity, Number(g[`top${i}`])) });
+    }
+    const mine = [...byInterval.values()].sort((a, b) => (a.lower ?? -Infinity) - (b.lower ?? -Infinity) || (a.upper ?? -Infinity) - (b.upper ?? -Infinity) || (a.mean ?? -Infinity) - (b.mean ?? -Infinity));
+    const n = mine.reduce((sum, g) => sum + g.n, 0);
+    const modal = mine.filter((g) => g.lower !== null && g.upper !== null).reduce<IntervalGroup | null>((best, g) => (best === null || g.n > best.n ? g : best), null);
+    const top = Math.max(0, ...mine.map((g) => g.top));
     // Up to twice the upper limit, or less when the cohort ends sooner (never below 1.2 × the limit).
-    const span = modal ? Math.min(Number(modal.upper) * 2, Math.max(top, Number(modal.upper) * 1.2)) : top;
+    const span = modal ? Math.min(modal.upper! * 2, Math.max(top, modal.upper! * 1.2)) : top;
     return {
       assay,
       n,
       binWidth: niceWidth(span),
-      interval: modal
-        ? { lower: Number(modal.lower), upper: Number(modal.upper), mean: num(modal.mean), n: Number(modal.n) }
-        : null,
+      interval: modal ? { lower: modal.lower!, upper: modal.upper!, mean: modal.mean, n: modal.n } : null,
     };
   });
 
-  const widthCase = `CASE v.assay ${perAssay.map((a, i) => `WHEN :a${i} THEN :w${i}`).join(' ')} END`;
-  const widths = Object.fromEntries(perAssay.flatMap((a, i) => [[`a${i}`, a.assay], [`w${i}`, a.binWidth]]));
+  // Each complex's values in its round bins and its % of mean in whole percent, counted together: the two go
+  // hand in hand (a % of mean is the value over one mean), so the groups stay few.
   // The millionth of a bin absorbs floating-point error at bin edges (0.24 / 0.02 = 11.999…).
   const binRows = (await db().query(
-    `SELECT v.assay, FLOOR(v.value / ${widthCase} + 0.000001) AS b, COUNT(*) AS n ${scope} AND v.value IS NOT NULL GROUP BY v.assay, FLOOR(v.value / ${widthCase} + 0.000001)`,
-    { replacements: { ...base, ...widths }, type: QueryTypes.SELECT },
-  )) as { assay: string; b: number | string; n: number | string }[];
-  const pctRows = (await db().query(
-    `SELECT v.assay, FLOOR(v."pctOfMean") AS b, COUNT(*) AS n ${scope} AND v."pctOfMean" IS NOT NULL GROUP BY v.assay, FLOOR(v."pctOfMean")`,
-    { replacements: base, type: QueryTypes.SELECT },
-  )) as { assay: string; b: number | string; n: number | string }[];
+    perAssay
+      .map((a, i) => {
+        const bin = `FLOOR(${ratio(a.assay, 'value')} / :w${i} + 0.000001)`;
+        const pct = `FLOOR(${ratio(a.assay, 'pct')})`;
+        return `SELECT ${i} AS k, ${bin} AS b, ${pct} AS p, COUNT(*) AS n FROM cohort_members m ${where} GROUP BY ${bin}, ${pct}`;
+      })
+      .join(' UNION ALL '),
+    { replacements: { ...replacements, ...Object.fromEntries(perAssay.map((a, i) => [`w${i}`, a.binWidth])) }, type: QueryTypes.SELECT },
+  )) as { k: number | string; b: number | string | null; p: number | string | null; n: number | string }[];
+  const binCounts = perAssay.map(() => new Map<number, number>());
+  const pctCounts = perAssay.map(() => new Map<number, number>());
+  for (const r of binRows) {
+    const k = Number(r.k);
+    const add = (counts: Map<number, number>, at: number) => counts.set(at, (counts.get(at) ?? 0) + Number(r.n));
+    if (r.b !== null) add(binCounts[k]!, Number(r.b));
+    if (r.p !== null) add(pctCounts[k]!, Number(r.p));
+  }
 
   return {
-    total: Number(total),
-    ratioToCs: perAssay.map((a) => {
+    total,
+    ratioToCs: perAssay.map((a, k) => {
       // Bins past the last one drawn (a long upper tail) are counted into it, so every member shows.
       const last = Math.max(BINS, Math.ceil((a.interval?.upper ?? 0) / a.binWidth) + 2) - 1;
       const counts = new Map<number, number>();
-      for (const r of binRows.filter((x) => x.assay === a.assay)) {
-        const i = Math.min(Math.max(0, Number(r.b)), last);
-        counts.set(i, (counts.get(i) ?? 0) + Number(r.n));
+      for (const [b, n] of binCounts[k]!) {
+        const i = Math.min(Math.max(0, b), last);
+        counts.set(i, (counts.get(i) ?? 0) + n);
       }
       const bins = Array.from({ length: last + 1 }, (_, i) => ({ from: Number((i * a.binWidth).toPrecision(12)), count: counts.get(i) ?? 0 }));
       return { ...a, bins };
     }),
-    pctOfMean: cohortComplexes.map((assay) => {
-      const bins = pctRows
-        .filter((r) => r.assay === assay)
-        .map((r) => ({ at: Number(r.b), count: Number(r.n) }))
-        .sort((x, y) => x.at - y.at);
+    pctOfMean: cohortComplexes.map((assay, k) => {
+      const bins = [...pctCounts[k]!].map(([at, count]) => ({ at, count })).sort((x, y) => x.at - y.at);
       const n = bins.reduce((s, b) => s + b.count, 0);
       if (n === 0) return { assay, n, min: null, q1: null, median: null, q3: null, max: null };
       return {
