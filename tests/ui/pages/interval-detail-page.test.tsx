@@ -2,6 +2,7 @@ import { fireEvent, screen, within } from '@testing-library/react';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import IntervalDetailPage from '@/app/routes/intervals/interval-detail';
 import type { StoredInterval } from '@/schemas/reference-interval-api';
+import { buildIntervalDraft } from '../../factories/intervals';
 import { startRealApp, type RealApp } from '../../setup/real-app-fetch';
 import { renderPage } from './render-page';
 import { expectPrintedAs, numbersIn } from './shown-numbers';
@@ -26,23 +27,8 @@ async function send(path: string, body: unknown): Promise<StoredInterval> {
   return json;
 }
 
-const draftBody = (over: Record<string, unknown>) => ({
-  setName: 'Component test set (fictitious)',
-  assay: 'CIII',
-  measure: 'activity',
-  specimenType: 'liver',
-  ageBand: { label: 'All ages', minYears: 0, maxYears: null },
-  lower: 50,
-  upper: 150,
-  mean: 100,
-  sd: 25,
-  n: 40,
-  method: 'mean2sd',
-  sourceNote: 'Typed in for a component test; invented numbers',
-  effectiveFrom: '2025-03-01',
-  effectiveTo: null,
-  ...over,
-});
+// The shared draft body (tests/factories/intervals.ts): CIII activity in liver, all ages, invented numbers.
+const draftBody = (over: Record<string, unknown>) => buildIntervalDraft({ setName: 'Component test set (fictitious)', ...over });
 
 beforeAll(async () => {
   app = await startRealApp();
