@@ -17,7 +17,7 @@ describe('rate check, in Chromium', () => {
     await page.getByLabel(/Background trace/).fill(lines(1.1, -0.01));
     await page.getByRole('button', { name: 'Calculate' }).click();
     await expect(page.getByTestId('activity').textContent()).resolves.toBe('100');
-    await expect(page.getByText('No flags.').isVisible()).resolves.toBe(true);
+    await page.getByText('No flags.').waitFor();
     expect(await page.locator('figure .recharts-line').count()).toBe(2); // a fitted line per trace
     await page.getByLabel('Set the window by hand').check();
     await page.getByLabel('To (s)').fill('40');

@@ -75,7 +75,7 @@ describe('excluding a replicate in Chromium', () => {
     await expect(row.getByTestId('exclusion-note').textContent()).resolves.toMatch(/^Excluded by Tamsin Oduya on .+: Air bubble in the cuvette after 40 s$/);
     const activityCell = row.locator('td').nth(4);
     await expect(activityCell.evaluate((el) => getComputedStyle(el).textDecorationLine)).resolves.toBe('line-through');
-    await expect(row.getByRole('button', { name: 'Include again' }).isVisible()).resolves.toBe(true);
+    await row.getByRole('button', { name: 'Include again' }).waitFor();
     await screenshot(page, 'exclusion-02-bench-struck-through');
 
     // The results: the value struck through, the reason beside it, n = 2.
