@@ -48,8 +48,15 @@ export default async function setup(project: TestProject): Promise<() => void> {
     holder.cristaeSqliteTemplate = { dir, users: 0, file };
   }
   const shared = holder.cristaeSqliteTemplate;
+  let file: string;
+  try {
+    file = await shared.file;
+  } catch (err) {
+    fs.rmSync(shared.dir, { recursive: true, force: true });
+    throw err;
+  }
   shared.users += 1;
-  project.provide(SQLITE_TEMPLATE_KEY, await shared.file);
+  project.provide(SQLITE_TEMPLATE_KEY, file);
   return () => {
     shared.users -= 1;
     if (shared.users > 0) return;

@@ -12,9 +12,15 @@ import { DATABASE_FILE, E2E_TEMPLATE_KEY, spawnServer } from './server';
  */
 export default async function setup(project: TestProject): Promise<() => void> {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'cristae-e2e-template-'));
-  // A failure here stops every spec, so the first start (which also migrates and seeds) gets more time.
-  const server = await spawnServer({ NOTICE_WORKER_DELAY_MS: String(24 * 60 * 60_000) }, dataDir, 300);
-  await server.stop();
+  const remove = () => fs.rmSync(dataDir, { recursive: true, force: true });
+  try {
+    // A failure here stops every spec, so the first start (which also migrates and seeds) gets more time.
+    const server = await spawnServer({ NOTICE_WORKER_DELAY_MS: String(24 * 60 * 60_000) }, dataDir, 300);
+    await server.stop();
+  } catch (err) {
+    remove();
+    throw err;
+  }
   project.provide(E2E_TEMPLATE_KEY, path.join(dataDir, DATABASE_FILE));
-  return () => fs.rmSync(dataDir, { recursive: true, force: true });
+  return remove;
 }
