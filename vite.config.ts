@@ -14,8 +14,9 @@ export default defineConfig({
   server: { proxy: { '/api': 'http://localhost:3000' } },
   test: {
     reporters: ['default', './tests/setup/plain-summary-reporter.ts'],
-    // Two test files at a time in every project, browser specs included (each has its own server, port, database
-    // and Chromium). Vitest's default is one fewer than the cores: a single worker on the 2-core machines we use.
+    // Two test files at a time (Vitest's default is one fewer than the cores: a single worker on the 2-core machines
+    // we use). The browser specs still run one at a time (fileParallelism below): each has its own server, port,
+    // database and Chromium, so two at once is safe, but it has not yet been shown faster on 2 cores.
     maxWorkers: 2,
     projects: [
       {
@@ -76,6 +77,7 @@ export default defineConfig({
           globalSetup: ['tests/e2e/support/template.ts'],
           testTimeout: 120_000,
           hookTimeout: 180_000,
+          fileParallelism: false,
         },
       },
     ],
