@@ -109,6 +109,10 @@ describe('zodFields', () => {
   });
 });
 
+/** A Sequelize error item (its type declarations also ask for the model instance and validator, unused here). */
+const item = (message: string, type: 'unique violation' | 'notNull violation' | 'Validation error', path: string | null, value: string | null) =>
+  new ValidationErrorItem(message, type, path as string, value as string, undefined as never, undefined as never, undefined as never, []);
+
 /** Runs an error through a tiny Express app so body-parser errors are the library's own. */
 function appWith(throwing: express.RequestHandler, ...before: express.RequestHandler[]) {
   const app = express();
@@ -168,21 +172,21 @@ describe('toHttpError', () => {
 
   it('database constraint errors are 409 (unique, foreign key) or 400 (validation), naming the column', () => {
     // [confirmed] RFC 9110 §15.5.10: 409 for a conflict with the current state of the resource.
-    const unique = new UniqueConstraintError({ errors: [new ValidationErrorItem('must be unique', 'unique violation', 'email', 'a@b.test')] });
+    const unique = new UniqueConstraintError({ errors: [item('must be unique', 'unique violation', 'email', 'a@b.test')] });
     const u = toHttpError(unique);
     expect(u.status).toBe(409);
     expect(u.body.error).toMatchObject({ code: 'CONFLICT', fields: { email: 'email is already in use' } });
     expect(u.body.error.message).toMatch(/same key/);
-    const anonymous = new UniqueConstraintError({ errors: [new ValidationErrorItem('dup', 'unique violation', null as never, 'v')] });
+    const anonymous = new UniqueConstraintError({ errors: [item('dup', 'unique violation', null, 'v')] });
     expect(toHttpError(anonymous).body.error.fields).toEqual({ record: 'Value is already in use' });
     expect(toHttpError(new UniqueConstraintError({})).body.error.fields).toEqual({});
     const fk = toHttpError(new ForeignKeyConstraintError({}));
     expect(fk.status).toBe(409);
     expect(fk.body.error.code).toBe('CONFLICT');
     expect(fk.body.error.message).toMatch(/referenced/);
-    const invalid = toHttpError(new ValidationError('bad', [new ValidationErrorItem('Name is required', 'notNull violation', 'name', null)]));
+    const invalid = toHttpError(new ValidationError('bad', [item('Name is required', 'notNull violation', 'name', null)]));
     expect(invalid).toEqual({ status: 400, body: { error: { code: 'VALIDATION_FAILED', message: expect.stringMatching(/not valid/), fields: { name: 'Name is required' } } } });
-    const unnamed = toHttpError(new ValidationError('bad', [new ValidationErrorItem('broken', 'Validation error', null as never, null)]));
+    const unnamed = toHttpError(new ValidationError('bad', [item('broken', 'Validation error', null, null)]));
     expect(unnamed.body.error.fields).toEqual({ record: 'broken' });
   });
 
