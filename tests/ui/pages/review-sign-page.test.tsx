@@ -75,7 +75,8 @@ describe('the review and sign page against the real app', { timeout: 180_000 }, 
     fireEvent.change(passwordField(), { target: { value: 'cristae-demo' } });
     fireEvent.click(signButton());
 
-    expect(await screen.findByText(/Version 1 is signed and stored \(final report\)/)).toBeInTheDocument();
+    // Signing renders and stores the PDF: on a busy shared machine this is the slowest answer of the page.
+    expect(await screen.findByText(/Version 1 is signed and stored \(final report\)/, undefined, { timeout: 120_000 })).toBeInTheDocument();
     expect(screen.getByText(/Dr Rafael Quenby is being e-mailed/)).toBeInTheDocument();
     // The sign form is gone: the case no longer awaits review.
     await waitFor(() => expect(screen.queryByRole('form', { name: 'Sign the report' })).not.toBeInTheDocument());
