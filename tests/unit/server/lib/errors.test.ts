@@ -110,7 +110,7 @@ describe('zodFields', () => {
 });
 
 /** A Sequelize error item (its type declarations also ask for the model instance and validator, unused here). */
-const item = (message: string, type: 'unique violation' | 'notNull violation' | 'Validation error', path: string | null, value: string | null) =>
+const item = (message: string, type: 'unique violation' | 'notnull violation' | 'validation error', path: string | null, value: string | null) =>
   new ValidationErrorItem(message, type, path as string, value as string, undefined as never, undefined as never, undefined as never, []);
 
 /** Runs an error through a tiny Express app so body-parser errors are the library's own. */
@@ -184,9 +184,9 @@ describe('toHttpError', () => {
     expect(fk.status).toBe(409);
     expect(fk.body.error.code).toBe('CONFLICT');
     expect(fk.body.error.message).toMatch(/referenced/);
-    const invalid = toHttpError(new ValidationError('bad', [item('Name is required', 'notNull violation', 'name', null)]));
+    const invalid = toHttpError(new ValidationError('bad', [item('Name is required', 'notnull violation', 'name', null)]));
     expect(invalid).toEqual({ status: 400, body: { error: { code: 'VALIDATION_FAILED', message: expect.stringMatching(/not valid/), fields: { name: 'Name is required' } } } });
-    const unnamed = toHttpError(new ValidationError('bad', [item('broken', 'Validation error', null, null)]));
+    const unnamed = toHttpError(new ValidationError('bad', [item('broken', 'validation error', null, null)]));
     expect(unnamed.body.error.fields).toEqual({ record: 'broken' });
   });
 
