@@ -15,6 +15,7 @@ import { logError } from './lib/log';
 import { route } from './lib/route';
 import { scoped } from './lib/scoped-router';
 import { fixedHeaders } from './lib/fixed-headers';
+import { limitReadsWhileWriting } from './lib/read-gate';
 import { assayDefinitionsRouter } from './modules/assay-definitions/assay-definitions.router';
 import { auditRouter } from './modules/audit/audit.router';
 import { authRouter } from './modules/auth/auth.router';
@@ -48,6 +49,8 @@ export type AppOptions = {
   expireSessions?: boolean;
   /** Sends the report notices; without one, notices are recorded as not sent (no mail server). */
   mailer?: Mailer;
+  /** API reads worked on at once while writes are in flight (server/lib/read-gate.ts). */
+  readConcurrency?: number;
 };
 
 export const JSON_BODY_LIMIT = '256kb';
@@ -98,6 +101,7 @@ export function createApp(opts: AppOptions): Express {
   if (client) app.use(serveClient(client));
 
   app.use('/api', requireSameOrigin(config.allowedOrigins));
+  app.use('/api', limitReadsWhileWriting(opts.readConcurrency ?? 2));
   app.use('/api', express.json({ limit: JSON_BODY_LIMIT }));
   app.use(
     '/api',

@@ -36,8 +36,8 @@ async function openSqlite(storage: string): Promise<Sequelize> {
   if (!inMemory) {
     await sequelize.query('PRAGMA journal_mode = WAL');
     await sequelize.query('PRAGMA busy_timeout = 5000');
-    await tuneSqliteConnections(sequelize);
   }
+  await tuneSqliteConnections(sequelize);
   return sequelize;
 }
 

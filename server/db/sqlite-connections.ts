@@ -5,6 +5,8 @@ type SqliteConnection = {
   uuid?: string;
   filename?: string;
   run: (sql: string, callback: (err: Error | null) => void) => void;
+  all: (sql: string, ...rest: unknown[]) => unknown;
+  exec?: (sql: string, ...rest: unknown[]) => unknown;
   close: (callback?: (err: Error | null) => void) => void;
 };
 type ConnectionManager = {
@@ -28,6 +30,57 @@ const READERS = 3;
 const run = (connection: SqliteConnection, sql: string) =>
   new Promise<void>((resolve, reject) => connection.run(sql, (err) => (err ? reject(err) : resolve())));
 
+const TABLE_INFO = /^PRAGMA table_info\(`([^`]+)`\)$/;
+const SCHEMA_CHANGE = /^\s*(CREATE|ALTER|DROP)\s/i;
+const cached = Symbol('table-info cache');
+type TableInfoCache = Map<string, unknown[]>;
+
+/**
+ * Before every model SELECT, Sequelize's sqlite dialect asks `PRAGMA table_info` of the table (to parse dates and
+ * booleans), and keeps the answer for that one query only: a second round trip through the thread pool per read,
+ * inside a write transaction too. The answer changes only when the schema does, so it is kept per database here and
+ * forgotten whenever any connection runs CREATE, ALTER or DROP (migrations).
+ */
+function cacheTableInfo(connection: SqliteConnection, cache: TableInfoCache): SqliteConnection {
+  const c = connection as SqliteConnection & { [cached]?: true };
+  if (c[cached]) return connection;
+  c[cached] = true;
+  const all = connection.all.bind(connection);
+  connection.all = (sql: string, ...rest: unknown[]) => {
+    const table = TABLE_INFO.exec(sql)?.[1];
+    const callback = rest[rest.length - 1] as (err: Error | null, rows?: unknown[]) => void;
+    if (table === undefined || typeof callback !== 'function') {
+      if (SCHEMA_CHANGE.test(sql)) cache.clear();
+      return all(sql, ...rest);
+    }
+    const known = cache.get(table);
+    if (known) {
+      process.nextTick(() => callback(null, known));
+      return connection;
+    }
+    return all(sql, ...rest.slice(0, -1), (err: Error | null, rows?: unknown[]) => {
+      if (!err && rows && rows.length > 0) cache.set(table, rows);
+      callback(err, rows);
+    });
+  };
+  for (const method of ['run', 'exec'] as const) {
+    const original = connection[method]?.bind(connection) as ((sql: string, ...rest: unknown[]) => unknown) | undefined;
+    if (!original) continue;
+    (connection as unknown as Record<string, unknown>)[method] = (sql: string, ...rest: unknown[]) => {
+      if (SCHEMA_CHANGE.test(sql)) cache.clear();
+      return original(sql, ...rest);
+    };
+  }
+  return connection;
+}
+
+/** Keeps every connection the manager hands out answering `PRAGMA table_info` from one cache per database. */
+function installTableInfoCache(manager: ConnectionManager): void {
+  const cache: TableInfoCache = new Map();
+  const open = manager.getConnection.bind(manager);
+  manager.getConnection = async (options) => cacheTableInfo(await open(options), cache);
+}
+
 /**
  * Sequelize's sqlite dialect opens a new connection for every transaction and closes it at the end, so each
  * write paid for opening the file and reading its schema again. Here a transaction's connection goes back to a
@@ -39,8 +92,10 @@ const run = (connection: SqliteConnection, sql: string) =>
  * A file database only; an in-memory database keeps its one shared connection.
  */
 export async function tuneSqliteConnections(sequelize: Sequelize): Promise<void> {
-  if (sequelize.getDialect() !== 'sqlite' || (sequelize as unknown as { options: { storage?: string } }).options.storage === ':memory:') return;
+  if (sequelize.getDialect() !== 'sqlite') return;
   const manager = sequelize.connectionManager as unknown as ConnectionManager;
+  installTableInfoCache(manager);
+  if ((sequelize as unknown as { options: { storage?: string } }).options.storage === ':memory:') return;
   const open = manager.getConnection.bind(manager);
   const release = manager.releaseConnection.bind(manager);
   const idle: SqliteConnection[] = [];

@@ -19,18 +19,92 @@ const WRITE_LOCK = 0x63726973; // any fixed key; "cris"
 
 const queues = new WeakMap<Sequelize, Promise<unknown>>();
 
+let waitingOrRunning = 0;
+/** Write transactions queued or running in this process (server/lib/read-gate.ts gives them precedence). */
+export const writesInFlight = (): number => waitingOrRunning;
+
 export async function writeTransaction<T>(sequelize: Sequelize, work: (t: Transaction) => Promise<T>): Promise<T> {
+  waitingOrRunning++;
+  try {
+    return await queuedWrite(sequelize, work);
+  } finally {
+    waitingOrRunning--;
+  }
+}
+
+function queuedWrite<T>(sequelize: Sequelize, work: (t: Transaction) => Promise<T>): Promise<T> {
+  if (sequelize.getDialect() !== 'postgres') return groupCommit(sequelize, work);
   const previous = queues.get(sequelize) ?? Promise.resolve();
   const run = previous.catch(() => undefined).then(() =>
-    sequelize.getDialect() === 'postgres'
-      ? sequelize.transaction(async (t) => {
-          await sequelize.query(`SELECT pg_advisory_xact_lock(${WRITE_LOCK})`, { transaction: t });
-          return work(t);
-        })
-      : sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, work),
+    sequelize.transaction(async (t) => {
+      await sequelize.query(`SELECT pg_advisory_xact_lock(${WRITE_LOCK})`, { transaction: t });
+      return work(t);
+    }),
   );
   queues.set(sequelize, run.catch(() => undefined));
   return run;
+}
+
+/*
+ * SQLite: group commit. Writers that arrive while a transaction is open wait; when it ends, every waiting write
+ * (up to MAX_GROUP) runs in ONE transaction, one after another in arrival order, and each is answered only after
+ * that transaction has committed. Every write still sees the ones before it and nothing else, exactly as if each
+ * had committed alone in that order, but the group pays for BEGIN and COMMIT once. Each statement costs a trip
+ * through the thread pool and back to Node's busy event loop, so under load those two trips were a third of
+ * every registration.
+ * When a write in a group fails, the transaction is rolled back whole; the writes before it run again as a group
+ * (they succeeded once on the same data), then the failing one alone (so it fails, or not, on its own, with its
+ * own error), and the rest wait for the next group. A write's work must therefore be safe to run again after a
+ * rollback: every write's effects are inside the transaction (mail goes through the outbox table; caches are
+ * updated in afterCommit hooks, which run only after a commit).
+ */
+const MAX_GROUP = 32;
+type Pending = { work: (t: Transaction) => Promise<unknown>; resolve: (v: unknown) => void; reject: (e: unknown) => void };
+const waiting = new WeakMap<Sequelize, { queue: Pending[]; draining: boolean }>();
+
+function groupCommit<T>(sequelize: Sequelize, work: (t: Transaction) => Promise<T>): Promise<T> {
+  let state = waiting.get(sequelize);
+  if (!state) waiting.set(sequelize, (state = { queue: [], draining: false }));
+  const s = state;
+  const result = new Promise<T>((resolve, reject) => s.queue.push({ work, resolve: resolve as (v: unknown) => void, reject }));
+  if (!s.draining) void drain(sequelize, s);
+  return result;
+}
+
+async function drain(sequelize: Sequelize, s: { queue: Pending[]; draining: boolean }): Promise<void> {
+  s.draining = true;
+  try {
+    while (s.queue.length > 0) await runGroup(sequelize, s.queue.splice(0, MAX_GROUP), s.queue);
+  } finally {
+    // Synchronously after the last check of the queue: a write queued from here on starts a new drain.
+    s.draining = false;
+  }
+}
+
+const immediate = (sequelize: Sequelize, work: (t: Transaction) => Promise<unknown>) =>
+  sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, work);
+
+async function runGroup(sequelize: Sequelize, group: Pending[], queue: Pending[]): Promise<void> {
+  if (group.length === 1) {
+    const [only] = group as [Pending];
+    await immediate(sequelize, only.work).then(only.resolve, only.reject);
+    return;
+  }
+  const results: unknown[] = [];
+  try {
+    await immediate(sequelize, async (t) => {
+      for (const pending of group) results.push(await pending.work(t));
+    });
+  } catch {
+    // results.length is the index of the write that failed (or the group failed at COMMIT, after all of them).
+    const failed = Math.min(results.length, group.length - 1);
+    queue.unshift(...group.slice(failed + 1));
+    if (failed > 0) await runGroup(sequelize, group.slice(0, failed), queue);
+    const culprit = group[failed]!;
+    await immediate(sequelize, culprit.work).then(culprit.resolve, culprit.reject);
+    return;
+  }
+  group.forEach((pending, i) => pending.resolve(results[i]));
 }
 
 /** Runs inside the caller's transaction when one is given, otherwise in a queued write transaction of its own. */

@@ -69,7 +69,7 @@ export async function registerCase(
   opts: { now?: Date } = {},
 ): Promise<CaseDetail> {
   const timeZone = await labTimeZone();
-  return writeTransaction(sequelize, async (t) => {
+  const id = await writeTransaction(sequelize, async (t) => {
     const now = opts.now ?? new Date();
     const patient = await findPatientById(input.patientId, t);
     if (!patient) throw badInput({ patientId: 'This patient is not registered; choose or register the patient' });
@@ -101,8 +101,10 @@ export async function registerCase(
       t,
     );
     await storeSpecimen(actor, { ...specimenRow, caseId: created.id }, t);
-    return (await repo.loadCaseDetail(created.id, t))!;
+    return created.id;
   });
+  // Read back once committed, outside the one-at-a-time write section (four queries it need not wait for).
+  return (await repo.loadCaseDetail(id))!;
 }
 
 export async function updateCase(sequelize: Sequelize, actor: User, id: number, input: UpdateCaseInput): Promise<CaseDetail> {

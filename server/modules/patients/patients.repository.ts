@@ -20,19 +20,25 @@ export async function findPatientById(id: number, transaction?: Transaction): Pr
   return row ? toPatient(row) : null;
 }
 
-export async function findPatientByLabId(labPatientId: string, transaction?: Transaction): Promise<Patient | null> {
-  const row = await PatientModel.findOne({ where: { labPatientId }, transaction });
-  return row ? toPatient(row) : null;
-}
-
-/** Every patient registered under this folded name and date of birth, oldest registration first. */
-export async function findPatientsByNameAndBirth(
-  nameKey: string,
-  dateOfBirth: string,
+/**
+ * The patients a new or corrected registration could duplicate, in one query: the one holding this lab ID, and
+ * every one registered under this folded name and date of birth (oldest registration first).
+ */
+export async function findPossibleDuplicates(
+  candidate: { labPatientId: string; nameKey: string; dateOfBirth: string },
   transaction?: Transaction,
-): Promise<Patient[]> {
-  const rows = await PatientModel.findAll({ where: { nameKey, dateOfBirth }, order: [['id', 'ASC']], transaction });
-  return rows.map(toPatient);
+): Promise<{ byLabId: Patient | null; sameNameAndBirth: Patient[] }> {
+  const { labPatientId, nameKey, dateOfBirth } = candidate;
+  const rows = await PatientModel.findAll({
+    where: { [Op.or]: [{ labPatientId }, { nameKey, dateOfBirth }] },
+    order: [['id', 'ASC']],
+    transaction,
+  });
+  const byLabId = rows.find((r) => r.labPatientId === labPatientId);
+  return {
+    byLabId: byLabId ? toPatient(byLabId) : null,
+    sameNameAndBirth: rows.filter((r) => r.nameKey === nameKey && r.dateOfBirth === dateOfBirth).map(toPatient),
+  };
 }
 
 /**

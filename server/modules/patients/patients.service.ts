@@ -40,13 +40,11 @@ async function assertNotDuplicate(
   distinct: DistinctPerson,
   transaction: Transaction,
 ): Promise<string | null> {
-  const byId = await repo.findPatientByLabId(candidate.labPatientId, transaction);
+  const { byLabId: byId, sameNameAndBirth } = await repo.findPossibleDuplicates(candidate, transaction);
   if (byId && byId.id !== exceptId) {
     throw duplicateOf(byId, ['labPatientId'], `Lab patient ID ${candidate.labPatientId} is already registered`);
   }
-  const sameName = (await repo.findPatientsByNameAndBirth(candidate.nameKey, candidate.dateOfBirth, transaction)).filter(
-    (p) => p.id !== exceptId,
-  );
+  const sameName = sameNameAndBirth.filter((p) => p.id !== exceptId);
   const { confirmDistinctFrom: otherId, distinctReason: reason } = distinct;
   if (otherId === undefined || !reason) {
     if (sameName[0]) {

@@ -1,0 +1,190 @@
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import express from 'express';
+import request from 'supertest';
+import { QueryTypes, type Sequelize } from 'sequelize';
+import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
+import { openDatabase } from '../../server/db/sequelize';
+import { writeTransaction, writesInFlight } from '../../server/db/write-transaction';
+import { limitReadsWhileWriting } from '../../server/lib/read-gate';
+import { openTestDatabase, testDialect } from '../setup/test-database';
+
+/*
+ * The write path's promises, checked on a database with a second connection (a SQLite file, or PostgreSQL), so
+ * "committed" means what another reader sees:
+ * - writes fired at once behave as if each had committed alone, in the order they were sent (serial order);
+ * - a failing write is refused with its own error, stores nothing, and takes no other write down with it;
+ * - no write is answered before another connection can see it (answered = durable and visible).
+ * Serialisability and atomicity are the textbook transaction properties (ISO/IEC 9075 isolation level
+ * SERIALIZABLE; any database text) [common practice].
+ */
+
+let sequelize: Sequelize;
+let close: () => Promise<void>;
+beforeAll(async () => {
+  if (testDialect === 'sqlite') {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'cristae-write-path-'));
+    sequelize = await openDatabase(path.join(dir, 'w.sqlite'));
+    close = async () => {
+      await sequelize.close();
+      fs.rmSync(dir, { recursive: true, force: true });
+    };
+  } else {
+    const db = await openTestDatabase();
+    sequelize = db.sequelize;
+    close = db.drop;
+  }
+  await sequelize.query('CREATE TABLE wp_counter (id INTEGER PRIMARY KEY, n INTEGER NOT NULL)');
+  await sequelize.query('CREATE TABLE wp_rows (k VARCHAR(40) PRIMARY KEY, seen INTEGER)');
+});
+afterAll(() => close());
+beforeEach(async () => {
+  await sequelize.query('DELETE FROM wp_counter');
+  await sequelize.query('DELETE FROM wp_rows');
+  await sequelize.query('INSERT INTO wp_counter (id, n) VALUES (1, 0)');
+});
+
+const counter = async (): Promise<number> =>
+  (await sequelize.query<{ n: number }>('SELECT n FROM wp_counter WHERE id = 1', { type: QueryTypes.SELECT }))[0]!.n;
+const keys = async (): Promise<string[]> =>
+  (await sequelize.query<{ k: string }>('SELECT k FROM wp_rows ORDER BY k', { type: QueryTypes.SELECT })).map((r) => r.k);
+
+/** Read the counter, then write it back plus one: lost updates show when two writes overlap. */
+const increment = (key: string) =>
+  writeTransaction(sequelize, async (transaction) => {
+    const [row] = await sequelize.query<{ n: number }>('SELECT n FROM wp_counter WHERE id = 1', { type: QueryTypes.SELECT, transaction });
+    await sequelize.query('UPDATE wp_counter SET n = :n WHERE id = 1', { replacements: { n: row!.n + 1 }, transaction });
+    await sequelize.query('INSERT INTO wp_rows (k, seen) VALUES (:key, :seen)', { replacements: { key, seen: row!.n }, transaction });
+    return row!.n;
+  });
+
+describe('writes fired at once', () => {
+  it('when 40 read-then-write transactions are sent together, then none is lost and each saw exactly the ones sent before it', async () => {
+    const seen = await Promise.all(Array.from({ length: 40 }, (_, i) => increment(`k${String(i).padStart(2, '0')}`)));
+    expect(await counter()).toBe(40);
+    expect(seen).toEqual(Array.from({ length: 40 }, (_, i) => i));
+  });
+
+  it('when one write of many fails after writing, then it is refused with its own error, none of its rows stays, and every other write is stored', async () => {
+    const results = await Promise.allSettled(
+      Array.from({ length: 12 }, (_, i) =>
+        i === 6
+          ? writeTransaction(sequelize, async (transaction) => {
+              await sequelize.query("INSERT INTO wp_rows (k, seen) VALUES ('doomed', -1)", { transaction });
+              throw new Error('refused by the sixth write itself');
+            })
+          : increment(`k${String(i).padStart(2, '0')}`),
+      ),
+    );
+    expect(results.map((r) => r.status)).toEqual(Array.from({ length: 12 }, (_, i) => (i === 6 ? 'rejected' : 'fulfilled')));
+    expect((results[6] as PromiseRejectedResult).reason).toEqual(new Error('refused by the sixth write itself'));
+    expect(await keys()).not.toContain('doomed');
+    expect(await counter()).toBe(11);
+    // The writes after the failing one still saw every write before them (serial order kept through the retry).
+    expect(results.filter((r) => r.status === 'fulfilled').map((r) => (r as PromiseFulfilledResult<number>).value)).toEqual(
+      Array.from({ length: 11 }, (_, i) => i),
+    );
+  });
+
+  it('when a write collides with one sent just before it (same key), then the first is stored and the second gets the database error', async () => {
+    const insert = (seen: number) =>
+      writeTransaction(sequelize, (transaction) =>
+        sequelize.query('INSERT INTO wp_rows (k, seen) VALUES (:k, :seen)', { replacements: { k: 'same', seen }, transaction }),
+      );
+    const results = await Promise.allSettled([increment('a'), insert(1), insert(2), increment('b')]);
+    expect(results.map((r) => r.status)).toEqual(['fulfilled', 'fulfilled', 'rejected', 'fulfilled']);
+    expect(String((results[2] as PromiseRejectedResult).reason)).toMatch(/unique|constraint/i);
+    expect(await keys()).toEqual(['a', 'b', 'same']);
+    expect((await sequelize.query<{ seen: number }>("SELECT seen FROM wp_rows WHERE k = 'same'", { type: QueryTypes.SELECT }))[0]!.seen).toBe(1);
+  });
+});
+
+describe('answered only once committed', () => {
+  it('when writes are held open behind a slow one, then every write already answered is visible to another connection and no unanswered one is', async () => {
+    let enteredSlow!: () => void;
+    const slowEntered = new Promise<void>((r) => (enteredSlow = r));
+    let letSlowFinish!: () => void;
+    const slowMayFinish = new Promise<void>((r) => (letSlowFinish = r));
+    const answered = new Set<string>();
+    const sent = Array.from({ length: 15 }, (_, i) => `k${String(i).padStart(2, '0')}`);
+    const all = sent.map((key, i) =>
+      (i === 9
+        ? writeTransaction(sequelize, async (transaction) => {
+            await sequelize.query('INSERT INTO wp_rows (k, seen) VALUES (:key, 0)', { replacements: { key }, transaction });
+            enteredSlow();
+            await slowMayFinish;
+          })
+        : increment(key)
+      ).then(() => answered.add(key)),
+    );
+    await slowEntered;
+    // The slow write holds its transaction open: nothing can commit until it is let go, so this picture is still.
+    const visible = await keys();
+    const answeredNow = [...answered].sort();
+    expect(visible).toEqual(answeredNow);
+    expect(answeredNow).not.toContain('k09');
+    expect(writesInFlight()).toBeGreaterThan(0);
+    letSlowFinish();
+    await Promise.all(all);
+    expect(await keys()).toEqual(sent);
+    expect(writesInFlight()).toBe(0);
+  });
+});
+
+describe('reads held back while writes wait (server/lib/read-gate.ts)', () => {
+  /** An app whose one GET route waits until the test lets it answer, counting the requests inside it. */
+  function slowReadApp(concurrency: number) {
+    const state = { inside: 0, most: 0, done: 0, release: [] as (() => void)[] };
+    const app = express();
+    app.use(limitReadsWhileWriting(concurrency));
+    app.get('/r', (_req, res) => {
+      state.inside++;
+      state.most = Math.max(state.most, state.inside);
+      state.release.push(() => {
+        state.inside--;
+        state.done++;
+        res.json({ ok: true });
+      });
+    });
+    app.post('/w', (_req, res) => res.status(201).json({ ok: true }));
+    return { app, state };
+  }
+  const until = async (condition: () => boolean) => {
+    while (!condition()) await new Promise((r) => setTimeout(r, 5));
+  };
+
+  it('when no write is in flight, then six slow reads are all worked on at once', async () => {
+    const { app, state } = slowReadApp(2);
+    const server = app.listen(0);
+    const url = `http://127.0.0.1:${(server.address() as { port: number }).port}`;
+    const reads = Array.from({ length: 6 }, () => fetch(`${url}/r`));
+    await until(() => state.inside === 6);
+    state.release.splice(0).forEach((f) => f());
+    expect((await Promise.all(reads)).map((r) => r.status)).toEqual([200, 200, 200, 200, 200, 200]);
+    server.close();
+  });
+
+  it('when a write is in flight, then at most two reads are worked on at once, the rest wait their turn, and writes pass', async () => {
+    const { app, state } = slowReadApp(2);
+    const server = app.listen(0);
+    const url = `http://127.0.0.1:${(server.address() as { port: number }).port}`;
+    let finishWrite!: () => void;
+    const write = writeTransaction(sequelize, () => new Promise<void>((r) => (finishWrite = r)));
+    await until(() => finishWrite !== undefined);
+    const reads = Array.from({ length: 6 }, () => fetch(`${url}/r`));
+    await until(() => state.inside === 2);
+    // A POST is not a read: it is not held at the door.
+    expect((await request(app).post('/w')).status).toBe(201);
+    expect(state.inside).toBe(2);
+    finishWrite();
+    await write;
+    while (state.done < 6) {
+      state.release.splice(0).forEach((f) => f());
+      await new Promise((r) => setTimeout(r, 5));
+    }
+    expect((await Promise.all(reads)).map((r) => r.status)).toEqual([200, 200, 200, 200, 200, 200]);
+    expect(state.most).toBe(2);
+    server.close();
+  });
+});
