@@ -122,17 +122,16 @@ describe('a technologist works up a case in Chromium', () => {
     await ci1.getByLabel('To (s)').fill('150');
     await ci1.getByRole('button', { name: 'Use this window' }).click();
     await ci1.getByText('30–150 s (set by hand)').waitFor();
-    await expect(ci1.getByText('30–150 s (set by hand)').isVisible()).resolves.toBe(true);
     await screenshot(page, 'workup-03-window-moved');
 
     await page.getByRole('button', { name: 'Save 14 measurements' }).click();
     await page.getByText('Saved 14 measurements from e2e-run.csv').waitFor();
-    await expect(page.getByRole('link', { name: 'e2e-run.csv' }).isVisible()).resolves.toBe(true);
+    await page.getByRole('link', { name: 'e2e-run.csv' }).waitFor();
 
     // Results: computed live, with the flags and the pattern.
     await page.goto(`${app.server.origin}/cases/${caseId}/results`);
     await page.getByTestId('pattern-summary').waitFor();
-    await expect(page.getByRole('complementary', { name: 'Caution' }).isVisible()).resolves.toBe(true);
+    await page.getByRole('complementary', { name: 'Caution' }).waitFor();
     await expect(page.getByTestId('pattern-summary').textContent()).resolves.toMatch(/Isolated low complex I activity/);
     // The CS replicates (135 and 175) are 18.3% apart as CV, over the 15% limit of the demo definitions.
     await expect(page.getByTestId('result-row-CS').textContent()).resolves.toMatch(/Replicates disagree/);
