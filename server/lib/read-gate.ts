@@ -16,7 +16,10 @@ export function limitReadsWhileWriting(concurrency: number): RequestHandler {
   const limit = pLimit(concurrency);
   return (req, res, next) => {
     if (req.method !== 'GET' && req.method !== 'HEAD') return next();
-    limit.concurrency = writesInFlight() > 0 ? concurrency : Number.POSITIVE_INFINITY;
+    const writing = writesInFlight() > 0;
+    // No write waiting and no read held: nothing to order, so the read goes straight on (and is not counted).
+    if (!writing && limit.pendingCount === 0) return next();
+    limit.concurrency = writing ? concurrency : Number.POSITIVE_INFINITY;
     void limit(
       () =>
         new Promise<void>((release) => {
