@@ -8,6 +8,7 @@ import { findApplicableInterval } from '../../server/modules/reference-intervals
 import { readPdf } from '../factories/pdf-text';
 import { accountId, createCaseAwaitingReview, nearMeans } from '../factories/workup';
 import { DEMO_PASSWORD, countRows, makeTestApp, type TestApp } from '../setup/test-app';
+import { buildIntervalDraft } from '../factories/intervals';
 
 /*
  * Separation of duties: a new reference-interval version or assay-definition version is approved by a director
@@ -65,25 +66,9 @@ async function draftDefinition(by: Agent, code: string, epsilon: number, note = 
     .send({ definition: { ...fields, epsilonPerMmPerCm: epsilon, epsilonSource: 'Invented for a test' }, changeNote: note, basedOnVersion: current.definition.version });
 }
 
-function intervalBody(overrides: Record<string, unknown> = {}) {
-  return {
-    setName: 'Approval test set (fictitious)',
-    assay: 'CII',
-    measure: 'activity',
-    specimenType: 'lymphoblasts',
-    ageBand: { label: 'All ages', minYears: 0, maxYears: null },
-    lower: 40,
-    upper: 160,
-    mean: 100,
-    sd: 30,
-    n: 40,
-    method: 'mean2sd',
-    sourceNote: 'Typed in for a test; invented numbers',
-    effectiveFrom: '2025-03-01',
-    effectiveTo: null,
-    ...overrides,
-  };
-}
+/** The shared draft body (tests/factories/intervals.ts) as a CII lymphoblast set of this file's own. */
+const intervalBody = (overrides: Record<string, unknown> = {}) =>
+  buildIntervalDraft({ setName: 'Approval test set (fictitious)', assay: 'CII', specimenType: 'lymphoblasts', lower: 40, upper: 160, sd: 30, ...overrides });
 
 async function draftInterval(by: Agent, overrides: Record<string, unknown> = {}): Promise<StoredInterval> {
   const res = await by.post('/api/reference-intervals').send(intervalBody(overrides));
