@@ -13,11 +13,10 @@ import { Transaction, type Sequelize } from 'sequelize';
  * write transaction first takes one transaction-scoped advisory lock, so writes stay one at a time across every
  * process, as SQLite's write lock keeps them: the code's read-then-write steps (accession numbers, optimistic
  * versions, "no other open case" checks) see no concurrent writer. The lock ends with the commit or rollback.
- * The in-process queue stays too, so waiting writers do not each hold a pooled connection.
+ * The in-process group commit below serves both databases, so waiting writers do not each hold a pooled
+ * connection, and a group takes the advisory lock once.
  */
 const WRITE_LOCK = 0x63726973; // any fixed key; "cris"
-
-const queues = new WeakMap<Sequelize, Promise<unknown>>();
 
 let waitingOrRunning = 0;
 /** Write transactions queued or running in this process (server/lib/read-gate.ts gives them precedence). */
@@ -26,27 +25,14 @@ export const writesInFlight = (): number => waitingOrRunning;
 export async function writeTransaction<T>(sequelize: Sequelize, work: (t: Transaction) => Promise<T>): Promise<T> {
   waitingOrRunning++;
   try {
-    return await queuedWrite(sequelize, work);
+    return await groupCommit(sequelize, work);
   } finally {
     waitingOrRunning--;
   }
 }
 
-function queuedWrite<T>(sequelize: Sequelize, work: (t: Transaction) => Promise<T>): Promise<T> {
-  if (sequelize.getDialect() !== 'postgres') return groupCommit(sequelize, work);
-  const previous = queues.get(sequelize) ?? Promise.resolve();
-  const run = previous.catch(() => undefined).then(() =>
-    sequelize.transaction(async (t) => {
-      await sequelize.query(`SELECT pg_advisory_xact_lock(${WRITE_LOCK})`, { transaction: t });
-      return work(t);
-    }),
-  );
-  queues.set(sequelize, run.catch(() => undefined));
-  return run;
-}
-
 /*
- * SQLite: group commit. Writers that arrive while a transaction is open wait; when it ends, every waiting write
+ * Group commit (SQLite and PostgreSQL). Writers that arrive while a transaction is open wait; when it ends, every waiting write
  * (up to MAX_GROUP) runs in ONE transaction, one after another in arrival order, and each is answered only after
  * that transaction has committed. Every write still sees the ones before it and nothing else, exactly as if each
  * had committed alone in that order, but the group pays for BEGIN and COMMIT once. Each statement costs a trip
@@ -81,8 +67,14 @@ async function drain(sequelize: Sequelize, s: { queue: Pending[]; draining: bool
   }
 }
 
+/** One write transaction: SQLite's IMMEDIATE (the write lock up front), or PostgreSQL's with the advisory lock. */
 const immediate = (sequelize: Sequelize, work: (t: Transaction) => Promise<unknown>) =>
-  sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, work);
+  sequelize.getDialect() === 'postgres'
+    ? sequelize.transaction(async (t) => {
+        await sequelize.query(`SELECT pg_advisory_xact_lock(${WRITE_LOCK})`, { transaction: t });
+        return work(t);
+      })
+    : sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, work);
 
 async function runGroup(sequelize: Sequelize, group: Pending[], queue: Pending[]): Promise<void> {
   if (group.length === 1) {
