@@ -14,5 +14,7 @@ export default defineConfig({
     include: ['tests/unit/server/**/*.test.ts', 'tests/unit/schemas/**/*.test.ts'],
     setupFiles: ['tests/setup/node.ts'],
     testTimeout: 20_000,
+    // A loaded machine (several mutation runs at once) can take longer than the default 10 s for a beforeAll that renders PDFs.
+    hookTimeout: 60_000,
   },
 });
