@@ -151,7 +151,7 @@ export function robustInterval(values: readonly number[], options: RobustOptions
   if (scaledMad(sorted, median) === 0) {
     throw new ReferenceStatsInputError(
       'values',
-      'At least half of the values are identical, so the robust method cannot estimate their spread',
+      'More than half of the values are identical, so the robust method cannot estimate their spread',
     );
   }
   const location = biweightLocation(sorted, cLocation);
