@@ -24,8 +24,8 @@ type ConnectionManager = {
  */
 export const SQLITE_CONNECTION_PRAGMAS = ['PRAGMA busy_timeout = 5000', 'PRAGMA synchronous = NORMAL'];
 const MAX_IDLE = 4;
-/** Connections for reads outside a transaction, taken in turn. */
-const READERS = 3;
+/** Connections for reads outside a transaction, each running one statement at a time. */
+const READERS = 4;
 
 const run = (connection: SqliteConnection, sql: string) =>
   new Promise<void>((resolve, reject) => connection.run(sql, (err) => (err ? reject(err) : resolve())));
@@ -87,8 +87,8 @@ function installTableInfoCache(manager: ConnectionManager): void {
  * small idle list when the transaction ends and the next transaction takes it (one transaction per connection
  * at a time, as before), and every connection opened gets SQLITE_CONNECTION_PRAGMAS.
  * Reads outside a transaction all went through one shared connection, whose mutex made them wait for each
- * other on the thread pool (and made a writer's statements wait for a free thread): SELECTs now take READERS
- * connections in turn. Under WAL each read sees every transaction committed before it started, as before.
+ * other on the thread pool (and made a writer's statements wait for a free thread): SELECTs now take one of up to
+ * READERS connections of their own. Under WAL each read sees every transaction committed before it started, as before.
  * A file database only; an in-memory database keeps its one shared connection.
  */
 export async function tuneSqliteConnections(sequelize: Sequelize): Promise<void> {
@@ -99,19 +99,36 @@ export async function tuneSqliteConnections(sequelize: Sequelize): Promise<void>
   const open = manager.getConnection.bind(manager);
   const release = manager.releaseConnection.bind(manager);
   const idle: SqliteConnection[] = [];
-  let turn = 0;
   const withPragmas = async (connection: Promise<SqliteConnection>) => {
     const c = await connection;
     for (const pragma of SQLITE_CONNECTION_PRAGMAS) await run(c, pragma);
     return c;
   };
-  const readers: Promise<SqliteConnection>[] = [];
+  // Reader connections are lent out one statement at a time: node-sqlite3 finalizes each statement on the main
+  // thread, which must take the connection's mutex, so a second statement running on the same connection in the
+  // thread pool stalled the whole event loop until it finished (13% of the main thread under 20 writers and 20
+  // readers). A SELECT that finds every reader busy waits for the first one back.
+  const readers = new WeakSet<SqliteConnection>();
+  const freeReaders: SqliteConnection[] = [];
+  const waitingForReader: ((connection: SqliteConnection) => void)[] = [];
+  let readersOpened = 0;
+  const takeReader = async (options: { uuid?: string; type?: string }): Promise<SqliteConnection> => {
+    const free = freeReaders.pop();
+    if (free) return free;
+    if (readersOpened >= READERS) return new Promise((resolve) => waitingForReader.push(resolve));
+    const i = readersOpened++;
+    try {
+      const connection = await withPragmas(open({ ...options, uuid: `read-${i}` }));
+      readers.add(connection);
+      return connection;
+    } catch (err) {
+      readersOpened--;
+      throw err;
+    }
+  };
   manager.getConnection = async (options) => {
     const uuid = options?.uuid;
-    if (!uuid && options?.type === 'SELECT') {
-      const i = turn++ % READERS;
-      return (readers[i] ??= withPragmas(open({ ...options, uuid: `read-${i}` })));
-    }
+    if (!uuid && options?.type === 'SELECT') return takeReader(options);
     if (uuid && uuid !== 'default' && !manager.connections[uuid]) {
       const reused = idle.pop();
       if (reused) {
@@ -123,6 +140,12 @@ export async function tuneSqliteConnections(sequelize: Sequelize): Promise<void>
     return open(options);
   };
   manager.releaseConnection = (connection, force) => {
+    if (readers.has(connection) && !force) {
+      const next = waitingForReader.shift();
+      if (next) next(connection);
+      else freeReaders.push(connection);
+      return;
+    }
     if (!force && connection.uuid && connection.uuid !== 'default' && connection.filename !== ':memory:' && idle.length < MAX_IDLE) {
       delete manager.connections[connection.uuid];
       idle.push(connection);

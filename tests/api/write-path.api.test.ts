@@ -132,6 +132,68 @@ describe('answered only once committed', () => {
   });
 });
 
+describe.runIf(testDialect === 'sqlite')('reads outside a transaction on a SQLite file (server/db/sqlite-connections.ts)', () => {
+  type Conn = { all: (...args: unknown[]) => unknown };
+  /** Wraps every connection's all() while the test runs, counting the statements in flight on each at once. */
+  function watchConnections() {
+    const manager = sequelize.connectionManager as unknown as { getConnection: (o?: object) => Promise<Conn> };
+    const original = manager.getConnection;
+    const inFlight = new Map<Conn, number>();
+    const most = new Map<Conn, number>();
+    const wrapped = new WeakSet<Conn>();
+    manager.getConnection = async (options?: object) => {
+      const connection = await original.call(manager, options);
+      if (!wrapped.has(connection)) {
+        wrapped.add(connection);
+        const all = connection.all.bind(connection);
+        connection.all = (...args: unknown[]) => {
+          const callback = args.pop() as (...r: unknown[]) => void;
+          inFlight.set(connection, (inFlight.get(connection) ?? 0) + 1);
+          most.set(connection, Math.max(most.get(connection) ?? 0, inFlight.get(connection)!));
+          return all(...args, (...r: unknown[]) => {
+            inFlight.set(connection, inFlight.get(connection)! - 1);
+            callback(...r);
+          });
+        };
+      }
+      return connection;
+    };
+    return { most, restore: () => (manager.getConnection = original) };
+  }
+
+  it('when 30 SELECTs are sent at once, then each reader connection runs one at a time, every answer is right, and none sees a write not yet committed', async () => {
+    await sequelize.query("INSERT INTO wp_rows (k, seen) VALUES ('committed', 1)");
+    const watch = watchConnections();
+    let letWriteFinish!: () => void;
+    const writeMayFinish = new Promise<void>((r) => (letWriteFinish = r));
+    let enteredWrite!: () => void;
+    const writeEntered = new Promise<void>((r) => (enteredWrite = r));
+    try {
+      // A write holds its transaction open with a row in it while the reads run.
+      const write = writeTransaction(sequelize, async (transaction) => {
+        await sequelize.query("INSERT INTO wp_rows (k, seen) VALUES ('uncommitted', 2)", { transaction });
+        enteredWrite();
+        await writeMayFinish;
+      });
+      await writeEntered;
+      const answers = await Promise.all(
+        Array.from({ length: 30 }, (_, i) =>
+          sequelize.query<{ k: string; n: number }>('SELECT k, :i AS n FROM wp_rows ORDER BY k', { replacements: { i }, type: QueryTypes.SELECT }),
+        ),
+      );
+      answers.forEach((rows, i) => expect(rows).toEqual([{ k: 'committed', n: i }]));
+      letWriteFinish();
+      await write;
+      expect(await keys()).toEqual(['committed', 'uncommitted']);
+      expect([...watch.most.values()].every((n) => n === 1)).toBe(true);
+      expect(watch.most.size).toBeGreaterThan(1);
+    } finally {
+      watch.restore();
+      letWriteFinish();
+    }
+  });
+});
+
 describe('reads held back while writes wait (server/lib/read-gate.ts)', () => {
   /** An app whose one GET route waits until the test lets it answer, counting the requests inside it. */
   function slowReadApp(concurrency: number) {
