@@ -15,9 +15,10 @@ import * as m0013 from './migrations/0013-analytical-runs';
 import * as m0015 from './migrations/0015-qc-rules';
 import * as m0016 from './migrations/0016-cohorts';
 import * as m0017 from './migrations/0017-cohort-measure-columns';
+import * as m0018 from './migrations/0018-cohort-plot-cells';
 
 /** Versioned migrations, applied in this order and recorded in the SequelizeMeta table. Never sync({alter}). */
-const migrations = [m0001, m0002, m0003, m0004, m0005, m0006, m0008, m0009, m0010, m0011, m0012, m0013, m0015, m0016, m0017];
+const migrations = [m0001, m0002, m0003, m0004, m0005, m0006, m0008, m0009, m0010, m0011, m0012, m0013, m0015, m0016, m0017, m0018];
 
 /** Names of the migrations this code knows (a restored database must not carry others). */
 export const knownMigrationNames = (): string[] => migrations.map((m) => m.name);

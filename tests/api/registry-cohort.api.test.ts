@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { CohortPage, CohortPlots, SavedSearch } from '@/schemas/registry';
+import { cohortComplexes, type CohortPage, type CohortPlots, type SavedSearch } from '@/schemas/registry';
 import type { ReportResult } from '@/schemas/report-document';
 import { createMigrator } from '../../server/db/migrate';
 import { measureColumns, writeCohortRows, type CohortSection, type CohortSource } from '../../server/modules/registry/cohort-rows';
@@ -73,8 +73,21 @@ describe('rows written at signing', () => {
     );
   });
 
+  it('after that correction the plots of every signed case count each member once, bin for bin', async () => {
+    expect(await expectPlotsMatchRows('')).toBeGreaterThan(0);
+  });
+
   it('the migration’s backfill rebuilds the same rows from the stored reports', async () => {
+    /** Each member's plot cells, by key (ids may differ once rebuilt). */
+    const memberCells = async () => {
+      const keyOf = new Map((await query('SELECT id, "key" FROM cohort_plot_cells')).map((c) => [Number(c.id), String(c.key)]));
+      const rows = await query('SELECT "caseId", "specimenLabel", "plotCells" FROM cohort_members ORDER BY "caseId", "specimenLabel"');
+      return rows.map((r) => [r.caseId, r.specimenLabel, String(r.plotCells ?? '').split(',').filter(Boolean).map((id) => keyOf.get(Number(id))).sort()]);
+    };
     const snapshot = async () => ({
+      // Migration 0018's cells: the same keys with the same counts, and each member in the same cells.
+      cells: await query(`SELECT "key", n FROM cohort_plot_cells ORDER BY "key"`),
+      memberCells: await memberCells(),
       // With every measure column of migration 0017: its own backfill (from cohort_values) must give what signing wrote.
       members: await query(`SELECT "reportId", "caseId", "specimenId", accession, "reportVersion", "reportStatus", "specimenLabel",
         "specimenType", sex, "ageYears", "signedOn", "patternCode", "isIsolated", "lowCIV", ${measureColumns.map((c) => `"${c}"`).join(', ')}
@@ -179,6 +192,7 @@ describe('filters over a hand-built cohort', () => {
   beforeAll(async () => {
     await t.sequelize.query('DELETE FROM cohort_values');
     await t.sequelize.query('DELETE FROM cohort_members');
+    await t.sequelize.query('DELETE FROM cohort_plot_cells');
     const cases = await query('SELECT id FROM cases ORDER BY id LIMIT 4');
     const [report] = await query('SELECT id FROM reports ORDER BY id LIMIT 1');
     for (const s of handBuilt(cases.map((c) => Number(c.id)), Number(report!.id))) await writeCohortRows(t.sequelize, s);
@@ -424,62 +438,113 @@ function randomCohort(caseIds: number[], reportId: number): CohortSource[] {
 /** Nearest rank [common practice]: the smallest value with at least q·n of the values at or below it. */
 const nearestRank = (sorted: number[], q: number) => sorted[Math.max(1, Math.ceil(q * sorted.length)) - 1]!;
 
+/** Every member of the cohort with its values, read page by page through the search. */
+async function everyMember(qs: string) {
+  const first = await cohort(qs);
+  const pages = await Promise.all(Array.from({ length: Math.ceil(first.total / 200) - 1 }, (_, i) => cohort(`${qs}&page=${i + 2}`)));
+  return { total: first.total, members: [first, ...pages].flatMap((p) => p.items) };
+}
+
+/**
+ * The plots of a filter against counts made here from the cohort's rows (its members' printed values, read through
+ * the search): sizes, the interval most values were read against, every bin, and the nearest-rank quartiles.
+ * Answers the cohort's size.
+ */
+async function expectPlotsMatchRows(qs: string): Promise<number> {
+  const [{ total, members }, res] = await Promise.all([everyMember(qs), tech.get(`/api/registry/cohort/plots?${qs}`)]);
+  expect(res.status).toBe(200);
+  const plots = res.body as CohortPlots;
+  expect(plots.total, qs).toBe(total);
+  for (const assay of cohortComplexes) {
+    const rows = members.flatMap((m) => m.values).filter((v) => v.assay === assay && v.measure === 'ratio_cs');
+    const values = rows.filter((v) => v.value !== null).map((v) => v.value!);
+    const ratio = plots.ratioToCs.find((p) => p.assay === assay)!;
+    expect(ratio.n, `${qs} ${assay}`).toBe(values.length);
+
+    // The interval shaded is the one most of the cohort's values were read against, counted here by hand.
+    const tally = new Map<string, number>();
+    for (const v of rows) if (v.value !== null && v.lower !== null && v.upper !== null) tally.set(JSON.stringify([v.lower, v.upper]), (tally.get(JSON.stringify([v.lower, v.upper])) ?? 0) + 1);
+    const modal = [...tally].sort((a, b) => b[1] - a[1])[0];
+    if (modal) {
+      expect([ratio.interval!.lower, ratio.interval!.upper], `${qs} ${assay}`).toEqual(JSON.parse(modal[0]));
+      expect(ratio.interval!.n).toBe(modal[1]);
+    } else expect(ratio.interval, `${qs} ${assay}`).toBeNull();
+
+    // Every bin: the values from its lower edge up to the next bin's, the last bin taking the tail.
+    const edges = ratio.bins.map((b) => b.from);
+    const counted = edges.map((from, i) => values.filter((v) => v >= from && (i === edges.length - 1 || v < edges[i + 1]!)).length);
+    expect(ratio.bins.map((b) => b.count), `${qs} ${assay} bins`).toEqual(counted);
+    expect(counted.reduce((a, b) => a + b, 0)).toBe(values.length);
+    // Round widths: 1, 2 or 5 times a power of ten, the bins reaching past the interval's upper limit.
+    const mantissa = ratio.binWidth / 10 ** Math.floor(Math.log10(ratio.binWidth) + 1e-9);
+    expect([1, 2, 5].some((m) => Math.abs(mantissa - m) < 1e-9), `${assay} width ${ratio.binWidth}`).toBe(true);
+    if (ratio.interval) expect(edges.at(-1)!).toBeGreaterThanOrEqual(ratio.interval.upper);
+
+    // % of mean in whole percent, then nearest-rank quartiles of those.
+    const pcts = rows.filter((v) => v.pctOfMean !== null).map((v) => Math.floor(v.pctOfMean!)).sort((a, b) => a - b);
+    expect(plots.pctOfMean.find((p) => p.assay === assay), `${qs} ${assay} % of mean`).toEqual(
+      pcts.length === 0
+        ? { assay, n: 0, min: null, q1: null, median: null, q3: null, max: null }
+        : { assay, n: pcts.length, min: pcts[0], q1: nearestRank(pcts, 0.25), median: nearestRank(pcts, 0.5), q3: nearestRank(pcts, 0.75), max: pcts.at(-1) },
+    );
+  }
+  return total;
+}
+
 // Last: it replaces the hand-built cohort the tests above read.
 describe('plots agree with counts made from the rows', () => {
   beforeAll(async () => {
     await t.sequelize.query('DELETE FROM cohort_values');
     await t.sequelize.query('DELETE FROM cohort_members');
+    await t.sequelize.query('DELETE FROM cohort_plot_cells');
     const cases = await query('SELECT id FROM cases ORDER BY id LIMIT 4');
     const [report] = await query('SELECT id FROM reports ORDER BY id LIMIT 1');
     for (const s of randomCohort(cases.map((c) => Number(c.id)), Number(report!.id))) await writeCohortRows(t.sequelize, s);
   });
 
-  /** Every member of the cohort with its values, read page by page through the search. */
-  async function everyMember(qs: string) {
-    const first = await cohort(qs);
-    const pages = await Promise.all(Array.from({ length: Math.ceil(first.total / 200) - 1 }, (_, i) => cohort(`${qs}&page=${i + 2}`)));
-    return { total: first.total, members: [first, ...pages].flatMap((p) => p.items) };
-  }
-
   it.each(['', 'pattern=isolated', 'range=CI:ratio_cs:pct::60', 'specimenType=skeletal_muscle&sex=female', 'range=CIV:ratio_cs:value:1:&complex=CI'])(
     'filter "%s": sizes, intervals, every bin and the quartiles match the rows',
     async (qs) => {
-      const [{ total, members }, res] = await Promise.all([everyMember(qs), tech.get(`/api/registry/cohort/plots?${qs}`)]);
-      expect(res.status).toBe(200);
-      const plots = res.body as CohortPlots;
-      expect(total).toBeGreaterThan(0);
-      expect(plots.total).toBe(total);
-      for (const assay of Object.keys(COMPLEX_INTERVALS)) {
-        const rows = members.flatMap((m) => m.values).filter((v) => v.assay === assay && v.measure === 'ratio_cs');
-        const values = rows.filter((v) => v.value !== null).map((v) => v.value!);
-        const ratio = plots.ratioToCs.find((p) => p.assay === assay)!;
-        expect(ratio.n, assay).toBe(values.length);
-
-        // The interval shaded is the one most of the cohort's values were read against, counted here by hand.
-        const tally = new Map<string, number>();
-        for (const v of rows) if (v.value !== null && v.lower !== null && v.upper !== null) tally.set(JSON.stringify([v.lower, v.upper]), (tally.get(JSON.stringify([v.lower, v.upper])) ?? 0) + 1);
-        const [modal, modalN] = [...tally].sort((a, b) => b[1] - a[1])[0]!;
-        expect([ratio.interval!.lower, ratio.interval!.upper], assay).toEqual(JSON.parse(modal));
-        expect(ratio.interval!.n).toBe(modalN);
-
-        // Every bin: the values from its lower edge up to the next bin's, the last bin taking the tail.
-        const edges = ratio.bins.map((b) => b.from);
-        const counted = edges.map((from, i) => values.filter((v) => v >= from && (i === edges.length - 1 || v < edges[i + 1]!)).length);
-        expect(ratio.bins.map((b) => b.count), `${assay} bins`).toEqual(counted);
-        expect(counted.reduce((a, b) => a + b, 0)).toBe(values.length);
-        // Round widths: 1, 2 or 5 times a power of ten, the bins reaching past the interval's upper limit.
-        const mantissa = ratio.binWidth / 10 ** Math.floor(Math.log10(ratio.binWidth) + 1e-9);
-        expect([1, 2, 5].some((m) => Math.abs(mantissa - m) < 1e-9), `${assay} width ${ratio.binWidth}`).toBe(true);
-        expect(edges.at(-1)!).toBeGreaterThanOrEqual(ratio.interval!.upper);
-
-        // % of mean in whole percent, then nearest-rank quartiles of those.
-        const pcts = rows.filter((v) => v.pctOfMean !== null).map((v) => Math.floor(v.pctOfMean!)).sort((a, b) => a - b);
-        expect(plots.pctOfMean.find((p) => p.assay === assay), `${assay} % of mean`).toEqual(
-          pcts.length === 0
-            ? { assay, n: 0, min: null, q1: null, median: null, q3: null, max: null }
-            : { assay, n: pcts.length, min: pcts[0], q1: nearestRank(pcts, 0.25), median: nearestRank(pcts, 0.5), q3: nearestRank(pcts, 0.75), max: pcts.at(-1) },
-        );
-      }
+      expect(await expectPlotsMatchRows(qs)).toBeGreaterThan(0);
     },
   );
+
+  /** The random cohort's case `i` as first signed (the same noise, so the same rows as beforeAll wrote). */
+  async function randomCase(i: number): Promise<CohortSource> {
+    const cases = await query('SELECT id FROM cases ORDER BY id LIMIT 4');
+    const [report] = await query('SELECT id FROM reports ORDER BY id LIMIT 1');
+    return randomCohort(cases.map((c) => Number(c.id)), Number(report!.id))[i]!;
+  }
+
+  it('a case signed again with other values (a corrected version): its members leave their old cells, and the plots match the rows again', async () => {
+    const original = await randomCase(1);
+    // Version 2 prints half of every ratio of its first 40 specimens and drops the other 20 (an invented correction).
+    const halved = (r: ReportResult): ReportResult => ({ ...r, value: r.value === null ? null : r.value / 2, pctOfMean: r.pctOfMean === null ? null : r.pctOfMean / 2 });
+    await writeCohortRows(t.sequelize, {
+      ...original,
+      reportVersion: 2,
+      reportStatus: 'corrected',
+      sections: original.sections.slice(0, 40).map((s) => ({ ...s, results: s.results.map(halved) })),
+    });
+    for (const qs of ['', 'pattern=isolated', 'range=CI:ratio_cs:pct::60', 'sex=male&specimenType=liver']) await expectPlotsMatchRows(qs);
+    // No cell is left empty, and together the cells hold one count per printed ratio (or % of mean), counted from the rows.
+    const { members } = await everyMember('');
+    const printed = members.flatMap((m) => m.values).filter((v) => v.measure === 'ratio_cs' && (v.value !== null || v.pctOfMean !== null)).length;
+    const [cells] = await query('SELECT SUM(n) AS held, SUM(CASE WHEN n <= 0 THEN 1 ELSE 0 END) AS empty FROM cohort_plot_cells');
+    expect({ held: Number(cells!.held), empty: Number(cells!.empty) }).toEqual({ held: printed, empty: 0 });
+  });
+
+  it('a signing that fails after the rows were written leaves the rows and the cells as they were (one transaction)', async () => {
+    const before = (await tech.get('/api/registry/cohort/plots')).body as CohortPlots;
+    const cellsBefore = await query('SELECT id, "key", n FROM cohort_plot_cells ORDER BY id');
+    const other = await randomCase(2);
+    await expect(
+      t.sequelize.transaction(async (transaction) => {
+        await writeCohortRows(t.sequelize, { ...other, reportVersion: 2, sections: other.sections.slice(0, 5) }, transaction);
+        throw new Error('invented failure after the cohort rows were written');
+      }),
+    ).rejects.toThrow('invented failure');
+    expect(await query('SELECT id, "key", n FROM cohort_plot_cells ORDER BY id')).toEqual(cellsBefore);
+    expect((await tech.get('/api/registry/cohort/plots')).body).toEqual(before);
+  });
 });

@@ -1,12 +1,14 @@
 import { QueryTypes, type Sequelize, type Transaction } from 'sequelize';
 import type { PatternKind } from '@/schemas/assay';
 import { assayCodes, measures, type AssayCode, type Measure, type SpecimenType } from '@/schemas/common';
-import { cohortComplexes, rangeScales, type CohortComplex, type RangeScale } from '@/schemas/registry';
+import { cohortComplexes, rangeScales, type CohortComplex } from '@/schemas/registry';
 import type { ReportDocument, ReportResult } from '@/schemas/report-document';
 import { patternCodeOf } from '@/schemas/results';
+import { intervalColumn, measureColumn } from './cohort-columns';
+import { joinPlotCells, leavePlotCells } from './cohort-plot-cells';
 
 /*
- * The rows of cohort_members and cohort_values (migrations 0016, 0017) for one signed report: one member per accepted
+ * The rows of cohort_members and cohort_values (migrations 0016, 0017; the plot cells of 0018) for one signed report: one member per accepted
  * specimen with results (with each measure's value, % of mean and, for the ratios to CS, the interval as columns of
  * its own), one value per result row the report prints. Written at signing, in the signing
  * transaction, replacing the rows of any earlier version of the case; and by the migration for reports signed
@@ -36,14 +38,8 @@ export const cohortMeasures: readonly { assay: AssayCode; measure: Measure }[] =
   measures.filter((m) => (assay === 'CS' ? m === 'activity' : !(assay === 'CII' && m === 'ratio_cii'))).map((measure) => ({ assay, measure })),
 );
 
-/**
- * The member column (migration 0017) holding one measure's value ('value') or its % of the reference mean ('pct'),
- * e.g. "CI_III_ratio_cs_pct": range conditions read the member row alone.
- */
-export const measureColumn = (assay: AssayCode, measure: Measure, scale: RangeScale): string => `${assay.replace('+', '_')}_${measure}_${scale}`;
-
-/** The member column with the reference interval a complex's ratio to CS was read against (the plots' shading). */
-export const intervalColumn = (complex: CohortComplex, bound: 'lower' | 'upper' | 'mean'): string => `${complex.replace('+', '_')}_ratio_cs_${bound}`;
+/** The member columns' names (cohort-columns.ts), here too for the modules that write or read the rows. */
+export { intervalColumn, measureColumn };
 
 const INTERVAL_BOUNDS = { lower: 'referenceLower', upper: 'referenceUpper', mean: 'referenceMean' } as const;
 
@@ -136,9 +132,10 @@ export function cohortRowsOf(src: CohortSource): { member: Row; values: Row[] }[
 }
 
 /**
- * Replaces the case's cohort rows with those of its newest signed report. Pass the signing transaction, so the
- * rows and the report are stored together or not at all. `measureColumns: false` writes the member columns of
- * migration 0016 only (its backfill runs before 0017 adds the others, and 0017 fills them itself).
+ * Replaces the case's cohort rows with those of its newest signed report, and moves its members out of their plot
+ * cells and into the new ones (cohort-plot-cells.ts). Pass the signing transaction, so the rows, the cells and the
+ * report are stored together or not at all. `measureColumns: false` writes the member columns of migration 0016
+ * only, and no cells (its backfill runs before 0017 and 0018 add the others, and they fill them themselves).
  */
 export async function writeCohortRows(
   sequelize: Sequelize,
@@ -148,6 +145,7 @@ export async function writeCohortRows(
 ): Promise<void> {
   const qi = sequelize.getQueryInterface();
   const replacements = { caseId: src.caseId };
+  if (withMeasures) await leavePlotCells(sequelize, src.caseId, transaction);
   await sequelize.query(
     `DELETE FROM cohort_values WHERE "memberId" IN (SELECT id FROM cohort_members WHERE "caseId" = :caseId)`,
     { replacements, transaction },
@@ -156,6 +154,7 @@ export async function writeCohortRows(
   const rows = cohortRowsOf(src);
   if (rows.length === 0) return;
   if (!withMeasures) for (const r of rows) for (const c of measureColumns) delete r.member[c];
+  else await joinPlotCells(sequelize, rows.map((r) => r.member), transaction);
   await qi.bulkInsert('cohort_members', rows.map((r) => r.member), { transaction });
   // Inserted in order, so ids ascend in the order of the rows.
   const ids = (await sequelize.query(`SELECT id FROM cohort_members WHERE "caseId" = :caseId ORDER BY id`, {

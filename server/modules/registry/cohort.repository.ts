@@ -5,7 +5,6 @@ import {
   ageBands,
   cohortComplexes,
   parseRangeToken,
-  type CohortComplex,
   type CohortCriteria,
   type CohortFilter,
   type CohortMember,
@@ -15,11 +14,12 @@ import {
   type CohortValue,
 } from '@/schemas/registry';
 import { ReportModel } from '../reports/report.model';
-import { complexFlagColumns, intervalColumn, measureColumn, patternFlagColumns } from './cohort-rows';
+import { eachCellId, type CellKey } from './cohort-plot-cells';
+import { complexFlagColumns, measureColumn, patternFlagColumns } from './cohort-rows';
 
 /*
- * Cohort queries over cohort_members / cohort_values (migrations 0016, 0017): every filter and the plots read
- * the member rows alone; cohort_values gives a page's members their values. Portable SQL: double-quoted identifiers,
+ * Cohort queries over cohort_members / cohort_values (migrations 0016, 0017): every filter reads the member rows
+ * alone; cohort_values gives a page's members their values; the plots read the plot cells (migration 0018). Portable SQL: double-quoted identifiers,
  * named replacements, LIMIT/OFFSET, FLOOR; nothing SQLite- or PostgreSQL-only.
  */
 
@@ -214,100 +214,112 @@ function quantileOfBins(bins: { at: number; count: number }[], n: number, q: num
 }
 
 type IntervalGroup = { lower: number | null; upper: number | null; mean: number | null; n: number; top: number };
+/**
+ * Every plot cell, as three lists aggregated in one pass (so in the same order): the keys as one JSON array, the
+ * ids and the counts comma-separated. Three plain aggregates cost far less than one text built per cell.
+ */
+const CELLS = `SELECT '[' || string_agg("key", ',') || ']' AS keys, string_agg(CAST(id AS TEXT), ',') AS ids,
+  string_agg(CAST(n AS TEXT), ',') AS counts FROM cohort_plot_cells`;
 
 /**
  * What the cohort page draws, over the whole cohort: for each complex, the distribution of its ratio to CS in
  * round bins with the reference interval most members were read against; and the quartiles of that ratio as %
- * of the reference mean, counted in whole percent (the precision a report prints). Two queries over the member
- * rows (migration 0017), whatever the filter: the intervals, then every complex's bins.
+ * of the reference mean, counted in whole percent (the precision a report prints). Read from the plot cells
+ * (migration 0018) in one statement, so cells and members are one snapshot: every signed case is the cells' own
+ * counts; a filtered cohort is one pass over the member rows its filter selects, their cell ids gathered as one
+ * text (string_agg: SQLite 3.44+, PostgreSQL) and counted here. No sort of the cohort, whatever its size.
  */
 export async function cohortPlots(filters: CohortCriteria): Promise<CohortPlots> {
   const { sql: where, replacements } = cohortWhere(filters);
-  const ratio = (c: CohortComplex, scale: 'value' | 'pct') => `m."${measureColumn(c, 'ratio_cs', scale)}"`;
-  const BOUNDS = ['lower', 'upper', 'mean'] as const;
-  const intervals = cohortComplexes.flatMap((c) => BOUNDS.map((b) => `m."${intervalColumn(c, b)}"`));
+  const members = where
+    ? `SELECT COUNT(*) AS total, string_agg(m."plotCells", ',') AS members FROM cohort_members m ${where}`
+    : `SELECT COUNT(*) AS total FROM cohort_members`;
+  const [row] = (await db().query(`SELECT * FROM (${members}) AS m, (${CELLS}) AS c`, { replacements, type: QueryTypes.SELECT })) as [
+    { total: number | string; members?: string | null; keys: string | null; ids: string | null; counts: string | null },
+  ];
+  const keys = JSON.parse(row.keys ?? '[]') as CellKey[];
+  const counts = new Float64Array(keys.length);
+  if (where) {
+    // Each member listed its cells' ids: count them (place: an id → its index in the lists, plus one).
+    const ids: number[] = [];
+    eachCellId(row.ids, (id) => ids.push(id));
+    const place = new Int32Array(ids.reduce((top, id) => Math.max(top, id), 0) + 1);
+    ids.forEach((id, i) => (place[id] = i + 1));
+    eachCellId(row.members ?? null, (id) => (counts[place[id]! - 1]! += 1));
+  } else {
+    let i = 0;
+    eachCellId(row.counts, (n) => (counts[i++] = n));
+  }
+  return plotsOfCells(Number(row.total), keys, counts); // PostgreSQL's COUNT is a bigint, as a string
+}
 
-  // The cohort's size, and for each set of intervals met: each complex's count of values and largest value.
-  const groups = (await db().query(
-    `SELECT COUNT(*) AS n, ${cohortComplexes.map((c, i) => `COUNT(${ratio(c, 'value')}) AS n${i}, MAX(${ratio(c, 'value')}) AS top${i}`).join(', ')},
-            ${intervals.map((col, j) => `${col} AS i${j}`).join(', ')}
-       FROM cohort_members m ${where} GROUP BY ${intervals.join(', ')}`,
-    { replacements, type: QueryTypes.SELECT },
-  )) as Record<string, number | string | null>[];
-  const total = groups.reduce((sum, g) => sum + Number(g.n), 0);
+const COMPLEX_INDEX = new Map<string, number>(cohortComplexes.map((c, i) => [c, i]));
 
-  const perAssay = cohortComplexes.map((assay, i) => {
-    // One entry per interval of this complex (the groups above also split on the other complexes' intervals).
-    const byInterval = new Map<string, IntervalGroup>();
-    for (const g of groups) {
-      const n = Number(g[`n${i}`]);
-      if (n === 0) continue;
-      const [lower, upper, mean] = BOUNDS.map((_, b) => num(g[`i${i * 3 + b}`] ?? null));
-      const key = JSON.stringify([lower, upper, mean]);
-      const seen = byInterval.get(key);
-      byInterval.set(key, { lower: lower!, upper: upper!, mean: mean!, n: (seen?.n ?? 0) + n, top: Math.max(seen?.top ?? -Infinity, Number(g[`top${i}`])) });
-    }
-    const mine = [...byInterval.values()].sort((a, b) => (a.lower ?? -Infinity) - (b.lower ?? -Infinity) || (a.upper ?? -Infinity) - (b.upper ?? -Infinity) || (a.mean ?? -Infinity) - (b.mean ?? -Infinity));
+/** Get-or-create in a map. */
+function entry<K, V>(map: Map<K, V>, key: K, create: () => V): V {
+  let v = map.get(key);
+  if (v === undefined) map.set(key, (v = create()));
+  return v;
+}
+
+/** The plots of a cohort of `total` members whose ratios to CS fall in these cells, counts[i] members in keys[i]. */
+function plotsOfCells(total: number, keys: readonly CellKey[], counts: ArrayLike<number>): CohortPlots {
+  // First pass: per complex, per interval (lower → upper → mean), the values counted and the largest.
+  const intervals = cohortComplexes.map(() => new Map<number | null, Map<number | null, Map<number | null, IntervalGroup>>>());
+  keys.forEach(([complex, lower, upper, mean, value], i) => {
+    if (!counts[i] || value === null) return;
+    const byUpper = entry(intervals[COMPLEX_INDEX.get(complex)!]!, lower, () => new Map());
+    const group = entry(entry(byUpper, upper, () => new Map()), mean, () => ({ lower, upper, mean, n: 0, top: -Infinity }));
+    group.n += counts[i];
+    group.top = Math.max(group.top, value);
+  });
+  const perAssay = cohortComplexes.map((assay, k) => {
+    const mine = [...intervals[k]!.values()].flatMap((byUpper) => [...byUpper.values()].flatMap((byMean) => [...byMean.values()]));
+    mine.sort((a, b) => (a.lower ?? -Infinity) - (b.lower ?? -Infinity) || (a.upper ?? -Infinity) - (b.upper ?? -Infinity) || (a.mean ?? -Infinity) - (b.mean ?? -Infinity));
     const n = mine.reduce((sum, g) => sum + g.n, 0);
     const modal = mine.filter((g) => g.lower !== null && g.upper !== null).reduce<IntervalGroup | null>((best, g) => (best === null || g.n > best.n ? g : best), null);
     const top = Math.max(0, ...mine.map((g) => g.top));
     // Up to twice the upper limit, or less when the cohort ends sooner (never below 1.2 × the limit).
     const span = modal ? Math.min(modal.upper! * 2, Math.max(top, modal.upper! * 1.2)) : top;
-    return {
-      assay,
-      n,
-      binWidth: niceWidth(span),
-      interval: modal ? { lower: modal.lower!, upper: modal.upper!, mean: modal.mean, n: modal.n } : null,
-    };
+    const binWidth = niceWidth(span);
+    // Bins past the last one drawn (a long upper tail) are counted into it, so every member shows.
+    const last = Math.max(BINS, Math.ceil((modal?.upper ?? 0) / binWidth) + 2) - 1;
+    return { assay, n, binWidth, last, interval: modal ? { lower: modal.lower!, upper: modal.upper!, mean: modal.mean, n: modal.n } : null };
   });
 
-  // Each complex's values in its round bins and its % of mean in whole percent, counted together: the two go
-  // hand in hand (a % of mean is the value over one mean), so the groups stay few.
-  // The millionth of a bin absorbs floating-point error at bin edges (0.24 / 0.02 = 11.999…).
-  const binRows = (await db().query(
-    perAssay
-      .map((a, i) => {
-        const bin = `FLOOR(${ratio(a.assay, 'value')} / :w${i} + 0.000001)`;
-        const pct = `FLOOR(${ratio(a.assay, 'pct')})`;
-        return `SELECT ${i} AS k, ${bin} AS b, ${pct} AS p, COUNT(*) AS n FROM cohort_members m ${where} GROUP BY ${bin}, ${pct}`;
-      })
-      .join(' UNION ALL '),
-    { replacements: { ...replacements, ...Object.fromEntries(perAssay.map((a, i) => [`w${i}`, a.binWidth])) }, type: QueryTypes.SELECT },
-  )) as { k: number | string; b: number | string | null; p: number | string | null; n: number | string }[];
-  const binCounts = perAssay.map(() => new Map<number, number>());
-  const pctCounts = perAssay.map(() => new Map<number, number>());
-  for (const r of binRows) {
-    const k = Number(r.k);
-    const add = (counts: Map<number, number>, at: number) => counts.set(at, (counts.get(at) ?? 0) + Number(r.n));
-    if (r.b !== null) add(binCounts[k]!, Number(r.b));
-    if (r.p !== null) add(pctCounts[k]!, Number(r.p));
-  }
+  // Second pass: each value into its bin of its complex's width, each % of mean counted.
+  const bins = perAssay.map((a) => new Array<number>(a.last + 1).fill(0));
+  const pcts = cohortComplexes.map(() => new Map<number, number>());
+  keys.forEach(([complex, , , , value, pct], i) => {
+    const n = counts[i]!;
+    if (!n) return;
+    const k = COMPLEX_INDEX.get(complex)!;
+    if (value !== null) {
+      const { binWidth, last } = perAssay[k]!;
+      // The millionth of a bin absorbs floating-point error at bin edges (0.24 / 0.02 = 11.999…).
+      bins[k]![Math.min(Math.max(0, Math.floor(value / binWidth + 0.000001)), last)]! += n;
+    }
+    if (pct !== null) pcts[k]!.set(pct, (pcts[k]!.get(pct) ?? 0) + n);
+  });
 
   return {
     total,
-    ratioToCs: perAssay.map((a, k) => {
-      // Bins past the last one drawn (a long upper tail) are counted into it, so every member shows.
-      const last = Math.max(BINS, Math.ceil((a.interval?.upper ?? 0) / a.binWidth) + 2) - 1;
-      const counts = new Map<number, number>();
-      for (const [b, n] of binCounts[k]!) {
-        const i = Math.min(Math.max(0, b), last);
-        counts.set(i, (counts.get(i) ?? 0) + n);
-      }
-      const bins = Array.from({ length: last + 1 }, (_, i) => ({ from: Number((i * a.binWidth).toPrecision(12)), count: counts.get(i) ?? 0 }));
-      return { ...a, bins };
-    }),
+    ratioToCs: perAssay.map(({ last: _last, ...a }, k) => ({
+      ...a,
+      bins: bins[k]!.map((count, i) => ({ from: Number((i * a.binWidth).toPrecision(12)), count })),
+    })),
     pctOfMean: cohortComplexes.map((assay, k) => {
-      const bins = [...pctCounts[k]!].map(([at, count]) => ({ at, count })).sort((x, y) => x.at - y.at);
-      const n = bins.reduce((s, b) => s + b.count, 0);
+      const counted = [...pcts[k]!].map(([at, count]) => ({ at, count })).sort((x, y) => x.at - y.at);
+      const n = counted.reduce((s, b) => s + b.count, 0);
       if (n === 0) return { assay, n, min: null, q1: null, median: null, q3: null, max: null };
       return {
         assay,
         n,
-        min: bins[0]!.at,
-        q1: quantileOfBins(bins, n, 0.25),
-        median: quantileOfBins(bins, n, 0.5),
-        q3: quantileOfBins(bins, n, 0.75),
-        max: bins.at(-1)!.at,
+        min: counted[0]!.at,
+        q1: quantileOfBins(counted, n, 0.25),
+        median: quantileOfBins(counted, n, 0.5),
+        q3: quantileOfBins(counted, n, 0.75),
+        max: counted.at(-1)!.at,
       };
     }),
   };
