@@ -1,7 +1,7 @@
+// @vitest-environment jsdom
 import JSONSchemaValidator from '@asymmetrik/fhir-json-schema-validator';
 import ucum from '@lhncbc/ucum-lhc';
 import { Fhir } from 'fhir';
-import { JSDOM } from 'jsdom';
 import { describe, expect, it } from 'vitest';
 import { reportCaution } from '@/schemas/report-document';
 import { ucumCodeOf } from '../../server/domain/fhir-report/codes';
@@ -16,7 +16,8 @@ import { bundleOf, variantDocuments, type Bundle, type Json } from '../factories
  *   @asymmetrik/fhir-json-schema-validator) and FHIR.js (`fhir`), the R4 StructureDefinitions with unexpected
  *   elements as errors;
  * - UCUM [confirmed as the standard] through @lhncbc/ucum-lhc: every code valid and equal to the printed unit;
- * - XML 1.0 [confirmed]: the narrative parses as XHTML and reads back as the text it escapes (jsdom's parser).
+ * - XML 1.0 [confirmed]: the narrative parses as XHTML and reads back as the text it escapes (jsdom's DOMParser,
+ *   this file's test environment).
  * It sits beside the API conformance suite (fhir.api.test.ts) rather than under tests/unit because loading these
  * validators takes seconds, which the mutation run (tests/unit/server only) would pay for every mutant; the
  * bundle's own unit test is tests/unit/server/fhir-report/build-fhir-bundle.test.ts.
@@ -43,8 +44,7 @@ describe('FHIR bundles of every report shape against R4', () => {
   });
 
   it('when a bundle is broken on purpose, then the validators say so (the check above can fail)', () => {
-    const [[, doc]] = variantDocuments();
-    const broken = bundleOf(doc!) as Bundle;
+    const broken: Bundle = bundleOf(variantDocuments()[0]![1]);
     const observation = broken.entry.find((e) => e.resource.resourceType === 'Observation')!.resource;
     observation.code = { coding: [{ system: 'https://cristae.example/fhir/CodeSystem/rc-measures', code: '', display: '' }] };
     expect(r4Errors(broken).length).toBeGreaterThan(0);
@@ -71,7 +71,7 @@ describe('the narrative', () => {
     const variant = variantDocuments().find(([name]) => name === 'markup characters in the laboratory name')!;
     const report = bundleOf(variant[1]).entry[0]!.resource;
     const div = (report.text as { div: string }).div;
-    const xml = new new JSDOM('').window.DOMParser().parseFromString(div, 'application/xml');
+    const xml = new DOMParser().parseFromString(div, 'application/xml');
     expect(xml.getElementsByTagName('parsererror')).toHaveLength(0);
     expect(xml.documentElement.namespaceURI).toBe('http://www.w3.org/1999/xhtml');
     expect([...xml.getElementsByTagName('p')].map((p) => p.textContent)).toEqual([
