@@ -200,6 +200,7 @@ export default async function run(): Promise<BenchResult> {
     const seedCpu = process.cpuUsage(cpu0);
     const seedCpuSeconds = (seedCpu.user + seedCpu.system) / 1e6;
     const [{ n: valueCount }] = (await sequelize.query('SELECT COUNT(*) AS n FROM cohort_values', { type: QueryTypes.SELECT })) as [{ n: number }];
+    const [{ n: cellCount }] = (await sequelize.query('SELECT COUNT(*) AS n FROM cohort_plot_cells', { type: QueryTypes.SELECT })) as [{ n: number }];
 
     const year = new Date().getUTCFullYear();
     const views: [string, CohortCriteria, Pick<CohortFilter, 'page' | 'pageSize' | 'sort' | 'dir'>][] = [
@@ -264,7 +265,8 @@ export default async function run(): Promise<BenchResult> {
       notes:
         `Every one of the ${members.toLocaleString('en-GB')} invented cases carries a signed report, one cohort member and ${Math.round(Number(valueCount) / members)} values ` +
         `(${Number(valueCount).toLocaleString('en-GB')} cohort values); seeding took ${seedSeconds.toFixed(1)} s (${seedCpuSeconds.toFixed(1)} s of CPU). Times include the total count on every call and the values of the page's members. ` +
-        `Cohort sizes: ${sizes.join('; ')}. Complexes plotted: ${cohortComplexes.join(', ')}. ` +
+        `Cohort sizes: ${sizes.join('; ')}. Complexes plotted: ${cohortComplexes.join(', ')}; the plots read ${Number(cellCount).toLocaleString('en-GB')} pre-counted plot cells ` +
+        `(migration 0018), and a filtered cohort one pass over the member rows its filter selects. ` +
         `Load is the 1-minute load average just after each figure (2 cores); above 2 other work shared the CPU and inflated the times.`,
     };
   } finally {

@@ -266,13 +266,15 @@ function entry<K, V>(map: Map<K, V>, key: K, create: () => V): V {
 function plotsOfCells(total: number, keys: readonly CellKey[], counts: ArrayLike<number>): CohortPlots {
   // First pass: per complex, per interval (lower → upper → mean), the values counted and the largest.
   const intervals = cohortComplexes.map(() => new Map<number | null, Map<number | null, Map<number | null, IntervalGroup>>>());
-  keys.forEach(([complex, lower, upper, mean, value], i) => {
-    if (!counts[i] || value === null) return;
+  for (let i = 0; i < keys.length; i++) {
+    if (!counts[i]) continue; // a cell none of this cohort's members is in
+    const [complex, lower, upper, mean, value] = keys[i]!;
+    if (value === null) continue;
     const byUpper = entry(intervals[COMPLEX_INDEX.get(complex)!]!, lower, () => new Map());
     const group = entry(entry(byUpper, upper, () => new Map()), mean, () => ({ lower, upper, mean, n: 0, top: -Infinity }));
     group.n += counts[i];
     group.top = Math.max(group.top, value);
-  });
+  }
   const perAssay = cohortComplexes.map((assay, k) => {
     const mine = [...intervals[k]!.values()].flatMap((byUpper) => [...byUpper.values()].flatMap((byMean) => [...byMean.values()]));
     mine.sort((a, b) => (a.lower ?? -Infinity) - (b.lower ?? -Infinity) || (a.upper ?? -Infinity) - (b.upper ?? -Infinity) || (a.mean ?? -Infinity) - (b.mean ?? -Infinity));
@@ -290,9 +292,10 @@ function plotsOfCells(total: number, keys: readonly CellKey[], counts: ArrayLike
   // Second pass: each value into its bin of its complex's width, each % of mean counted.
   const bins = perAssay.map((a) => new Array<number>(a.last + 1).fill(0));
   const pcts = cohortComplexes.map(() => new Map<number, number>());
-  keys.forEach(([complex, , , , value, pct], i) => {
+  for (let i = 0; i < keys.length; i++) {
     const n = counts[i]!;
-    if (!n) return;
+    if (!n) continue;
+    const [complex, , , , value, pct] = keys[i]!;
     const k = COMPLEX_INDEX.get(complex)!;
     if (value !== null) {
       const { binWidth, last } = perAssay[k]!;
@@ -300,7 +303,7 @@ function plotsOfCells(total: number, keys: readonly CellKey[], counts: ArrayLike
       bins[k]![Math.min(Math.max(0, Math.floor(value / binWidth + 0.000001)), last)]! += n;
     }
     if (pct !== null) pcts[k]!.set(pct, (pcts[k]!.get(pct) ?? 0) + n);
-  });
+  }
 
   return {
     total,
