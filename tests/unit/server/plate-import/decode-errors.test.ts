@@ -1,0 +1,181 @@
+import { describe, expect, it } from 'vitest';
+import { MAX_PLATE_FILE_BYTES } from '@/schemas/plate';
+import { decodePlateText, formatBytes, utf8ByteLength } from '../../../../server/domain/plate-import/decode-text';
+import { failWith, IssueList, PlateImportError } from '../../../../server/domain/plate-import/errors';
+
+/*
+ * The byte-level refusals of an uploaded plate file and the error that carries them. References: UTF-8 and its
+ * byte-order mark, RFC 3629 [confirmed]; UTF-16 byte-order marks FF FE (little-endian) and FE FF (big-endian),
+ * the Unicode Standard ch. 23 [from memory]; line endings CR LF, LF and a lone CR as in RFC 4180's CSV and
+ * classic Mac text [common practice]; KiB = 1024 bytes, MiB = 1024² (IEC 80000-13 [confirmed]). House rule:
+ * a refusal names the line it found (docs/plate-file-format.md).
+ */
+function catchImport(fn: () => unknown): PlateImportError {
+  try {
+    fn();
+  } catch (err) {
+    if (err instanceof PlateImportError) return err;
+    throw err;
+  }
+  throw new Error('expected a PlateImportError, but the input was accepted');
+}
+const bytes = (s: string) => new Uint8Array(Buffer.from(s, 'utf8'));
+
+describe('formatBytes (IEC binary prefixes)', () => {
+  it('bytes below 1 KiB, KiB with one decimal below 1 MiB, MiB with two', () => {
+    expect(formatBytes(0)).toBe('0 bytes');
+    expect(formatBytes(1023)).toBe('1023 bytes');
+    expect(formatBytes(1024)).toBe('1.0 KiB');
+    expect(formatBytes(1536)).toBe('1.5 KiB');
+    expect(formatBytes(1024 * 1024 - 1)).toBe('1024.0 KiB');
+    expect(formatBytes(1024 * 1024)).toBe('1.00 MiB');
+    expect(formatBytes(MAX_PLATE_FILE_BYTES)).toBe('2.00 MiB');
+  });
+});
+
+describe('utf8ByteLength stops counting once past its limit', () => {
+  it('counts all with no limit; with a limit, stops just past it', () => {
+    expect(utf8ByteLength('abcdef')).toBe(6);
+    expect(utf8ByteLength('abcdef', 2)).toBe(3);
+    expect(utf8ByteLength('€€€', 3)).toBe(6);
+  });
+  it('a lone high surrogate at the end counts as U+FFFD (3 bytes), as Buffer.byteLength does', () => {
+    expect(utf8ByteLength('a\ud800')).toBe(Buffer.byteLength('a\ud800', 'utf8'));
+    expect(utf8ByteLength('\ud800a')).toBe(Buffer.byteLength('\ud800a', 'utf8'));
+  });
+});
+
+describe('decodePlateText: bytes', () => {
+  it('a UTF-8 byte-order mark is dropped', () => {
+    expect(decodePlateText(new Uint8Array([0xef, 0xbb, 0xbf, 0x61]))).toBe('a');
+  });
+
+  it('UTF-16 in either byte order is refused at line 1 with the way out', () => {
+    for (const bom of [
+      [0xff, 0xfe],
+      [0xfe, 0xff],
+    ]) {
+      const err = catchImport(() => decodePlateText(new Uint8Array([...bom, 0x74, 0x00])));
+      expect(err.issues).toEqual([
+        {
+          code: 'NOT_TEXT',
+          row: 1,
+          column: null,
+          columnNumber: null,
+          message: 'The file is saved as UTF-16 text; save or export it as UTF-8 (plain CSV or tab-separated text).',
+        },
+      ]);
+    }
+  });
+
+  it('FF alone or FE alone is not taken for UTF-16 (it is invalid UTF-8 instead)', () => {
+    expect(catchImport(() => decodePlateText(new Uint8Array([0xff, 0x41]))).issues[0]!.message).toMatch(/^The file is not valid UTF-8/);
+    expect(catchImport(() => decodePlateText(new Uint8Array([0xfe, 0x41]))).issues[0]!.message).toMatch(/^The file is not valid UTF-8/);
+  });
+
+  it('a NUL byte is named by its byte number and its line, counting CR LF, LF and lone CR as one line end each', () => {
+    const err = catchImport(() => decodePlateText(bytes('a\r\nb\nc\rd\u0000')));
+    expect(err.issues[0]).toMatchObject({
+      code: 'NOT_TEXT',
+      row: 4,
+      message:
+        'The file is not plain text: it contains a NUL byte (byte 9). Upload the CSV or tab-separated text export, not a workbook or binary file.',
+    });
+    // A NUL byte as the very first byte: byte 1, line 1.
+    expect(catchImport(() => decodePlateText(new Uint8Array([0, 0x41]))).issues[0]).toMatchObject({ row: 1, message: expect.stringContaining('(byte 1)') });
+  });
+
+  it('an invalid byte is named by its number, its value in hex and its line', () => {
+    // "ab\n" then C3 followed by "(" (not a continuation byte): byte 4, line 2.
+    const err = catchImport(() => decodePlateText(new Uint8Array([0x61, 0x62, 0x0a, 0xc3, 0x28])));
+    expect(err.issues[0]).toMatchObject({
+      code: 'NOT_TEXT',
+      row: 2,
+      message: 'The file is not valid UTF-8 text (byte 4, value 0xC3). Save it as UTF-8.',
+    });
+    // A value below 0x10 is padded to two hex digits.
+    const bad = catchImport(() => decodePlateText(new Uint8Array([0x0a, 0x0d, 0x0a, 0xe0, 0x80, 0x80])));
+    expect(bad.issues[0]).toMatchObject({ row: 3, message: 'The file is not valid UTF-8 text (byte 4, value 0xE0). Save it as UTF-8.' });
+  });
+
+  it('an empty buffer is empty', () => {
+    expect(catchImport(() => decodePlateText(new Uint8Array([]))).issues[0]).toMatchObject({ code: 'EMPTY_FILE', message: 'The file is empty.' });
+  });
+
+  it('a buffer over the limit says “is”, a string over it says “is more than”', () => {
+    const over = catchImport(() => decodePlateText(new Uint8Array(MAX_PLATE_FILE_BYTES + 1)));
+    expect(over.issues[0]!.message).toBe(
+      'The file is 2.00 MiB; the largest plate file accepted is 2.00 MiB.',
+    );
+    const s = catchImport(() => decodePlateText('x'.repeat(MAX_PLATE_FILE_BYTES + 10)));
+    expect(s.issues[0]!.message).toMatch(/^The file is more than 2\.00 MiB; the largest plate file accepted is 2\.00 MiB\.$/);
+  });
+});
+
+describe('decodePlateText: strings', () => {
+  it('a byte-order mark at the start of a string is dropped; an empty string is empty', () => {
+    expect(decodePlateText('\ufeffabc')).toBe('abc');
+    expect(catchImport(() => decodePlateText('')).issues[0]!.code).toBe('EMPTY_FILE');
+  });
+
+  it('a NUL character is named by its line (lone CR ends a line)', () => {
+    expect(catchImport(() => decodePlateText('a\rb\r\nc\u0000')).issues[0]).toMatchObject({
+      code: 'NOT_TEXT',
+      row: 3,
+      message: 'The file is not plain text: it contains a NUL character.',
+    });
+  });
+
+  it('U+FFFD is named by its line with the reason', () => {
+    expect(catchImport(() => decodePlateText('a\nb\ufffd')).issues[0]).toMatchObject({
+      row: 2,
+      message: 'The text contains the replacement character U+FFFD: the file was not UTF-8. Save it as UTF-8.',
+    });
+  });
+
+  it('a surrogate pair is text; a low surrogate alone or a high one at the end is not', () => {
+    expect(decodePlateText('a😀b')).toBe('a😀b');
+    expect(catchImport(() => decodePlateText('a\n\udc00')).issues[0]).toMatchObject({
+      row: 2,
+      message: 'The text contains an unpaired surrogate and is not valid Unicode.',
+    });
+    expect(catchImport(() => decodePlateText('abc\ud83d')).issues[0]!.row).toBe(1);
+    expect(catchImport(() => decodePlateText('\ud83dx')).issues[0]!.code).toBe('NOT_TEXT');
+  });
+});
+
+describe('PlateImportError and IssueList', () => {
+  it('one issue: its location and message, no “more”', () => {
+    const err = catchImport(() => failWith('EMPTY_CELL', 'No reading for well A1.', { row: 3, column: 'A1', columnNumber: 2 }));
+    expect(err.message).toBe('The plate file could not be imported: Line 3, column A1 (2): No reading for well A1.');
+    expect(err.totalIssues).toBe(1);
+    expect(err.issues).toEqual([{ code: 'EMPTY_CELL', row: 3, column: 'A1', columnNumber: 2, message: 'No reading for well A1.' }]);
+  });
+
+  it('two issues: “and 1 more”; a location left out is null', () => {
+    const list = new IssueList();
+    list.add('EMPTY_CELL', 'first');
+    list.add('EMPTY_CELL', 'second', { row: 4 });
+    expect(list.size).toBe(2);
+    const err = catchImport(() => list.throwIfAny());
+    expect(err.message).toBe('The plate file could not be imported: first (and 1 more)');
+    expect(err.issues[0]).toEqual({ code: 'EMPTY_CELL', row: null, column: null, columnNumber: null, message: 'first' });
+  });
+
+  it('the cap keeps the first issues and counts the rest', () => {
+    const list = new IssueList(2);
+    for (const m of ['a', 'b', 'c']) list.add('EMPTY_CELL', m);
+    const err = catchImport(() => list.fail());
+    expect(err.issues.map((i) => i.message)).toEqual(['a', 'b']);
+    expect(err.totalIssues).toBe(3);
+    expect(list.size).toBe(3);
+  });
+
+  it('throwIfAny does nothing when the list is empty', () => {
+    expect(() => new IssueList().throwIfAny()).not.toThrow();
+  });
+
+  it('an error built with no issue says so', () => {
+    expect(new PlateImportError([]).message).toBe('The plate file could not be imported: unknown problem');
+  });
+});
