@@ -5,8 +5,8 @@ import { intervalColumn, measureColumn } from './cohort-columns';
 /*
  * The plots' pre-counted cells (migration 0018). A cell is one complex's ratio to CS exactly as members carry it:
  * the reference interval it was read against (lower, upper, mean), the value, and its % of the reference mean in
- * whole percent (what the plots count). cohort_plot_cells holds every cell the registry's members fall in, with
- * how many members are in it (n); each member row lists the ids of its cells in "plotCells" (comma-separated, one
+ * whole percent (what the plots count). cohort_plot_cells holds every cell the registry's members fell in, with
+ * how many members are in it now (n); each member row lists the ids of its cells in "plotCells" (comma-separated, one
  * per complex it has a ratio for). Both are kept at signing, in the signing transaction: a case's old members
  * leave their cells before its rows are replaced, the new members join theirs.
  * - The plots of every signed case read the cells alone, with their n.
@@ -75,7 +75,23 @@ export function eachCellId(list: string | null, each: (id: number) => void): voi
 const CHUNK = 400;
 const chunks = <T>(xs: readonly T[]): T[][] => Array.from({ length: Math.ceil(xs.length / CHUNK) }, (_, i) => xs.slice(i * CHUNK, (i + 1) * CHUNK));
 
-/** Before a case's member rows are deleted: its members leave their cells (each cell's n drops; empty cells go). */
+/** Adds to the counts of cells by id (one statement per chunk). */
+async function addToCells(sequelize: Sequelize, deltas: ReadonlyMap<number, number>, transaction?: Transaction): Promise<void> {
+  for (const part of chunks([...deltas])) {
+    const replacements: Record<string, unknown> = { ids: part.map(([id]) => id) };
+    const cases = part.map(([id, by], i) => {
+      Object.assign(replacements, { [`i${i}`]: id, [`b${i}`]: by });
+      return `WHEN :i${i} THEN :b${i}`;
+    });
+    await sequelize.query(`UPDATE cohort_plot_cells SET n = n + CASE id ${cases.join(' ')} END WHERE id IN (:ids)`, { replacements, transaction });
+  }
+}
+
+/**
+ * Before a case's member rows are deleted: its members leave their cells (each cell's n drops). A cell left empty
+ * stays, at n = 0: ids and keys never change once written, which lets a filtered cohort read its cells' keys after
+ * its members' ids (cohort.repository.ts).
+ */
 export async function leavePlotCells(sequelize: Sequelize, caseId: number, transaction?: Transaction): Promise<void> {
   const rows = (await sequelize.query(`SELECT "plotCells" FROM cohort_members WHERE "caseId" = :caseId`, {
     replacements: { caseId },
@@ -83,17 +99,15 @@ export async function leavePlotCells(sequelize: Sequelize, caseId: number, trans
     type: QueryTypes.SELECT,
   })) as { plotCells: string | null }[];
   const drops = new Map<number, number>();
-  for (const r of rows) eachCellId(r.plotCells, (id) => drops.set(id, (drops.get(id) ?? 0) + 1));
-  if (drops.size === 0) return;
-  for (const [id, by] of drops) {
-    await sequelize.query(`UPDATE cohort_plot_cells SET n = n - :by WHERE id = :id`, { replacements: { id, by }, transaction });
-  }
-  await sequelize.query(`DELETE FROM cohort_plot_cells WHERE id IN (:ids) AND n <= 0`, { replacements: { ids: [...drops.keys()] }, transaction });
+  for (const r of rows) eachCellId(r.plotCells, (id) => drops.set(id, (drops.get(id) ?? 0) - 1));
+  await addToCells(sequelize, drops, transaction);
 }
 
 /**
  * Before new member rows are inserted: each joins its cells (cells not met before are created) and gets their ids
- * in its "plotCells" (null when it has none). One upsert per chunk of distinct cells, so a bulk fill stays fast.
+ * in its "plotCells" (null when it has none). A few statements per chunk of distinct cells, so a bulk fill stays
+ * fast. Writes are one at a time (writeTransaction; the migration and the benchmark alone), so a key looked up and
+ * not found is still new when it is inserted; no upsert, which would spend an id on every key already there.
  */
 export async function joinPlotCells(sequelize: Sequelize, members: Row[], transaction?: Transaction): Promise<void> {
   const keysOf = members.map((m) => plotCellsOf(m).map((c) => ({ complex: c.complex, key: cellKey(c) })));
@@ -103,24 +117,26 @@ export async function joinPlotCells(sequelize: Sequelize, members: Row[], transa
     joining.set(cell.key, { complex: cell.complex, n: (seen?.n ?? 0) + 1 });
   }
   const ids = new Map<string, number>();
-  for (const part of chunks([...joining])) {
-    const replacements: Record<string, unknown> = {};
-    const tuples = part.map(([key, { complex, n }], i) => {
-      Object.assign(replacements, { [`k${i}`]: key, [`c${i}`]: complex, [`n${i}`]: n });
-      return `(:k${i}, :c${i}, :n${i})`;
-    });
-    // Portable upsert (SQLite 3.24+, PostgreSQL 9.5+): the keys of one statement are distinct.
-    await sequelize.query(
-      `INSERT INTO cohort_plot_cells ("key", complex, n) VALUES ${tuples.join(', ')}
-         ON CONFLICT ("key") DO UPDATE SET n = cohort_plot_cells.n + excluded.n`,
-      { replacements, transaction },
-    );
+  const idsOf = async (keys: string[]) => {
     const found = (await sequelize.query(`SELECT id, "key" FROM cohort_plot_cells WHERE "key" IN (:keys)`, {
-      replacements: { keys: part.map(([key]) => key) },
+      replacements: { keys },
       transaction,
       type: QueryTypes.SELECT,
     })) as { id: number; key: string }[];
     for (const f of found) ids.set(f.key, Number(f.id));
+  };
+  for (const part of chunks([...joining.keys()])) {
+    await idsOf(part);
+    await addToCells(sequelize, new Map(part.filter((key) => ids.has(key)).map((key) => [ids.get(key)!, joining.get(key)!.n])), transaction);
+    const fresh = part.filter((key) => !ids.has(key));
+    if (fresh.length === 0) continue;
+    const replacements: Record<string, unknown> = {};
+    const tuples = fresh.map((key, i) => {
+      Object.assign(replacements, { [`k${i}`]: key, [`c${i}`]: joining.get(key)!.complex, [`n${i}`]: joining.get(key)!.n });
+      return `(:k${i}, :c${i}, :n${i})`;
+    });
+    await sequelize.query(`INSERT INTO cohort_plot_cells ("key", complex, n) VALUES ${tuples.join(', ')}`, { replacements, transaction });
+    await idsOf(fresh);
   }
   members.forEach((m, i) => {
     m.plotCells = keysOf[i]!.length ? keysOf[i]!.map((c) => ids.get(c.key)!).join(',') : null;

@@ -215,42 +215,60 @@ function quantileOfBins(bins: { at: number; count: number }[], n: number, q: num
 
 type IntervalGroup = { lower: number | null; upper: number | null; mean: number | null; n: number; top: number };
 /**
- * Every plot cell, as three lists aggregated in one pass (so in the same order): the keys as one JSON array, the
- * ids and the counts comma-separated. Three plain aggregates cost far less than one text built per cell.
+ * Plot cells as lists aggregated in one pass (so in the same order): the keys as one JSON array, and `also` (ids
+ * or counts) comma-separated. Plain aggregates cost far less than one text built per cell.
  */
-const CELLS = `SELECT '[' || string_agg("key", ',') || ']' AS keys, string_agg(CAST(id AS TEXT), ',') AS ids,
-  string_agg(CAST(n AS TEXT), ',') AS counts FROM cohort_plot_cells`;
+const cellLists = (also: 'id' | 'n', where: string) =>
+  `SELECT '[' || string_agg("key", ',') || ']' AS keys, string_agg(CAST(${also} AS TEXT), ',') AS list FROM cohort_plot_cells ${where}`;
+/** A filtered cohort in so few cells reads those cells alone, by id; in more, every cell (one pass is cheaper). */
+const FEW_CELLS = 2000;
 
 /**
  * What the cohort page draws, over the whole cohort: for each complex, the distribution of its ratio to CS in
  * round bins with the reference interval most members were read against; and the quartiles of that ratio as %
  * of the reference mean, counted in whole percent (the precision a report prints). Read from the plot cells
- * (migration 0018) in one statement, so cells and members are one snapshot: every signed case is the cells' own
- * counts; a filtered cohort is one pass over the member rows its filter selects, their cell ids gathered as one
- * text (string_agg: SQLite 3.44+, PostgreSQL) and counted here. No sort of the cohort, whatever its size.
+ * (migration 0018), with no sort of the cohort whatever its size:
+ * - every signed case: the cells' own counts, in the same statement as the total (one snapshot);
+ * - a filtered cohort: one pass over the member rows its filter selects, their cell ids gathered as one text
+ *   (string_agg: SQLite 3.44+, PostgreSQL) and counted here, then the keys of those cells. A cell's key never
+ *   changes and a cell is never deleted, so reading the keys in a second statement cannot miss or mislabel one.
  */
 export async function cohortPlots(filters: CohortCriteria): Promise<CohortPlots> {
   const { sql: where, replacements } = cohortWhere(filters);
-  const members = where
-    ? `SELECT COUNT(*) AS total, string_agg(m."plotCells", ',') AS members FROM cohort_members m ${where}`
-    : `SELECT COUNT(*) AS total FROM cohort_members`;
-  const [row] = (await db().query(`SELECT * FROM (${members}) AS m, (${CELLS}) AS c`, { replacements, type: QueryTypes.SELECT })) as [
-    { total: number | string; members?: string | null; keys: string | null; ids: string | null; counts: string | null },
-  ];
-  const keys = JSON.parse(row.keys ?? '[]') as CellKey[];
-  const counts = new Float64Array(keys.length);
-  if (where) {
-    // Each member listed its cells' ids: count them (place: an id → its index in the lists, plus one).
-    const ids: number[] = [];
-    eachCellId(row.ids, (id) => ids.push(id));
-    const place = new Int32Array(ids.reduce((top, id) => Math.max(top, id), 0) + 1);
-    ids.forEach((id, i) => (place[id] = i + 1));
-    eachCellId(row.members ?? null, (id) => (counts[place[id]! - 1]! += 1));
-  } else {
-    let i = 0;
-    eachCellId(row.counts, (n) => (counts[i++] = n));
+  type Lists = { keys: string | null; list: string | null };
+  if (!where) {
+    const [row] = (await db().query(`SELECT * FROM (SELECT COUNT(*) AS total FROM cohort_members) AS m, (${cellLists('n', 'WHERE n > 0')}) AS c`, {
+      type: QueryTypes.SELECT,
+    })) as [Lists & { total: number | string }];
+    const counts: number[] = [];
+    eachCellId(row.list, (n) => counts.push(n));
+    return plotsOfCells(Number(row.total), JSON.parse(row.keys ?? '[]') as CellKey[], counts); // PostgreSQL's COUNT is a bigint, as a string
   }
-  return plotsOfCells(Number(row.total), keys, counts); // PostgreSQL's COUNT is a bigint, as a string
+  const [cohort] = (await db().query(`SELECT COUNT(*) AS total, string_agg(m."plotCells", ',') AS members FROM cohort_members m ${where}`, {
+    replacements,
+    type: QueryTypes.SELECT,
+  })) as [{ total: number | string; members: string | null }];
+  // Each member listed its cells' ids: count them by id (in a dense array, grown as larger ids come).
+  let byId = new Float64Array(1024);
+  eachCellId(cohort.members, (id) => {
+    if (id >= byId.length) {
+      const grown = new Float64Array(Math.max(id + 1, byId.length * 2));
+      grown.set(byId);
+      byId = grown;
+    }
+    byId[id]! += 1;
+  });
+  const present: number[] = [];
+  for (let id = 0; id < byId.length; id++) if (byId[id]! > 0) present.push(id);
+  const [cells] = present.length
+    ? ((await db().query(cellLists('id', present.length <= FEW_CELLS ? 'WHERE id IN (:present)' : ''), {
+        replacements: { present },
+        type: QueryTypes.SELECT,
+      })) as [Lists])
+    : [{ keys: null, list: null }];
+  const counts: number[] = [];
+  eachCellId(cells.list, (id) => counts.push(byId[id]!));
+  return plotsOfCells(Number(cohort.total), JSON.parse(cells.keys ?? '[]') as CellKey[], counts);
 }
 
 const COMPLEX_INDEX = new Map<string, number>(cohortComplexes.map((c, i) => [c, i]));
