@@ -51,3 +51,12 @@ describe('splitCsvRecords', () => {
     });
   });
 });
+
+describe('isBlankRecord', () => {
+  it('counts a record whose cells hold only spaces, tabs or no-break spaces as blank, and one with any text as not', () => {
+    // ECMA-262 WhiteSpace, as String.prototype.trim [confirmed]. (csv-parse's ltrim already empties such cells in
+    // files; the helper keeps the rule for any record it is given.)
+    expect(isBlankRecord({ row: 1, cells: [' ', '\t', '\u00a0', ''] })).toBe(true);
+    expect(isBlankRecord({ row: 1, cells: ['\u00a0', ' x '] })).toBe(false);
+  });
+});
