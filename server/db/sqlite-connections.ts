@@ -21,8 +21,11 @@ type ConnectionManager = {
  * - synchronous = NORMAL: under WAL, a commit is durable against a crash of the process (the WAL is written
  *   before the commit returns) and the file cannot be corrupted; only a power cut or kernel crash can lose
  *   the last commits before a checkpoint. FULL would fsync the WAL on every commit.
+ * - mmap_size = 1 GiB: the file is read through a memory map (the operating system's page cache, shared by every
+ *   connection) instead of one read() call per 4 KiB page into a page cache of 2 MiB per connection. A pass over
+ *   a large table (a cohort of 100,000 members) took twice as long in those calls as in SQLite itself.
  */
-export const SQLITE_CONNECTION_PRAGMAS = ['PRAGMA busy_timeout = 5000', 'PRAGMA synchronous = NORMAL'];
+export const SQLITE_CONNECTION_PRAGMAS = ['PRAGMA busy_timeout = 5000', 'PRAGMA synchronous = NORMAL', 'PRAGMA mmap_size = 1073741824'];
 const MAX_IDLE = 4;
 /** Connections for reads outside a transaction, each running one statement at a time. */
 const READERS = 4;
