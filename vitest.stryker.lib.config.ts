@@ -2,9 +2,10 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { defineConfig } from 'vitest/config';
 
-// Mutation testing of server/lib alone (`npm run mutation:lib`, stryker.lib.config.json): the unit tests of
-// server/lib and the child-process test of the logged stack, so a mutant of the request-path helpers, the error
-// mapping or the log does not wait for every unit test that imports them indirectly.
+// Mutation testing of server/lib and of server/auth's pure files (`npm run mutation:lib`, stryker.lib.config.json;
+// `npm run mutation:lib -- --mutate 'server/auth/session-cache.ts'`): the unit tests of server/lib and
+// server/auth and the child-process test of the logged stack, so a mutant there does not wait for every unit test
+// that imports these files indirectly.
 const root = path.dirname(fileURLToPath(import.meta.url));
 
 export default defineConfig({
@@ -12,7 +13,11 @@ export default defineConfig({
   test: {
     name: 'mutation-lib',
     environment: 'node',
-    include: ['tests/unit/server/lib/**/*.test.ts', 'tests/unit/server/ops/source-mapped-stack.test.ts'],
+    include: [
+      'tests/unit/server/lib/**/*.test.ts',
+      'tests/unit/server/auth/**/*.test.ts',
+      'tests/unit/server/ops/source-mapped-stack.test.ts',
+    ],
     setupFiles: ['tests/setup/node.ts'],
     testTimeout: 20_000,
   },
