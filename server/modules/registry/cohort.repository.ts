@@ -285,12 +285,13 @@ function plotsOfCells(total: number, keys: readonly CellKey[], counts: ArrayLike
   // First pass: per complex, per interval (lower → upper → mean), the values counted and the largest.
   const intervals = cohortComplexes.map(() => new Map<number | null, Map<number | null, Map<number | null, IntervalGroup>>>());
   for (let i = 0; i < keys.length; i++) {
-    if (!counts[i]) continue; // a cell none of this cohort's members is in
+    const n = counts[i]!;
+    if (!n) continue; // a cell none of this cohort's members is in
     const [complex, lower, upper, mean, value] = keys[i]!;
     if (value === null) continue;
     const byUpper = entry(intervals[COMPLEX_INDEX.get(complex)!]!, lower, () => new Map());
     const group = entry(entry(byUpper, upper, () => new Map()), mean, () => ({ lower, upper, mean, n: 0, top: -Infinity }));
-    group.n += counts[i];
+    group.n += n;
     group.top = Math.max(group.top, value);
   }
   const perAssay = cohortComplexes.map((assay, k) => {
