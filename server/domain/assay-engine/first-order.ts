@@ -57,7 +57,8 @@ function logTrace(
     }
     logged.push({ t: p.t, a: Math.log(Math.abs(d)) });
   }
-  return { logged, choice: choice.kind === 'manual' ? { kind: 'all' } : choice };
+  // A manual window is passed on as it is: it holds every logged reading, and its flags name its times.
+  return { logged, choice };
 }
 
 function fitK(

@@ -167,4 +167,62 @@ describe('other refusals and checks', () => {
     expect(codes(r)).not.toContain('OUTLIER_READING');
     expect(r.kPerMin).not.toBeNull();
   });
+
+  it('a manual window of 4 readings is fitted and flagged below the laboratory minimum, naming its times', () => {
+    const r = calculateFirstOrder({ total: decay(0.95, 0.15, 0.8), aInfinity: 0.15, window: { fromS: 0, toS: 15 }, ...volumes }, civ);
+    expect(r.kPerMin).toBeCloseTo(0.8, 9);
+    expect(r.flags).toEqual([
+      { code: 'TOO_FEW_POINTS', message: 'total trace has 4 readings between 0 and 15 s, fewer than the laboratory minimum of 5' },
+    ]);
+  });
+
+  it('a manual window of 2 readings gives no k, and says so', () => {
+    const r = calculateFirstOrder({ total: decay(0.95, 0.15, 0.8), aInfinity: 0.15, window: { fromS: 0, toS: 5 }, ...volumes }, civ);
+    expect(r.kPerMin).toBeNull();
+    expect(r.flags).toEqual([
+      { code: 'TOO_FEW_POINTS', message: 'total trace has 2 readings; at least 3 are needed for a slope' },
+    ]);
+  });
+
+  it('an opening lag is stepped over by the automatic window: k is the decay’s, the lag named', () => {
+    // Held at 0.95 for 30 s, then the decay at 0.8/min from there [analytic]: the straight log stretch starts at 30 s.
+    const t = decay(0.95, 0.15, 0.8).map((p) => (p.t <= 30 ? { t: p.t, a: 0.95 } : { t: p.t, a: 0.15 + 0.8 * Math.exp((-0.8 * (p.t - 30)) / 60) }));
+    const r = calculateFirstOrder({ total: t, aInfinity: 0.15, ...volumes }, civ);
+    // Within the automatic window's allowance of 0.5% of the fastest rate (linearity.ts).
+    expect(Math.abs(r.kPerMin! - 0.8)).toBeLessThan(0.005 * 0.8);
+    expect(r.window!.fromS).toBeGreaterThanOrEqual(25);
+    expect(codes(r)).toEqual(['LAG_EXCLUDED']);
+  });
+
+  it('readings past the photometer range after the window are not flagged; the window’s last reading is', () => {
+    // Rising towards A∞ = 2.4: A = 2.4 − 1.9·e^(−0.8t): 1.9897 at 115 s, 2.0161 at 120 s (reading 25) [analytic].
+    const rising = decay(0.5, 2.4, 0.8);
+    const before = calculateFirstOrder({ total: rising, aInfinity: 2.4, window: { fromS: 0, toS: 115 }, ...volumes }, civ);
+    expect(codes(before)).not.toContain('OUT_OF_LINEAR_RANGE');
+    const at = calculateFirstOrder({ total: rising, aInfinity: 2.4, window: { fromS: 0, toS: 120 }, ...volumes }, civ);
+    expect(at.flags.find((f) => f.code === 'OUT_OF_LINEAR_RANGE')!.message).toMatch(/^total trace, reading 25 \(t = 120 s\): absorbance 2\.016 is outside/);
+  });
+
+  it('raw readings exactly at 0 A or 2 A are inside the photometer range', () => {
+    const top = decay(2, 0.15, 0.8);
+    expect(codes(calculateFirstOrder({ total: top, aInfinity: 0.15, ...volumes }, civ))).not.toContain('OUT_OF_LINEAR_RANGE');
+    const low = decay(0.5, -0.5, 0.8).map((p) => (p.t === 50 ? { t: 50, a: 0 } : p));
+    const r = calculateFirstOrder({ total: low, aInfinity: -0.5, window: { fromS: 0, toS: 50 }, ...volumes }, civ);
+    expect(codes(r)).not.toContain('OUT_OF_LINEAR_RANGE');
+    // Just below 0 is outside.
+    low[10] = { t: 50, a: -0.0001 };
+    expect(codes(calculateFirstOrder({ total: low, aInfinity: -0.5, window: { fromS: 0, toS: 50 }, ...volumes }, civ))).toContain('OUT_OF_LINEAR_RANGE');
+  });
+
+  it('the total is judged for curvature; the background is not', () => {
+    // A straight fall (not first order): ln(A − A∞) bends, so a wide manual window is curved [analytic].
+    const straight = Array.from({ length: 60 }, (_, i) => ({ t: i * 5, a: 0.95 - 0.0025 * i * 5 }));
+    const total = calculateFirstOrder({ total: straight, aInfinity: 0.15, window: { fromS: 0, toS: 250 }, ...volumes }, civ);
+    expect(total.flags.find((f) => f.code === 'CURVATURE')!.message).toMatch(/^total trace/);
+    const bg = calculateFirstOrder(
+      { total: decay(0.95, 0.15, 0.8), background: straight, aInfinity: 0.15, window: { fromS: 0, toS: 250 }, ...volumes },
+      civ,
+    );
+    expect(codes(bg)).not.toContain('CURVATURE');
+  });
 });
