@@ -42,18 +42,20 @@ export function withResult(doc: ReportDocument, assay: AssayCode, measure: Measu
   return copy;
 }
 
+/** The fields of a result row for which no reference interval exists. */
+export const NO_INTERVAL = {
+  referenceUpper: null,
+  referenceLower: null,
+  referenceMean: null,
+  intervalLabel: null,
+  intervalVersion: null,
+  status: 'not_compared',
+  pctOfMean: null,
+} as const;
+
 /** Every shape of document the bundle code branches on, by name. */
 export function variantDocuments(): Array<[string, ReportDocument, string | null]> {
   const doc = buildReportDocument();
-  const noInterval = {
-    referenceUpper: null,
-    referenceLower: null,
-    referenceMean: null,
-    intervalLabel: null,
-    intervalVersion: null,
-    status: 'not_compared',
-    pctOfMean: null,
-  } as const;
   return [
     ['the demo final report with a telephone', buildReportDocument({ laboratory: { phone: '+00 0000 000000 (demo)' } }), null],
     ['a name split at its comma', buildReportDocument({ patient: { name: 'Quillfeather, Marigold  Anne' } }), null],
@@ -63,7 +65,7 @@ export function variantDocuments(): Array<[string, ReportDocument, string | null
     ['a negative value', withResult(doc, 'CII', 'activity', { value: -1.25, status: 'below', pctOfMean: -2.8, criterionBand: 'major', decimals: 2 }), null],
     ['only a lower limit', withResult(doc, 'CS', 'activity', { referenceUpper: null }), null],
     ['only an upper limit', withResult(doc, 'CS', 'activity', { referenceLower: null }), null],
-    ['no interval', withResult(doc, 'CS', 'activity', noInterval), null],
+    ['no interval', withResult(doc, 'CS', 'activity', NO_INTERVAL), null],
     ['a unit without a UCUM code', withResult(doc, 'CS', 'activity', { unit: 'U/g wet weight' }), null],
     ['no collection time', buildReportDocument({ case: { collectedAt: null } }), null],
     ['a rejected specimen', buildRejectedReportDocument(), null],

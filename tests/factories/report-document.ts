@@ -286,3 +286,21 @@ export function buildTwoSpecimenReportDocument(overrides: ReportDocumentOverride
     ...overrides,
   });
 }
+
+/**
+ * A copy of `doc` with one result row of one specimen section changed (or removed when `change` answers null).
+ */
+export function withResultRow(
+  doc: ReportDocument,
+  sectionIndex: number,
+  assay: string,
+  measure: string,
+  change: (r: ReportResult) => ReportResult | null,
+): ReportDocument {
+  const copy = structuredClone(doc);
+  const section = copy.specimens[sectionIndex]!;
+  section.results = section.results.flatMap((r) =>
+    r.assay === assay && r.measure === measure ? [change(r)].filter((x): x is ReportResult => x !== null) : [r],
+  );
+  return copy;
+}

@@ -11,7 +11,7 @@ import {
   specimenTypeCoding,
   ucumCodeOf,
 } from '../../../../server/domain/fhir-report/codes';
-import { PDF, bundleOf, withResult, type Bundle, type Json, type Resource } from '../../../factories/fhir-bundles';
+import { NO_INTERVAL, PDF, bundleOf, withResult, type Bundle, type Json, type Resource } from '../../../factories/fhir-bundles';
 import {
   buildCorrectedReportDocument,
   buildRejectedReportDocument,
@@ -397,17 +397,7 @@ describe('buildReportBundle: values and edges', () => {
     ]);
     const none = bundleOf(withResult(doc, 'CS', 'activity', { referenceUpper: null, referenceLower: null }));
     expect(observationFor(none, 'CS.activity').referenceRange).toBeUndefined();
-    const noInterval = bundleOf(
-      withResult(doc, 'CS', 'activity', {
-        referenceUpper: null,
-        referenceLower: null,
-        referenceMean: null,
-        intervalLabel: null,
-        intervalVersion: null,
-        status: 'not_compared',
-        pctOfMean: null,
-      }),
-    );
+    const noInterval = bundleOf(withResult(doc, 'CS', 'activity', NO_INTERVAL));
     const o = observationFor(noInterval, 'CS.activity');
     expect(o.referenceRange).toBeUndefined();
     expect(o.interpretation).toBeUndefined();

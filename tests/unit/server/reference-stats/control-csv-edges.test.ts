@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import type { ControlCsvIssue, ControlDataUploadResult } from '@/schemas/reference-interval';
+import type { ControlDataUploadResult } from '@/schemas/reference-interval';
 import { parseControlCsv } from '../../../../server/domain/reference-stats/control-csv';
-import { ControlCsvError } from '../../../../server/domain/reference-stats/errors';
+import { issuesOf } from '../../../factories/control-csv';
 
 /*
  * The edges of the control-data reader. The format is the one the upload screen states
@@ -17,15 +17,6 @@ import { ControlCsvError } from '../../../../server/domain/reference-stats/error
  * Every value is invented (demo subjects, no real people).
  */
 
-function issuesOf(text: string): ControlCsvIssue[] {
-  try {
-    parseControlCsv(text);
-  } catch (error) {
-    if (error instanceof ControlCsvError) return error.issues;
-    throw error;
-  }
-  throw new Error('expected the file to be refused');
-}
 
 const lines = (...rows: string[]): string => `${rows.join('\n')}\n`;
 const seriesOf = (r: ControlDataUploadResult, specimenType: string, assay: string, measure: string) =>

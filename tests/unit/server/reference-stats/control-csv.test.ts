@@ -2,22 +2,13 @@ import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { controlDataUploadResultSchema, type ControlCsvIssue } from '@/schemas/reference-interval';
 import { parseControlCsv } from '../../../../server/domain/reference-stats/control-csv';
-import { ControlCsvError } from '../../../../server/domain/reference-stats/errors';
+import { issuesOf } from '../../../factories/control-csv';
 
 // Fixtures are invented control subjects ("demo-NN"); no real people or laboratories.
 function fixture(name: string): string {
   return readFileSync(new URL(`../../../fixtures/controls/${name}`, import.meta.url), 'utf8');
 }
 
-function issuesOf(text: string): ControlCsvIssue[] {
-  try {
-    parseControlCsv(text);
-  } catch (error) {
-    if (error instanceof ControlCsvError) return error.issues;
-    throw error;
-  }
-  throw new Error('expected the file to be refused');
-}
 
 describe('parseControlCsv: a good file', () => {
   const result = parseControlCsv(fixture('valid-header-units.csv'));

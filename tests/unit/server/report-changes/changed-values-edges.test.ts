@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import type { ReportDocument, ReportResult, ReportSpecimenSection } from '@/schemas/report-document';
+import type { ReportDocument, ReportSpecimenSection } from '@/schemas/report-document';
 import { changedValuesBetween } from '../../../../server/domain/report-changes';
-import { buildReportDocument, liverSection, muscleSection } from '../../../factories/report-document';
+import { buildReportDocument, liverSection, muscleSection, withResultRow } from '../../../factories/report-document';
 
 /*
  * More of what a corrected report lists as changed (CLIA 42 CFR 493.1291(k) [confirmed]: a corrected report is
@@ -15,12 +15,7 @@ import { buildReportDocument, liverSection, muscleSection } from '../../../facto
 
 type Doc = ReportDocument;
 
-function withRow(doc: Doc, section: number, assay: string, measure: string, change: (r: ReportResult) => ReportResult | null): Doc {
-  const copy = structuredClone(doc);
-  const s = copy.specimens[section]!;
-  s.results = s.results.flatMap((r) => (r.assay === assay && r.measure === measure ? [change(r)].filter((x): x is ReportResult => x !== null) : [r]));
-  return copy;
-}
+const withRow = withResultRow;
 
 const withSpecimens = (sections: ReportSpecimenSection[]): Doc => ({ ...structuredClone(buildReportDocument()), specimens: sections });
 const labelled = (s: ReportSpecimenSection, label: string | undefined): ReportSpecimenSection => ({

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import type { ReportDocument, ReportResult } from '@/schemas/report-document';
+import type { ReportDocument } from '@/schemas/report-document';
 import { changedValuesBetween } from '../../../../server/domain/report-changes';
-import { buildReportDocument, buildTwoSpecimenReportDocument } from '../../../factories/report-document';
+import { buildReportDocument, buildTwoSpecimenReportDocument, withResultRow } from '../../../factories/report-document';
 
 /*
  * What a corrected report lists as changed. Rule checked: CLIA 42 CFR 493.1291(k) [confirmed] asks that a
@@ -12,12 +12,7 @@ import { buildReportDocument, buildTwoSpecimenReportDocument } from '../../../fa
 
 type Doc = ReportDocument;
 
-function withRow(doc: Doc, sectionIndex: number, assay: string, measure: string, change: (r: ReportResult) => ReportResult | null): Doc {
-  const copy = structuredClone(doc);
-  const section = copy.specimens[sectionIndex]!;
-  section.results = section.results.flatMap((r) => (r.assay === assay && r.measure === measure ? [change(r)].filter((x): x is ReportResult => x !== null) : [r]));
-  return copy;
-}
+const withRow = withResultRow;
 
 describe('changedValuesBetween', () => {
   const v1 = buildReportDocument();

@@ -89,18 +89,11 @@ const documents: Array<[string, () => ReportDocument, string[]]> = [
   ],
   [
     'a corrected report',
-    () =>
-      buildCorrectedReportDocument({
-        report: {
-          version: 2,
-          status: 'corrected',
-          reportDate: '2025-03-18',
-          supersedesVersion: 1,
-          correctionReason: 'Complex IV activity was transcribed from the wrong cuvette pair in version 1.',
-          changesSummary: 'CIV activity changed from 58.2 to 85.2 nmol/min/mg protein.',
-          changedValues: [{ specimen: null, item: 'CIV activity', before: '58.2 nmol/min/mg protein', after: '85.2 nmol/min/mg protein' }],
-        },
-      }),
+    () => {
+      const corrected = buildCorrectedReportDocument();
+      const changedValues = [{ specimen: null, item: 'CIV activity', before: '58.2 nmol/min/mg protein', after: '85.2 nmol/min/mg protein' }];
+      return buildCorrectedReportDocument({ report: { ...corrected.report, changedValues } });
+    },
     ['Respiratory-chain enzyme report', 'CORRECTED REPORT', 'Values changed since version 1', 'Clinical indication', 'Reference interval', 'Interpretation', 'Electronic signature', 'Caution.'],
   ],
   [
