@@ -89,8 +89,9 @@ export function fitTrace(
       values: { r2: fit.r2, threshold: settings.r2Threshold },
     });
   }
-  // The automatic window is straight by construction; a chosen one is checked and flagged.
-  if (options.checkR2 && choice.kind !== 'auto' && count >= 4) {
+  // A chosen window is checked and flagged; an automatic one found by the search is straight by construction
+  // (so passes), and a trace shorter than the minimum, fitted whole, is checked like a chosen window.
+  if (options.checkR2 && count >= 4) {
     flagCurvature(windowShape(trace, lo, hi, settings.nearZeroSlopePerMin), label, fromS, toS, settings, flags);
   }
   if (options.checkOutliers !== false) {

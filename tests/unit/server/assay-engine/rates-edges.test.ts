@@ -230,4 +230,32 @@ describe('the automatic window', () => {
     fitTrace(lag, 'background', settings, { kind: 'auto' }, { checkR2: false }, bg);
     expect(codes(bg)).not.toContain('LAG_EXCLUDED');
   });
+
+  it('a trace of exactly the minimum of 5 readings is searched, not fitted whole: a curved one has no straight window', () => {
+    const flags: Flag[] = [];
+    expect(fitTrace(sample(5, 60, (x) => 1 - 0.1 * x + 0.01 * x * x), 'total', settings, { kind: 'auto' }, { checkR2: true }, flags)).toBeNull();
+    expect(codes(flags)).toEqual(['NO_LINEAR_WINDOW']);
+  });
+
+  it('a curved trace shorter than the minimum is fitted whole and flagged for its length and its curvature', () => {
+    const flags: Flag[] = [];
+    const line = fitTrace(sample(4, 60, (x) => 1 - 0.1 * x + 0.01 * x * x), 'total', settings, { kind: 'auto' }, { checkR2: true }, flags)!;
+    expect(line.points).toBe(4);
+    expect(codes(flags)).toEqual(['TOO_FEW_POINTS', 'LOW_R2', 'CURVATURE']);
+  });
+
+  it('a trace of exactly 3 readings gives a slope (3 are enough), flagged below the laboratory minimum', () => {
+    const flags: Flag[] = [];
+    const line = fitTrace(straight.slice(0, 3), 'total', settings, { kind: 'all' }, { checkR2: true }, flags)!;
+    expect(line.slopePerMin).toBeCloseTo(-0.012, 12);
+    expect(codes(flags)).toEqual(['TOO_FEW_POINTS']);
+  });
+
+  it('a lag of one reading is named in the singular', () => {
+    // Flat for the first two readings (0 and 10 s), then rising 0.06/min from 10 s: one reading before the line.
+    const lag = Array.from({ length: 16 }, (_, i) => ({ t: i * 10, a: i <= 1 ? 0.3 : 0.3 + 0.001 * (i - 1) * 10 }));
+    const flags: Flag[] = [];
+    fitTrace(lag, 'total', settings, { kind: 'auto' }, { checkR2: true }, flags);
+    expect(flags.find((x) => x.code === 'LAG_EXCLUDED')!.message).toMatch(/^total trace: the first 1 reading \(before 10 s\) were left out/);
+  });
 });
