@@ -1,5 +1,5 @@
 import { createHash } from 'node:crypto';
-import { describe, expect, it } from 'vitest';
+import { beforeAll, describe, expect, it } from 'vitest';
 import { assayCodes, measures, specimenTypeLabels, specimenTypes, type AssayCode, type Measure } from '@/schemas/common';
 import { reportCaution } from '@/schemas/report-document';
 import {
@@ -176,7 +176,12 @@ describe('codes.ts: the code systems against the standards', () => {
 
 describe('buildReportBundle: the demo final report', () => {
   const doc = buildReportDocument({ laboratory: { phone: '+00 0000 000000 (demo)' } });
-  const bundle = bundleOf(doc);
+  // Built in beforeAll, not while the file is collected: a throw there fails the tests instead of leaving the file
+  // with no tests at all (which a mutation run would count as a surviving mutant).
+  let bundle: Bundle;
+  beforeAll(() => {
+    bundle = bundleOf(doc);
+  });
 
   it('is a collection headed by its DiagnosticReport, identified by accession and version, stamped at signing', () => {
     expect(bundle.resourceType).toBe('Bundle');

@@ -1,5 +1,5 @@
 import { readFileSync } from 'node:fs';
-import { describe, expect, it } from 'vitest';
+import { beforeAll, describe, expect, it } from 'vitest';
 import { controlDataUploadResultSchema, type ControlCsvIssue } from '@/schemas/reference-interval';
 import { parseControlCsv } from '../../../../server/domain/reference-stats/control-csv';
 import { issuesOf } from '../../../factories/control-csv';
@@ -11,7 +11,11 @@ function fixture(name: string): string {
 
 
 describe('parseControlCsv: a good file', () => {
-  const result = parseControlCsv(fixture('valid-header-units.csv'));
+  // Read in beforeAll, not while the file is collected, so that a throw fails these tests (docs/testing.md).
+  let result: ReturnType<typeof parseControlCsv>;
+  beforeAll(() => {
+    result = parseControlCsv(fixture('valid-header-units.csv'));
+  });
 
   it('reads every subject with its row number, specimen type (code or label) and age', () => {
     expect(controlDataUploadResultSchema.parse(result)).toEqual(result);
