@@ -146,4 +146,20 @@ describe('changedValuesBetween: matching specimens', () => {
     expect(changes[0]).toMatchObject({ before: 'Not reported' });
     expect(changes.at(-1)).toEqual({ specimen: null, item: 'Pattern', before: 'None', after: v1.specimens[0]!.patternSummary });
   });
+
+  it('when an older one-specimen document is compared with the same values in today\'s shape, then nothing is listed, the pattern included', () => {
+    const v1 = buildReportDocument();
+    const { specimens: _omit, ...rest } = v1;
+    const section = v1.specimens[0]!;
+    const legacy = { ...rest, specimen: section.specimen, results: section.results, patternSummary: section.patternSummary } as unknown as Doc;
+    expect(changedValuesBetween(legacy, v1)).toEqual([]);
+  });
+
+  it('when a stored document has no specimen and the new one has labelled specimens, then each new specimen is listed under its label', () => {
+    const { specimens: _omit, ...rest } = buildReportDocument();
+    const next = withSpecimens([labelled(muscleSection(), 'A'), liverSection()]);
+    const changes = changedValuesBetween(rest as unknown as Doc, next);
+    expect(new Set(changes.map((c) => c.specimen))).toEqual(new Set(['A', 'B']));
+    expect(changes.filter((c) => c.item !== 'Pattern').every((c) => c.before === 'Not reported')).toBe(true);
+  });
 });
