@@ -10,14 +10,12 @@ import { failWith, IssueList, PlateImportError } from '../../../../server/domain
  * classic Mac text [common practice]; KiB = 1024 bytes, MiB = 1024² (IEC 80000-13 [confirmed]). House rule:
  * a refusal names the line it found (docs/plate-file-format.md).
  */
+/** The PlateImportError `fn` throws (the test fails when it throws nothing or something else). */
 function catchImport(fn: () => unknown): PlateImportError {
-  try {
-    fn();
-  } catch (err) {
-    if (err instanceof PlateImportError) return err;
-    throw err;
-  }
-  throw new Error('expected a PlateImportError, but the input was accepted');
+  let thrown: unknown = null;
+  try { fn(); } catch (err) { thrown = err; }
+  expect(thrown).toBeInstanceOf(PlateImportError);
+  return thrown as PlateImportError;
 }
 const bytes = (s: string) => new Uint8Array(Buffer.from(s, 'utf8'));
 
