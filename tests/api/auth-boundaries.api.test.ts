@@ -325,6 +325,29 @@ describe('sessions', () => {
     }
   });
 
+  it('when the password is wrong or the address unknown, then both answers carry the same message, naming both fields without saying which', async () => {
+    // [common practice] OWASP Authentication Cheat Sheet: "Invalid user ID or password" for either failure.
+    const a = await account();
+    const wrongPassword = await login(a.email, wrong(1));
+    const unknown = await login('nobody-here@fernhollow.test', wrong(1));
+    expect([wrongPassword.status, unknown.status]).toEqual([401, 401]);
+    expect(unknown.body.error).toEqual(wrongPassword.body.error);
+    expect(wrongPassword.body.error.code).toBe('BAD_CREDENTIALS');
+    expect(wrongPassword.body.error.message).toMatch(/e-mail.*password/i);
+  });
+
+  it('when a stored login has ended (its generation is behind the account\'s), then the request answers 401 and the login is removed from the stored session', async () => {
+    // [from memory] passport's session strategy: a stored user that deserialises to false is deleted from
+    // req.session.passport and the request goes on signed out; express-session then saves the changed session.
+    const a = await account();
+    const agent = request.agent(t.app);
+    agent.set('Origin', ORIGIN);
+    const sid = sidOf(await agent.post('/api/auth/login').send({ email: a.email, password: a.password }));
+    await replaceStoredLogin(sid, { id: a.id, gen: 1 });
+    expect((await agent.get('/api/auth/me')).status).toBe(401);
+    expect(await storedLogin(sid)).toBeUndefined();
+  });
+
   it('passport serialises only an account checked by sign-in, and reads a stored login back to the account', async () => {
     const a = await account();
     const passport = createPassport(t.sequelize);
