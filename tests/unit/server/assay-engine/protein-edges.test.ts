@@ -1,6 +1,6 @@
 import { linearRegression, linearRegressionLine, rSquared } from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
-import { fitProteinCurve, interpolateProtein } from '../../../../server/domain/assay-engine/protein';
+import { curveAbsorbance, fitProteinCurve, interpolateProtein } from '../../../../server/domain/assay-engine/protein';
 
 /*
  * The protein standard curve's refusals and limits (colorimetric standard curves, BCA or Bradford: read unknowns
@@ -173,3 +173,38 @@ describe('interpolateProtein: refusals and the mean of repeated readings', () =>
     expect(interpolateProtein(q, { absorbances: [f(27.3)], dilutionFactor: 1 }).readMgPerMl).toBeCloseTo(27.3, 9);
   });
 });
+
+describe('quadratic curves: the ends and the fitted absorbance', () => {
+  // A = 0.1 + 0.1c + 0.1c² on 1–4 mg/mL: convex and rising (slope 0.3 at 1, 0.9 at 4) [analytic].
+  const convex = [1, 2, 3, 4].map((c) => std(c, 0.1 + 0.1 * c + 0.1 * c * c));
+
+  it('a convex rising curve that does not start at 0 is usable (the slope at the lowest standard is c1 + 2·c2·lowest)', () => {
+    const q = fitProteinCurve(convex, 'quadratic');
+    expect(q.usable).toBe(true);
+    expect(q.flags).toEqual([]);
+  });
+
+  it('curveAbsorbance is c0 + c1·c + c2·c²: 0.1 + 0.4 + 1.6 = 2.1 at 4 mg/mL', () => {
+    const q = fitProteinCurve(convex, 'quadratic');
+    expect(curveAbsorbance(q, 4)).toBeCloseTo(2.1, 9);
+    expect(curveAbsorbance(q, 1)).toBeCloseTo(0.3, 9);
+  });
+
+  it('unknowns reading exactly the lowest or highest fitted absorbance are read; a hair beyond is not', () => {
+    const q = fitProteinCurve(convex, 'quadratic');
+    const top = curveAbsorbance(q, 4);
+    const bottom = curveAbsorbance(q, 1);
+    expect(interpolateProtein(q, { absorbances: [top], dilutionFactor: 1 }).readMgPerMl).toBeCloseTo(4, 9);
+    expect(interpolateProtein(q, { absorbances: [bottom], dilutionFactor: 1 }).readMgPerMl).toBeCloseTo(1, 9);
+    expect(interpolateProtein(q, { absorbances: [top + 1e-9], dilutionFactor: 1 }).mgPerMl).toBeNull();
+    expect(interpolateProtein(q, { absorbances: [bottom - 1e-9], dilutionFactor: 1 }).mgPerMl).toBeNull();
+  });
+
+  it('standards so large that the sums overflow are refused, not fitted', () => {
+    // x⁴ of 10¹⁵⁰ overflows a double (largest about 1.8·10³⁰⁸) [analytic], so the normal equations have no finite solution.
+    const curve = fitProteinCurve([0, 1, 2, 3].map((k) => std(k * 1e150, 0.1 + 0.1 * k)), 'quadratic');
+    expect(curve.usable).toBe(false);
+    expect(curve.flags).toEqual([{ code: 'BAD_STANDARD_CURVE', message: 'The quadratic fit of the standards has no unique solution' }]);
+  });
+});
+
