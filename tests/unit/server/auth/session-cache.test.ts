@@ -187,6 +187,18 @@ describe('session cache boundaries', () => {
     expect(calls.get).toBe(1);
   });
 
+  it('when session data holds null (JSON null), then every copy keeps null, and a row with no cookie is served as it is', async () => {
+    // [confirmed] RFC 8259 §3: null is a JSON value of its own, neither an object nor an array; the copy must keep it.
+    const { store, calls, rows } = countingStore();
+    cacheSessionReads(store as never);
+    store.set('nul', { cookie: { expires: later }, returnTo: null, passport: { user: 7 } } as never);
+    expect(await get(store, 'nul')).toEqual({ cookie: { expires: later }, returnTo: null, passport: { user: 7 } });
+    rows.set('bare-row', JSON.stringify({ cookie: null, note: null }));
+    expect(await get(store, 'bare-row')).toEqual({ cookie: null, note: null });
+    expect(await get(store, 'bare-row')).toEqual({ cookie: null, note: null });
+    expect(calls.get).toBe(1);
+  });
+
   it('when the store fails or finds nothing, then the caller gets that answer and nothing is cached', async () => {
     const { store, calls } = countingStore();
     const failing = { ...store, get: (_sid: string, cb: (err: unknown, s?: unknown) => void) => (calls.get++, cb(new Error('disk'))) };
