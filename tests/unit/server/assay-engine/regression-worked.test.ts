@@ -147,4 +147,17 @@ describe('quadratic fit: analytic truths', () => {
     expect(fit.c2).toBeCloseTo(0, 12);
     expect(fit.r2).toBe(0);
   });
+
+  it('readings of exactly 0: every coefficient 0, no residual and r² 0 (not 0/0)', () => {
+    // SSE = SST = 0: r² is undefined and must not pass a threshold [analytic].
+    const fit = fitQuadratic([0, 1, 2, 3], [0, 0, 0, 0])!;
+    expect(fit.r2).toBe(0);
+    expect(fit.c2).toBeCloseTo(0, 12);
+  });
+
+  it('absorbances beyond the range of a double give no fit, not infinite coefficients', () => {
+    // x·y of 2 × 10³⁰⁸ overflows (largest double about 1.8 × 10³⁰⁸) [analytic].
+    expect(fitQuadratic([0, 1, 2, 3], [1e308, -1e308, 1e308, -1e308])).toBeNull();
+  });
 });
+
