@@ -197,8 +197,12 @@ describe.runIf(testDialect === 'sqlite')('reads outside a transaction on a SQLit
 describe('reads held back while writes wait (server/lib/read-gate.ts)', () => {
   /** An app whose one GET route waits until the test lets it answer, counting the requests inside it. */
   function slowReadApp(concurrency: number) {
-    const state = { inside: 0, most: 0, done: 0, release: [] as (() => void)[] };
+    const state = { arrived: 0, inside: 0, most: 0, done: 0, release: [] as (() => void)[] };
     const app = express();
+    app.use((_req, _res, next) => {
+      state.arrived++;
+      next();
+    });
     app.use(limitReadsWhileWriting(concurrency));
     app.get('/r', (_req, res) => {
       state.inside++;
@@ -235,7 +239,8 @@ describe('reads held back while writes wait (server/lib/read-gate.ts)', () => {
     const write = writeTransaction(sequelize, () => new Promise<void>((r) => (finishWrite = r)));
     await until(() => finishWrite !== undefined);
     const reads = Array.from({ length: 6 }, () => fetch(`${url}/r`));
-    await until(() => state.inside === 2);
+    // Every read has reached the gate (a read arriving after the write ends rightly goes straight through).
+    await until(() => state.inside === 2 && state.arrived === 6);
     // A POST is not a read: it is not held at the door.
     expect((await request(app).post('/w')).status).toBe(201);
     expect(state.inside).toBe(2);
