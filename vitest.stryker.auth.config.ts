@@ -1,6 +1,4 @@
-import path from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { defineConfig } from 'vitest/config';
+import { mutationConfig } from './vitest.stryker.shared';
 
 // Mutation testing of server/auth's database-bound code (`npm run mutation:auth`, stryker.auth.config.json):
 // sign-in, passport, ending sessions and the lock-out counter run only behind the HTTP layer and a database, so
@@ -10,19 +8,12 @@ import { defineConfig } from 'vitest/config';
 // "/": a bare "reports" also drops server/modules/reports from the sandbox, the app cannot be imported there, and
 // the API tests are then silently skipped (every mutant they reach shows as "no coverage"). The heavier API files
 // (auth, account-security, trust-proxy, request-path) can be added here; each adds its run time to every mutant.
-const root = path.dirname(fileURLToPath(import.meta.url));
-
-export default defineConfig({
-  resolve: { alias: { '@': path.resolve(root, 'src') } },
-  test: {
-    name: 'mutation-auth',
-    environment: 'node',
-    include: [
-      'tests/unit/server/auth/lockout.test.ts',
-      'tests/api/auth-*.api.test.ts',
-    ],
-    setupFiles: ['tests/setup/node.ts'],
-    testTimeout: 30_000,
-    hookTimeout: 60_000,
-  },
+export default mutationConfig({
+  name: 'mutation-auth',
+  include: [
+    'tests/unit/server/auth/lockout.test.ts',
+    'tests/api/auth-*.api.test.ts',
+  ],
+  testTimeout: 30_000,
+  hookTimeout: 60_000,
 });
