@@ -10,9 +10,9 @@ const SAMPLES = [
   ...Object.values(STATUS_WORDS),
   ...Object.values(BAND_WORDS),
   'Complex I II III IV CI+III CII+III citrate synthase CS NADH ubiquinone cytochrome c oxidase succinate',
-  'Activity nmol/min/mg protein 0.123 45.6 789 12.5 ± 3.4 – 10% µL µg ε mM⁻¹·cm⁻¹ n = 20 (2.5–97.5)',
-  'Specimen skeletal muscle liver fibroblasts received collected accession CR-2026-00001 version 1 page 1 of 2',
-  'Pattern interpretation method reference interval signed approved corrected laboratory director technologist',
+  'Activity nmol/min/mg protein 0.123 45.6 789 12.5 ± 3.4 – 10% µL µg ε mM⁻¹·cm⁻¹ n = 20 (2.5–97.5) at 30 °C',
+  'Specimen A — skeletal muscle liver fibroblasts received collected accession CR-2026-00001 version 1 page 1 of 2',
+  'Pattern interpretation method reference interval signed signature approved corrected laboratory’s director technologist',
   'ABCDEFGHIJKLMNOPQRSTUVWXYZ abcdefghijklmnopqrstuvwxyz 0123456789 .,;:!?()[]/-+=*%&\'"',
 ];
 
