@@ -77,11 +77,84 @@ function cacheTableInfo(connection: SqliteConnection, cache: TableInfoCache): Sq
   return connection;
 }
 
-/** Keeps every connection the manager hands out answering `PRAGMA table_info` from one cache per database. */
+type Callback = (this: unknown, err: Error | null, ...results: unknown[]) => void;
+type Statement = {
+  run: (params: unknown, callback: Callback) => unknown;
+  all: (params: unknown, callback: Callback) => unknown;
+  finalize: (callback?: () => void) => unknown;
+};
+type Preparable = { prepare: (sql: string, callback: (this: Statement, err: Error | null) => void) => Statement };
+const prepared = Symbol('prepared statements');
+/** Statements kept per connection; the least recently used is finalized when a new one would pass this. */
+const KEPT_STATEMENTS = 64;
+/** Statements worth keeping: those with bound parameters (Sequelize's INSERT and UPDATE) and transaction control. */
+const KEEPABLE = (sql: string) => (/\$\d/.test(sql) || /^(BEGIN|COMMIT|ROLLBACK)\b/.test(sql)) && !/\bRETURNING\b/i.test(sql);
+
+/**
+ * node-sqlite3's Database#run and #all prepare a new statement for every call, run it and finalize it: two trips
+ * through the thread pool and back to the event loop, and a finalize on the main thread that takes the
+ * connection's mutex. Sequelize's INSERT and UPDATE statements (values bound as $1, $2, …) and BEGIN/COMMIT repeat
+ * the same SQL text, so each connection keeps those prepared and runs them again with new values: one trip.
+ * SELECTs carry their values in the SQL text and go the usual way.
+ * Safe because each connection runs one statement at a time (a transaction's, or a reader's), a statement kept
+ * here has run to its end (run and all step to SQLITE_DONE; RETURNING, which would leave it mid-way, is not kept)
+ * and is reset when it is bound again, and SQLite re-prepares a kept statement by itself after a schema change.
+ * A connection's kept statements are finalized before it closes (SQLite will not close with any left open).
+ */
+function keepPreparedStatements(connection: SqliteConnection): SqliteConnection {
+  const c = connection as SqliteConnection & Preparable & { [prepared]?: Map<string, Statement> };
+  if (c[prepared]) return connection;
+  const kept = new Map<string, Statement>();
+  c[prepared] = kept;
+  for (const method of ['run', 'all'] as const) {
+    const original = connection[method].bind(connection) as (sql: string, ...rest: unknown[]) => unknown;
+    (connection as unknown as Record<string, unknown>)[method] = (sql: string, ...rest: unknown[]) => {
+      const callback = rest[rest.length - 1];
+      if (rest.length !== 2 || typeof callback !== 'function' || !KEEPABLE(sql)) return original(sql, ...rest);
+      const params = rest[0];
+      const statement = kept.get(sql);
+      if (statement) {
+        kept.delete(sql);
+        kept.set(sql, statement);
+        statement[method](params, callback as Callback);
+        return connection;
+      }
+      const fresh = c.prepare(sql, function (err) {
+        if (err) return (callback as Callback).call(this, err);
+        if (kept.has(sql)) {
+          // Another call prepared the same text meanwhile (the shared connection can run two at once): use once.
+          fresh[method](params, callback as Callback);
+          fresh.finalize();
+          return;
+        }
+        kept.set(sql, fresh);
+        if (kept.size > KEPT_STATEMENTS) {
+          const [oldest, stale] = kept.entries().next().value as [string, Statement];
+          kept.delete(oldest);
+          stale.finalize();
+        }
+        fresh[method](params, callback as Callback);
+      });
+      return connection;
+    };
+  }
+  const close = connection.close.bind(connection);
+  connection.close = (callback) => {
+    for (const statement of kept.values()) statement.finalize();
+    kept.clear();
+    close(callback);
+  };
+  return connection;
+}
+
+/**
+ * Keeps every connection the manager hands out answering `PRAGMA table_info` from one cache per database, and
+ * keeping its repeated statements prepared.
+ */
 function installTableInfoCache(manager: ConnectionManager): void {
   const cache: TableInfoCache = new Map();
   const open = manager.getConnection.bind(manager);
-  manager.getConnection = async (options) => cacheTableInfo(await open(options), cache);
+  manager.getConnection = async (options) => cacheTableInfo(keepPreparedStatements(await open(options)), cache);
 }
 
 /**

@@ -194,6 +194,87 @@ describe.runIf(testDialect === 'sqlite')('reads outside a transaction on a SQLit
   });
 });
 
+describe.runIf(testDialect === 'sqlite')('statements kept prepared on a SQLite connection (server/db/sqlite-connections.ts)', () => {
+  /*
+   * What is checked is what SQLite documents for a prepared statement run again [confirmed, sqlite.org/c3ref/stmt.html
+   * and c3ref/reset.html: reset and re-bind to run a statement with new values; c3ref/prepare.html: a statement is
+   * re-prepared by itself after a schema change; c3ref/close.html: a connection with statements not finalized does not
+   * close]: each run gets its own values and its own change count, an error leaves the statement usable, a schema
+   * change does not break it, and the database closes cleanly (its -wal file is removed at the last close).
+   */
+  const insert = 'INSERT INTO kept (k, n) VALUES ($1, $2)';
+  let db: Sequelize;
+  let dir: string;
+  let prepared: string[] = [];
+  beforeEach(async () => {
+    dir = fs.mkdtempSync(path.join(os.tmpdir(), 'cristae-kept-'));
+    db = await openDatabase(path.join(dir, 'k.sqlite'));
+    await db.query('CREATE TABLE kept (k VARCHAR(20) PRIMARY KEY, n INTEGER NOT NULL)');
+    prepared = [];
+    const manager = db.connectionManager as unknown as { getConnection: (o?: object) => Promise<{ prepare: (...a: unknown[]) => unknown }> };
+    const open = manager.getConnection.bind(manager);
+    manager.getConnection = async (options?: object) => {
+      const connection = await open(options);
+      const prepare = connection.prepare;
+      if (!(prepare as { counted?: true }).counted) {
+        connection.prepare = Object.assign((...a: unknown[]) => (prepared.push(String(a[0])), prepare.apply(connection, a)), { counted: true as const });
+      }
+      return connection;
+    };
+  });
+
+  it('when 40 writes run the same INSERT text with new values, then each row holds its own values, the text is prepared once, and the database closes cleanly', async () => {
+    await Promise.all(
+      Array.from({ length: 40 }, (_, i) =>
+        writeTransaction(db, (transaction) => db.query(insert, { bind: [`row-${i}`, i * i], type: QueryTypes.INSERT, transaction })),
+      ),
+    );
+    const rows = await db.query<{ k: string; n: number }>('SELECT k, n FROM kept ORDER BY n', { type: QueryTypes.SELECT });
+    expect(rows).toEqual(Array.from({ length: 40 }, (_, i) => ({ k: `row-${i}`, n: i * i })));
+    // Once per connection that ran it: the writes went through one or two transaction connections, not 40 times.
+    const inserts = prepared.filter((sql) => sql === insert).length;
+    expect(inserts).toBeGreaterThanOrEqual(1);
+    expect(inserts).toBeLessThanOrEqual(2);
+    await db.close();
+    expect(fs.existsSync(path.join(dir, 'k.sqlite-wal'))).toBe(false);
+    fs.rmSync(dir, { recursive: true, force: true });
+  });
+
+  it('when a kept UPDATE runs with different values, then each run reports its own count of changed rows', async () => {
+    await writeTransaction(db, async (transaction) => {
+      for (const [k, n] of [['a', 1], ['b', 1], ['c', 2]] as const) await db.query(insert, { bind: [k, n], type: QueryTypes.INSERT, transaction });
+    });
+    const update = (n: number) =>
+      writeTransaction(db, (transaction) => db.query('UPDATE kept SET n = n + 10 WHERE n = $1', { bind: [n], type: QueryTypes.BULKUPDATE, transaction }));
+    expect([await update(1), await update(2), await update(99)]).toEqual([2, 1, 0]);
+    await db.close();
+    fs.rmSync(dir, { recursive: true, force: true });
+  });
+
+  it('when a kept INSERT breaks the primary key, then that write alone is refused with the unique-constraint error and the same text then works again', async () => {
+    await writeTransaction(db, (transaction) => db.query(insert, { bind: ['dup', 1], type: QueryTypes.INSERT, transaction }));
+    const again = writeTransaction(db, (transaction) => db.query(insert, { bind: ['dup', 2], type: QueryTypes.INSERT, transaction }));
+    await expect(again).rejects.toMatchObject({ name: 'SequelizeUniqueConstraintError' });
+    await writeTransaction(db, (transaction) => db.query(insert, { bind: ['fresh', 3], type: QueryTypes.INSERT, transaction }));
+    expect(await db.query('SELECT k, n FROM kept ORDER BY k', { type: QueryTypes.SELECT })).toEqual([
+      { k: 'dup', n: 1 },
+      { k: 'fresh', n: 3 },
+    ]);
+    await db.close();
+    fs.rmSync(dir, { recursive: true, force: true });
+  });
+
+  it('when the table is dropped and made again with another column order, then the kept INSERT text writes into the new table correctly', async () => {
+    await writeTransaction(db, (transaction) => db.query(insert, { bind: ['before', 1], type: QueryTypes.INSERT, transaction }));
+    await db.query('DROP TABLE kept');
+    await db.query('CREATE TABLE kept (extra TEXT DEFAULT \'x\', n INTEGER NOT NULL, k VARCHAR(20) PRIMARY KEY)');
+    await writeTransaction(db, (transaction) => db.query(insert, { bind: ['after', 2], type: QueryTypes.INSERT, transaction }));
+    expect(await db.query('SELECT extra, n, k FROM kept', { type: QueryTypes.SELECT })).toEqual([{ extra: 'x', n: 2, k: 'after' }]);
+    await db.close();
+    fs.rmSync(dir, { recursive: true, force: true });
+  });
+});
+
 describe('reads held back while writes wait (server/lib/read-gate.ts)', () => {
   /** An app whose one GET route waits until the test lets it answer, counting the requests inside it. */
   function slowReadApp(concurrency: number) {
