@@ -62,7 +62,8 @@ describe('reference intervals, in Chromium', () => {
     await screenshot(page2, 'reference-intervals-second-director-confirms');
     await page2.getByRole('button', { name: 'Confirm approval of v2' }).click();
     await page2.getByRole('heading', { name: /CIV activity · Skeletal muscle · All ages · v2/ }).waitFor();
-    await page2.getByText(/Dr Octavian Brisk-Ferro, /).waitFor();
+    // The approver beside "Approved" (the history table below names them too once it has refetched).
+    await page2.getByRole('definition').filter({ hasText: /^Dr Octavian Brisk-Ferro, / }).waitFor();
     await screenshot(page2, 'reference-intervals-approved-by-second-director');
     return checkHistory(page2);
   });
@@ -117,10 +118,12 @@ describe('reference intervals, in Chromium', () => {
     await cs.getByLabel('What changed and why').fill('Same values, re-issued (invented for the demo test)');
     await cs.getByRole('button', { name: 'Save as a draft for a second director' }).click();
     await cs.getByText(/This laboratory has a single director, so you may approve it yourself/).waitFor();
-    await cs.getByRole('button', { name: 'Approve version 2' }).click();
-    // The approval re-renders the section; open the versions only once it has landed (the button is gone).
-    await cs.getByRole('button', { name: 'Approve version 2' }).waitFor({ state: 'detached' });
+    // The versions list, opened before the approval, stays open and shows the approval once it has landed
+    // (the card used to be keyed by the row in force, so approving v2 remounted it and closed the list).
     await cs.getByRole('button', { name: 'Versions' }).click();
+    await cs.getByText(/v2 · draft, awaiting a second director/).waitFor();
+    await cs.getByRole('button', { name: 'Approve version 2' }).click();
+    await cs.getByRole('group', { name: 'Draft version 2' }).waitFor({ state: 'detached' });
     await cs.getByText(/v2 · approved .*approved by Dr Ilse Marchetti \(its own author\)/).waitFor();
     await screenshot(page, 'assay-definition-self-approved');
     await page.close();

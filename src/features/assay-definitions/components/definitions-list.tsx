@@ -157,8 +157,10 @@ export function DefinitionsList({ viewer }: { viewer: ApprovalViewer | null }) {
   return (
     <div className="flex flex-col gap-4">
       {data.items.map((s) => (
+        // Keyed by the assay, not by the row in force: approving a new version changes that row, and a card that
+        // remounted lost its open versions list (the user saw it close the moment the approval landed).
         <DefinitionCard
-          key={s.id}
+          key={s.definition.code}
           stored={s}
           draft={data.drafts.find((x) => x.definition.code === s.definition.code) ?? null}
           viewer={viewer}
