@@ -195,7 +195,7 @@ export default async function run(): Promise<BenchResult> {
   );
   notes.push(
     `Statuses — writers: ${JSON.stringify(writes.statuses)}; readers: ${JSON.stringify(reads.statuses)}; mixed readers ${JSON.stringify(readers.statuses)}, registrars ${JSON.stringify(registrars.statuses)}, work-ups ${JSON.stringify(workups.statuses)}.`,
-    `Server: ${server.kind}. Writes are one at a time in arrival order; those waiting together commit as one IMMEDIATE transaction (group commit, each answered only after that commit; server/db/write-transaction.ts), on reused connections with synchronous=NORMAL under WAL and a cached PRAGMA table_info (server/db/sqlite-connections.ts); while writes wait, at most two API reads are worked on at once (server/lib/read-gate.ts). ` +
+    `Server: ${server.kind}. Writes are one at a time in arrival order; those waiting together commit as one IMMEDIATE transaction (group commit, each answered only after that commit; server/db/write-transaction.ts), on reused connections with synchronous=NORMAL under WAL, a cached PRAGMA table_info and statements kept prepared per connection (server/db/sqlite-connections.ts); while writes wait, one API read at a time is worked on (server/lib/read-gate.ts). ` +
       'Acknowledged = answered 201/200 with the new row\'s id; present = found by id in the database file after the server was killed with SIGKILL. ' +
       `The mixed run lasts ${MIXED_S} s by default; BENCH_MIXED_SECONDS=300 or \`npm run bench -- write-path --long\` runs five minutes.`,
   );

@@ -87,15 +87,18 @@ type Preparable = { prepare: (sql: string, callback: (this: Statement, err: Erro
 const prepared = Symbol('prepared statements');
 /** Statements kept per connection; the least recently used is finalized when a new one would pass this. */
 const KEPT_STATEMENTS = 64;
-/** Statements worth keeping: those with bound parameters (Sequelize's INSERT and UPDATE) and transaction control. */
-const KEEPABLE = (sql: string) => (/\$\d/.test(sql) || /^(BEGIN|COMMIT|ROLLBACK)\b/.test(sql)) && !/\bRETURNING\b/i.test(sql);
+/**
+ * Every statement but a schema change or PRAGMA (run once) and RETURNING (which `run` would leave mid-way). A text seen
+ * once costs what it did before: prepared, run, finalized (when it leaves the list instead of at once).
+ */
+const KEEPABLE = (sql: string) => !SCHEMA_CHANGE.test(sql) && !/^\s*PRAGMA\b/i.test(sql) && !/\bRETURNING\b/i.test(sql);
 
 /**
  * node-sqlite3's Database#run and #all prepare a new statement for every call, run it and finalize it: two trips
  * through the thread pool and back to the event loop, and a finalize on the main thread that takes the
- * connection's mutex. Sequelize's INSERT and UPDATE statements (values bound as $1, $2, …) and BEGIN/COMMIT repeat
- * the same SQL text, so each connection keeps those prepared and runs them again with new values: one trip.
- * SELECTs carry their values in the SQL text and go the usual way.
+ * connection's mutex. Sequelize's INSERT and UPDATE statements (values bound as $1, $2, …), BEGIN/COMMIT and many
+ * SELECTs (a case list page, a user by id) repeat the same SQL text, so each connection keeps its last statements
+ * prepared and runs them again with new values: one trip.
  * Safe because each connection runs one statement at a time (a transaction's, or a reader's), a statement kept
  * here has run to its end (run and all step to SQLITE_DONE; RETURNING, which would leave it mid-way, is not kept)
  * and is reset when it is bound again, and SQLite re-prepares a kept statement by itself after a schema change.

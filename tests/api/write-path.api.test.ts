@@ -240,6 +240,21 @@ describe.runIf(testDialect === 'sqlite')('statements kept prepared on a SQLite c
     fs.rmSync(dir, { recursive: true, force: true });
   });
 
+  it('when the same SELECT text is read before and after a write commits, then the second answer sees the write (a kept SELECT holds no old snapshot)', async () => {
+    const count = async () => (await db.query<{ n: number }>('SELECT COUNT(*) AS n FROM kept', { type: QueryTypes.SELECT }))[0]!.n;
+    const seen: number[] = [];
+    for (let i = 0; i < 3; i++) {
+      seen.push(...(await Promise.all([count(), count(), count(), count()])));
+      await writeTransaction(db, (transaction) => db.query(insert, { bind: [`k${i}`, i], type: QueryTypes.INSERT, transaction }));
+    }
+    seen.push(await count());
+    expect(seen).toEqual([0, 0, 0, 0, 1, 1, 1, 1, 2, 2, 2, 2, 3]);
+    expect(prepared.filter((sql) => sql.startsWith('SELECT COUNT(*)')).length).toBeLessThanOrEqual(4); // once per reader
+    await db.close();
+    expect(fs.existsSync(path.join(dir, 'k.sqlite-wal'))).toBe(false);
+    fs.rmSync(dir, { recursive: true, force: true });
+  });
+
   it('when a kept UPDATE runs with different values, then each run reports its own count of changed rows', async () => {
     await writeTransaction(db, async (transaction) => {
       for (const [k, n] of [['a', 1], ['b', 1], ['c', 2]] as const) await db.query(insert, { bind: [k, n], type: QueryTypes.INSERT, transaction });
