@@ -90,7 +90,6 @@ const linkedActivities = ['CI+III', 'CII+III'] as const satisfies readonly Assay
 function evidenceOf(c: Comparison | undefined, pctThresholds: Thresholds): EvidenceLine | null {
   if (!c || !c.interval || c.position === null || c.percentOfMean === null || c.value === null) return null;
   const i = c.interval;
-  const pos = c.position === 'within' ? 'is within' : `is ${c.position}`;
   const band = c.band === 'major' || c.band === 'minor' ? `; ${c.band} band of the criteria` : '';
   return {
     assay: c.assay,
@@ -104,8 +103,19 @@ function evidenceOf(c: Comparison | undefined, pctThresholds: Thresholds): Evide
     position: c.position,
     percentOfMean: c.percentOfMean,
     band: c.band,
-    text: `${measureLabel(c.assay, c.measure)} ${formatResultNumber(c.value, undefined, intervalThresholds(i))} ${pos} the interval ${formatResultNumber(i.lower)}–${formatResultNumber(i.upper)} (${formatPercentOfMean(c.percentOfMean, pctThresholds)} of the reference mean${band}; ${i.setLabel} v${i.version})`,
+    text: `${measureLabel(c.assay, c.measure)} ${formatResultNumber(c.value, undefined, intervalThresholds(i))} is ${c.position} the interval ${formatResultNumber(i.lower)}–${formatResultNumber(i.upper)} (${formatPercentOfMean(c.percentOfMean, pctThresholds)} of the reference mean${band}; ${i.setLabel} v${i.version})`,
   };
+}
+
+/**
+ * What an isolated finding of complex x was shown against: CII/CS alone for complex II; for the others X/CS, and
+ * X/CII when it could be compared (not when CII was not measured or X/CII has no interval).
+ */
+function isolatedQualifier(x: AssayCode, toCii: IntervalPosition | null): string {
+  if (x === 'CII') return '';
+  return toCii === 'below'
+    ? ' (low relative to citrate synthase and to complex II)'
+    : ' (low relative to citrate synthase; the ratio to complex II could not be compared)';
 }
 
 function listNames(codes: readonly AssayCode[]): string {
@@ -200,7 +210,7 @@ export function summarisePattern(input: PatternInput): PatternSummary {
     for (const l of linkedLow) pushEvidence(evidence, get(l, 'ratio_cs'));
     findings.push({
       kind: 'isolated_deficiency',
-      label: `Isolated low ${complexNames[x]} activity${x === 'CII' ? '' : ' (low relative to citrate synthase and to complex II)'}`,
+      label: `Isolated low ${complexNames[x]} activity${isolatedQualifier(x, pos(x, 'ratio_cii'))}`,
       complexes: [x],
       evidence,
     });
@@ -229,7 +239,8 @@ export function summarisePattern(input: PatternInput): PatternSummary {
   if (csActivity?.position === 'above') {
     const evidence: EvidenceLine[] = [];
     pushEvidence(evidence, csActivity);
-    const ratioLines = comparisons.filter((c) => c.measure === 'ratio_cs' && c.position !== null);
+    // Lines without a position add no evidence and are never 'below'.
+    const ratioLines = comparisons.filter((c) => c.measure === 'ratio_cs');
     pushEvidence(evidence, ...ratioLines);
     const ratiosNormal = ratioLines.every((c) => c.position !== 'below');
     findings.push({
