@@ -105,7 +105,9 @@ export function drawBarGraphic(c: Composer, graphic: ReportGraphic, title = 'Act
       c.drawBlock({ ...name, ascent: BAR_HEIGHT - 1 }, plotX - 40, y, 'right', 36);
       const value = bar[series.key];
       if (value === null) {
-        const none = c.measure('not available', { ...STYLES.small, size: 6.8, color: COLORS.faint }, 60);
+        // On a white patch, as the value labels: grey text on the criterion shading fell below 4.5:1 contrast.
+        const none = c.measure('not available', { ...STYLES.small, size: 6.8 }, 60);
+        c.rect(plotX + 1.5, y - 0.5, (none.lines[0]?.width ?? 0) + 3, BAR_HEIGHT + 1, '#ffffff');
         c.drawBlock({ ...none, ascent: BAR_HEIGHT - 1 }, plotX + 3, y);
         return;
       }

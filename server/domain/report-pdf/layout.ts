@@ -20,7 +20,6 @@ export const CONTENT_WIDTH = PAGE.width - 2 * PAGE.marginX;
 export const COLORS = {
   ink: '#1c262b',
   muted: '#56646b',
-  faint: '#8a969c',
   accent: '#285a63',
   accentLight: '#87b0b3',
   band: '#edf3f3',
