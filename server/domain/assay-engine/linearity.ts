@@ -71,8 +71,21 @@ export class WindowSums {
     this.add(p, -1);
   }
 
-  /** The straight-line and quadratic view of the readings added so far (needs n ≥ 3). */
-  shape(nearZeroSlopePerMin: number): WindowShape {
+  /** The straight line alone: slope per minute, residual sum of squares and Sxx (needs n ≥ 2). */
+  line(): { slope: number; sse: number; sxx: number } {
+    const sxx = this.sx2 - (this.sx * this.sx) / this.n;
+    const sxy = this.sxy - (this.sx * this.sy) / this.n;
+    const syy = this.syy - (this.sy * this.sy) / this.n;
+    const slope = sxy / sxx;
+    return { slope, sse: Math.max(0, syy - slope * sxy), sxx };
+  }
+
+  /**
+   * The straight-line and quadratic view of the readings added so far (needs n ≥ 3). The quadratic term is judged
+   * against its own residuals, or against the trace's reading noise (`noiseVariance`, traceNoiseVariance) when that
+   * is smaller: the residuals also hold whatever a quadratic cannot follow (a kink), which must not excuse it.
+   */
+  shape(nearZeroSlopePerMin: number, noiseVariance?: number): WindowShape {
     const n = this.n;
     const sxx = this.sx2 - (this.sx * this.sx) / n;
     const sxz = this.sx3 - (this.sx * this.sx2) / n;
@@ -83,7 +96,8 @@ export class WindowSums {
 
     const slope = sxy / sxx;
     const sseLine = Math.max(0, syy - slope * sxy);
-    const slopeSe = n > 2 ? Math.sqrt(sseLine / (n - 2) / sxx) : Number.POSITIVE_INFINITY;
+    const lineVariance = n > 2 ? sseLine / (n - 2) : Number.POSITIVE_INFINITY;
+    const slopeSe = Math.sqrt((noiseVariance !== undefined && Number.isFinite(noiseVariance) ? Math.min(lineVariance, noiseVariance) : lineVariance) / sxx);
     const r2 = syy > 0 ? Math.max(0, 1 - sseLine / syy) : 0;
 
     const det = sxx * szz - sxz * sxz;
@@ -95,7 +109,9 @@ export class WindowSums {
       const c2 = (sxx * szy - sxz * sxy) / det;
       const sseQuad = Math.max(0, syy - c1 * sxy - c2 * szy);
       const df = n - 3;
-      const se = df > 0 ? Math.sqrt((sseQuad / df) * (sxx / det)) : 0;
+      const own = df > 0 ? sseQuad / df : 0;
+      const variance = noiseVariance !== undefined && Number.isFinite(noiseVariance) ? Math.min(own, noiseVariance) : own;
+      const se = Math.sqrt(variance * (sxx / det));
       startSlope = c1;
       curvatureT = se > 0 ? c2 / se : c2 === 0 ? 0 : Math.sign(c2) * Number.POSITIVE_INFINITY;
       significant = df < 1 || Math.abs(curvatureT) > criticalT(df);
@@ -129,6 +145,8 @@ export interface LinearitySettings {
   curvatureLimitPct: number;
   lagMaxS: number;
   nearZeroSlopePerMin: number;
+  /** The instrument's reading noise, absorbance SD: the least noise a trace is taken to have (0 when not given). */
+  readingNoiseFloor?: number;
 }
 
 export function isStraight(shape: WindowShape, curvatureLimitPct: number): boolean {
@@ -136,11 +154,127 @@ export function isStraight(shape: WindowShape, curvatureLimitPct: number): boole
 }
 
 /** The shape of trace[lo..hi] (inclusive; at least 3 readings). */
-export function windowShape(trace: readonly TracePoint[], lo: number, hi: number, nearZeroSlopePerMin: number): WindowShape {
+export function windowShape(trace: readonly TracePoint[], lo: number, hi: number, nearZeroSlopePerMin: number, noiseVariance?: number): WindowShape {
   const first = trace[lo]!;
   const sums = new WindowSums(first.t, first.a);
   for (let i = lo; i <= hi; i += 1) sums.add(trace[i]!);
-  return sums.shape(nearZeroSlopePerMin);
+  return sums.shape(nearZeroSlopePerMin, noiseVariance);
+}
+
+/** Fewest readings for the halves test (three in each half, for a slope and its error) and for the thirds test. */
+const MIN_FOR_HALVES = 6;
+const MIN_FOR_THIRDS = 8;
+
+/** Slope (per minute), residual sum of squares and Sxx of a straight line through trace[lo..hi]. */
+function lineSums(trace: readonly TracePoint[], lo: number, hi: number): { slope: number; sse: number; sxx: number } {
+  const sums = new WindowSums(trace[lo]!.t, trace[lo]!.a);
+  for (let i = lo; i <= hi; i += 1) sums.add(trace[i]!);
+  return sums.line();
+}
+
+/** Straight-line slopes (per minute) of consecutive parts of trace[lo..hi], their pooled residual variance and its degrees of freedom. */
+function partSlopes(trace: readonly TracePoint[], lo: number, hi: number, parts: number): { slopes: number[]; sxx: number[]; variance: number; df: number } {
+  const n = hi - lo + 1;
+  const slopes: number[] = [];
+  const sxx: number[] = [];
+  let sse = 0;
+  for (let p = 0; p < parts; p += 1) {
+    const from = lo + Math.floor((p * n) / parts);
+    const to = lo + Math.floor(((p + 1) * n) / parts) - 1;
+    const line = lineSums(trace, from, to);
+    slopes.push(line.slope);
+    sxx.push(line.sxx);
+    sse += line.sse;
+  }
+  return { slopes, sxx, variance: sse / (n - 2 * parts), df: n - 2 * parts };
+}
+
+/**
+ * The reading noise of a whole trace as a variance (NaN with fewer than 3 readings), from each interior reading's distance to the straight line
+ * through its two neighbours (a pseudo-residual, Gasser, Sroka & Jennen-Steinmetz, Biometrika 1986 [from memory]),
+ * scaled by its own variance factor 1 + w₁² + w₂², and the median of their sizes (× 1.4826, the normal
+ * consistency factor of the median absolute deviation [common practice]). A smooth bend or a single kink barely
+ * moves it, unlike the residuals of a line or a quadratic through a bent window, which take the bend for noise.
+ * It is the instrument's noise on this trace, so every window of the trace is judged against the same figure, and
+ * never less than the instrument's own reading noise (`floor`, the definition's readingNoiseFloor): a reading is
+ * never more exact than that, even where a trace looks noise-free.
+ */
+export function traceNoiseVariance(trace: readonly TracePoint[], floor = 0): number {
+  const sizes: number[] = [];
+  for (let i = 1; i < trace.length - 1; i += 1) {
+    const before = trace[i - 1]!;
+    const at = trace[i]!;
+    const after = trace[i + 1]!;
+    const span = after.t - before.t;
+    const w1 = (after.t - at.t) / span;
+    const w2 = (at.t - before.t) / span;
+    sizes.push(Math.abs(at.a - (w1 * before.a + w2 * after.a)) / Math.sqrt(1 + w1 * w1 + w2 * w2));
+  }
+  if (sizes.length === 0) return Number.NaN;
+  sizes.sort((x, y) => x - y);
+  const m = sizes.length;
+  const median = m % 2 === 1 ? sizes[(m - 1) / 2]! : (sizes[m / 2 - 1]! + sizes[m / 2]!) / 2;
+  return Math.max(1.4826 * median, floor) ** 2;
+}
+
+/** Student's t of a contrast Σ wᵢ·slopeᵢ of part slopes: significant at α = 0.01 two-sided (see CURVATURE_ALPHA). */
+function contrastSignificant(value: number, weights: number[], parts: ReturnType<typeof partSlopes>, noise: number): boolean {
+  const se = Math.sqrt(Math.min(parts.variance, noise) * weights.reduce((sum, w, i) => sum + (w * w) / parts.sxx[i]!, 0));
+  const t = se > 0 ? Math.abs(value) / se : value === 0 ? 0 : Number.POSITIVE_INFINITY;
+  return t > criticalT(parts.df);
+}
+
+const relativePct = (difference: number, scale: number, nearZero: number) => (scale < nearZero || scale === 0 ? 0 : (100 * difference) / scale);
+
+/**
+ * Whether trace[lo..hi] bends beyond the limit: the whole window against a quadratic; then, from 6 readings, its
+ * second half against its first; then, from 9 readings, its middle third against the mean of the outer thirds.
+ * One quadratic cannot see an S: a window straddling a lag and a first-order decay runs slow, fast, then slower
+ * again, fits a quadratic badly (so its quadratic term is not significant) and keeps an r² of 0.99, while its
+ * straight line was a third below the initial rate. The part slopes see it. The part tests are the textbook
+ * comparison of regression slopes by Student's t (e.g. Zar, Biostatistical Analysis, ch. 18 [from memory]) at the
+ * α of the quadratic test, against the parts' pooled residual variance or the trace's reading noise
+ * (traceNoiseVariance), whichever is smaller: the parts' residuals alone would count the bend itself as noise; comparing the early part of a window with the rest is
+ * the [common practice] linearity check of kinetic readings (domain.md § 5a). They keep the quadratic's limit:
+ * on a parabola the halves' slopes (the rates at ¼ and ¾ of the window) differ by exactly the start-to-middle
+ * change the quadratic test measures, and the middle third's slope is exactly the mean of the outer thirds'
+ * [derived by hand: the rate of a parabola is linear in time]. Null when straight, else the shape with the
+ * change that failed (negative = slows down, positive = speeds up).
+ */
+export function curvedPart(
+  trace: readonly TracePoint[],
+  lo: number,
+  hi: number,
+  settings: Pick<LinearitySettings, 'curvatureLimitPct' | 'nearZeroSlopePerMin' | 'readingNoiseFloor'>,
+  noise: number = traceNoiseVariance(trace, settings.readingNoiseFloor),
+  whole: WindowShape = windowShape(trace, lo, hi, settings.nearZeroSlopePerMin, noise),
+): WindowShape | null {
+  if (!isStraight(whole, settings.curvatureLimitPct)) return whole;
+  const n = hi - lo + 1;
+  if (n < MIN_FOR_HALVES) return null;
+  if (!Number.isFinite(noise)) return null;
+  const nearZero = settings.nearZeroSlopePerMin;
+  const halves = partSlopes(trace, lo, hi, 2);
+  const [first, second] = halves.slopes as [number, number];
+  const halvesShape = {
+    ...whole,
+    changePct: relativePct(Math.abs(second) - Math.abs(first), Math.max(Math.abs(first), Math.abs(second)), nearZero),
+    significant: contrastSignificant(second - first, [-1, 1], halves, noise),
+  };
+  if (!isStraight(halvesShape, settings.curvatureLimitPct)) return halvesShape;
+  if (n >= MIN_FOR_THIRDS) {
+    const thirds = partSlopes(trace, lo, hi, 3);
+    const [a, m, c] = thirds.slopes as [number, number, number];
+    const ends = (Math.abs(a) + Math.abs(c)) / 2;
+    const shape = {
+      ...whole,
+      // An S (middle faster than the ends) is reported as a window whose ends run slower than its middle.
+      changePct: relativePct(ends - Math.abs(m), Math.max(ends, Math.abs(m)), nearZero),
+      significant: contrastSignificant(m - (a + c) / 2, [-0.5, 1, -0.5], thirds, noise),
+    };
+    if (!isStraight(shape, settings.curvatureLimitPct)) return shape;
+  }
+  return null;
 }
 
 export interface FoundWindow {
@@ -163,7 +297,8 @@ export interface NoWindow {
 /**
  * The automatic rate window:
  * 1. for every start within `lagMaxS` of the first reading (leaving at least `minPoints` readings), the
- *    longest straight window from that start (searched from the longest down);
+ *    longest straight window from that start (searched from the longest down; straight as a whole and in
+ *    each half, see curvedPart);
  * 2. of those, the earliest start whose rate is within noise of the fastest one (4·√2 standard errors of
  *    the fastest window's slope, and at least 0.5%): a slower opening stretch is a lag and is stepped over, while on a straight trace
  *    every start gives the same rate and the first reading is kept;
@@ -176,14 +311,15 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
   const candidates: { lo: number; hi: number; shape: WindowShape }[] = [];
   let firstShortest: { lo: number; hi: number; shape: WindowShape } | null = null;
 
+  const noise = traceNoiseVariance(trace, settings.readingNoiseFloor);
   for (let lo = 0; lo + minPoints - 1 <= last && trace[lo]!.t - t0 <= settings.lagMaxS; lo += 1) {
     // Longest first: all readings from lo, then shrink from the end until the window is straight.
     const sums = new WindowSums(trace[lo]!.t, trace[lo]!.a);
     for (let i = lo; i <= last; i += 1) sums.add(trace[i]!);
     for (let hi = last; hi - lo + 1 >= minPoints; hi -= 1) {
-      const shape = sums.shape(settings.nearZeroSlopePerMin);
-      if (isStraight(shape, settings.curvatureLimitPct)) {
-        candidates.push({ lo, hi, shape });
+      const shape = sums.shape(settings.nearZeroSlopePerMin, noise);
+      if (isStraight(shape, settings.curvatureLimitPct) && curvedPart(trace, lo, hi, settings, noise, shape) === null) {
+        if (!runsFasterAfter(trace, lo, hi, minPoints, settings, noise)) candidates.push({ lo, hi, shape });
         break;
       }
       if (lo === 0 && hi - lo + 1 === minPoints) firstShortest = { lo, hi, shape };
@@ -192,7 +328,7 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
   }
 
   if (candidates.length === 0) {
-    const fallback = firstShortest ?? { lo: 0, hi: last, shape: windowShape(trace, 0, last, settings.nearZeroSlopePerMin) };
+    const fallback = firstShortest ?? { lo: 0, hi: last, shape: windowShape(trace, 0, last, settings.nearZeroSlopePerMin, noise) };
     return { kind: 'none', ...fallback };
   }
 
@@ -216,6 +352,34 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
     };
   }
   return { kind: 'found', lo: chosen.lo, hi: chosen.hi, shape: chosen.shape, lag };
+}
+
+/**
+ * Whether the readings just after trace[lo..hi] (its last reading and the next minPoints − 1) run faster than the
+ * window itself, beyond the curvature limit and beyond noise: the window then lies in a lag, before the reaction
+ * got going (a flat opening followed by a fall), and says nothing of the reaction's rate. Judged like the halves
+ * of a window (curvedPart), the window and what follows it being the two halves.
+ */
+function runsFasterAfter(
+  trace: readonly TracePoint[],
+  lo: number,
+  hi: number,
+  minPoints: number,
+  settings: Pick<LinearitySettings, 'curvatureLimitPct' | 'nearZeroSlopePerMin'>,
+  noise: number,
+): boolean {
+  const end = Math.min(trace.length - 1, hi + minPoints - 1);
+  if (end - hi + 1 < 3) return false;
+  const window = lineSums(trace, lo, hi);
+  const after = lineSums(trace, hi, end);
+  const scale = Math.max(Math.abs(window.slope), Math.abs(after.slope));
+  const changePct = relativePct(Math.abs(after.slope) - Math.abs(window.slope), scale, settings.nearZeroSlopePerMin);
+  const df = hi - lo + 1 + (end - hi + 1) - 4;
+  const variance = Math.min((window.sse + after.sse) / df, Number.isFinite(noise) ? noise : Number.POSITIVE_INFINITY);
+  const se = Math.sqrt(variance * (1 / window.sxx + 1 / after.sxx));
+  const difference = Math.abs(after.slope - window.slope);
+  const t = se > 0 ? difference / se : difference === 0 ? 0 : Number.POSITIVE_INFINITY;
+  return changePct > settings.curvatureLimitPct && t > criticalT(df);
 }
 
 function finiteOr0(x: number): number {

@@ -1,5 +1,5 @@
 import type { AssayDefinition, Flag, FittedLine, RateWindow, TracePoint } from '@/schemas/assay';
-import { findLinearWindow, isStraight, windowShape, worstOutlier, type WindowShape } from './linearity';
+import { curvedPart, findLinearWindow, worstOutlier } from './linearity';
 import { fitTraceRange } from './regression';
 import { checkLinearRange, checkTrace, fmt, indexRange, type TraceLabel } from './trace';
 
@@ -92,7 +92,7 @@ export function fitTrace(
   // A chosen window is checked and flagged; an automatic one found by the search is straight by construction
   // (so passes), and a trace shorter than the minimum, fitted whole, is checked like a chosen window.
   if (options.checkR2 && count >= 4) {
-    flagCurvature(windowShape(trace, lo, hi, settings.nearZeroSlopePerMin), label, fromS, toS, settings, flags);
+    flagCurvature(trace, lo, hi, label, settings, flags);
   }
   if (options.checkOutliers !== false) {
     const outlier = worstOutlier(trace, lo, hi, settings.outlierLimitSd, settings.readingNoiseFloor);
@@ -117,16 +117,13 @@ export function fitTrace(
   };
 }
 
-function flagCurvature(
-  shape: WindowShape,
-  label: TraceLabel,
-  fromS: number,
-  toS: number,
-  settings: RateSettings,
-  flags: Flag[],
-): void {
-  if (isStraight(shape, settings.curvatureLimitPct)) return;
+/** Flags the window when it is not straight (as a whole, or its second half against its first). */
+function flagCurvature(trace: readonly TracePoint[], lo: number, hi: number, label: TraceLabel, settings: RateSettings, flags: Flag[]): void {
+  const shape = curvedPart(trace, lo, hi, settings);
+  if (!shape) return;
   const change = shape.changePct;
+  const fromS = trace[lo]!.t;
+  const toS = trace[hi]!.t;
   flags.push({
     code: 'CURVATURE',
     message:
