@@ -116,10 +116,11 @@ export class WindowSums {
       curvatureT = se > 0 ? c2 / se : c2 === 0 ? 0 : Math.sign(c2) * Number.POSITIVE_INFINITY;
       significant = df < 1 || Math.abs(curvatureT) > criticalT(df);
     }
-    // Relative to the faster of the two rates, so a flat start (a lag) or a flat end gives a finite figure.
+    // Relative to the faster of the two rates, so a flat start (a lag) or a flat end gives a finite figure; taken
+    // in the straight line's direction, so a start that runs the other way (a flat lag into a fall) speeds up.
     const scale = Math.max(Math.abs(startSlope), Math.abs(slope));
-    const changePct =
-      scale < nearZeroSlopePerMin || scale === 0 ? 0 : (100 * (Math.abs(slope) - Math.abs(startSlope))) / scale;
+    const direction = Math.sign(slope) || Math.sign(startSlope);
+    const changePct = scale < nearZeroSlopePerMin || scale === 0 ? 0 : (100 * direction * (slope - startSlope)) / scale;
     return { n, slopePerMin: slope, slopeSePerMin: slopeSe, startSlopePerMin: startSlope, changePct, curvatureT, significant, r2 };
   }
 }
@@ -288,7 +289,7 @@ export interface FoundWindow {
 
 export interface NoWindow {
   kind: 'none';
-  /** The shortest window from the first reading, to say how curved the trace is. */
+  /** The earliest shortest window that is not straight (preferring one that slows down), to say how curved the trace is. */
   lo: number;
   hi: number;
   shape: WindowShape;
@@ -310,6 +311,7 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
   const t0 = trace[0]!.t;
   const candidates: { lo: number; hi: number; shape: WindowShape }[] = [];
   let firstShortest: { lo: number; hi: number; shape: WindowShape } | null = null;
+  let firstSlowing: { lo: number; hi: number; shape: WindowShape } | null = null;
 
   const noise = traceNoiseVariance(trace, settings.readingNoiseFloor);
   for (let lo = 0; lo + minPoints - 1 <= last && trace[lo]!.t - t0 <= settings.lagMaxS; lo += 1) {
@@ -322,13 +324,18 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
         if (!runsFasterAfter(trace, lo, hi, minPoints, settings, noise)) candidates.push({ lo, hi, shape });
         break;
       }
-      if (lo === 0 && hi - lo + 1 === minPoints) firstShortest = { lo, hi, shape };
+      // The earliest shortest window that is not straight explains a refusal: preferably one that slows down
+      // (the reaction's own bend, after any lag), else the first.
+      if (hi - lo + 1 === minPoints) {
+        if (firstShortest === null) firstShortest = { lo, hi, shape };
+        if (firstSlowing === null && shape.changePct < 0) firstSlowing = { lo, hi, shape };
+      }
       sums.remove(trace[hi]!);
     }
   }
 
   if (candidates.length === 0) {
-    const fallback = firstShortest ?? { lo: 0, hi: last, shape: windowShape(trace, 0, last, settings.nearZeroSlopePerMin, noise) };
+    const fallback = firstSlowing ?? firstShortest ?? { lo: 0, hi: last, shape: windowShape(trace, 0, last, settings.nearZeroSlopePerMin, noise) };
     return { kind: 'none', ...fallback };
   }
 

@@ -157,7 +157,7 @@ export function selectRange(
         const s = found.shape;
         flags.push({
           code: 'NO_LINEAR_WINDOW',
-          message: `${label} trace: no stretch of ${s.n} or more readings is straight, so no initial rate can be read — across the first ${s.n} readings (${fmt(trace[found.lo]!.t)}–${fmt(trace[found.hi]!.t)} s) the rate already ${s.changePct < 0 ? 'falls' : 'rises'} by ${fmt(Math.abs(s.changePct), 3)}% (limit ${fmt(settings.curvatureLimitPct, 3)}%). No activity is given: dilute the sample or read more often, or set a window by hand (it will be flagged)`,
+          message: `${label} trace: no stretch of ${s.n} or more readings is straight, so no initial rate can be read — across ${found.lo === 0 ? 'the first' : 'the'} ${s.n} readings (${fmt(trace[found.lo]!.t)}–${fmt(trace[found.hi]!.t)} s) the rate already ${s.changePct < 0 ? 'falls' : 'rises'} by ${fmt(Math.abs(s.changePct), 3)}% (limit ${fmt(settings.curvatureLimitPct, 3)}%). No activity is given: dilute the sample or read more often, or set a window by hand (it will be flagged)`,
           values: { changePct: s.changePct, limitPct: settings.curvatureLimitPct, fromS: trace[found.lo]!.t, toS: trace[found.hi]!.t },
         });
         return null;

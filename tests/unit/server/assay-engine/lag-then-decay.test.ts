@@ -45,7 +45,15 @@ describe('automatic window on a lag followed by a first-order decay', () => {
     // gave 0.4846 per minute (seen in the rate check, 2 December 2026), 33% low with only a lag flag.
     // 0.01/s falls by more than 5% within any five readings after the lag (20 s: e^(−0.2) = 0.82), so no
     // straight stretch exists and none may be given.
-    expect(check({ lagS: 30, stepS: 5, durationS: 150, a1: 1.2, aInf: 0, k: 0.01 })).toEqual({ found: false });
+    const o = { lagS: 30, stepS: 5, durationS: 150, a1: 1.2, aInf: 0, k: 0.01 };
+    expect(check(o)).toEqual({ found: false });
+    // The refusal describes where the trace bends: the five readings from the end of the lag, 30–50 s, whose
+    // straight line runs e^(−0.1) ≈ 0.905 of the rate at 30 s at their middle, about 9% slower [derived].
+    const trace = lagThenDecay(o);
+    const refused = findLinearWindow(trace, settings);
+    expect([trace[refused.lo]!.t, trace[refused.hi]!.t]).toEqual([30, 50]);
+    expect(refused.shape.changePct).toBeLessThan(-5);
+    expect(refused.shape.changePct).toBeGreaterThan(-12);
   });
 
   it('a slow decay after a lag (k = 0.0005/s): a window is found and its rate is within 8% of the initial rate (see the property below)', () => {
