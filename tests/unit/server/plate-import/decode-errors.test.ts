@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { MAX_PLATE_FILE_BYTES } from '@/schemas/plate';
-import { decodePlateText, formatBytes, utf8ByteLength } from '../../../../server/domain/plate-import/decode-text';
+import { decodePlateText, findInvalidUtf8, formatBytes, utf8ByteLength } from '../../../../server/domain/plate-import/decode-text';
 import { failWith, IssueList, PlateImportError } from '../../../../server/domain/plate-import/errors';
 
 /*
@@ -175,5 +175,87 @@ describe('PlateImportError and IssueList', () => {
 
   it('an error built with no issue says so', () => {
     expect(new PlateImportError([]).message).toBe('The plate file could not be imported: unknown problem');
+  });
+});
+
+/*
+ * Every boundary of the Unicode Standard's Table 3-7 (well-formed UTF-8: lead bytes C2–DF, E0–EF, F0–F4; second
+ * byte A0–BF after E0, 80–9F after ED, 90–BF after F0, 80–8F after F4; other continuation bytes 80–BF) [from
+ * memory], checked exhaustively against Node's TextDecoder in fatal mode, which implements the WHATWG Encoding
+ * Standard's UTF-8 decoder [confirmed: Node documents TextDecoder as the WHATWG Encoding API], and Node's
+ * Buffer.byteLength [confirmed: Node's Buffer documentation] for the byte count.
+ */
+describe('UTF-8 boundaries, exhaustively', () => {
+  const decoder = new TextDecoder('utf-8', { fatal: true });
+  const decodes = (b: number[]) => {
+    try {
+      decoder.decode(new Uint8Array(b));
+      return true;
+    } catch {
+      return false;
+    }
+  };
+  /** The first bad offset is right when the bytes before it decode and one more byte does not. */
+  const disagreement = (b: number[]): string | null => {
+    const bad = findInvalidUtf8(new Uint8Array(b));
+    const hex = b.map((x) => x.toString(16).padStart(2, '0')).join(' ');
+    if (bad === -1) return decodes(b) ? null : `${hex}: said valid, the decoder refuses it`;
+    if (!decodes(b)) {
+      if (decodes(b.slice(0, bad)) && !decodes(b.slice(0, bad + 1))) return null;
+      return `${hex}: first bad byte ${bad} is not where the well-formed part ends`;
+    }
+    return `${hex}: said invalid at ${bad}, the decoder accepts it`;
+  };
+
+  it('every lead byte 80–FF with every second byte, followed by none, one or two continuation bytes', () => {
+    const wrong: string[] = [];
+    for (let lead = 0x80; lead <= 0xff; lead += 1) {
+      for (let second = 0; second <= 0xff; second += 1) {
+        for (const tail of [[], [0x80], [0x80, 0x80]]) {
+          const d = disagreement([0x41, lead, second, ...tail]);
+          if (d) wrong.push(d);
+        }
+      }
+    }
+    expect(wrong).toEqual([]);
+  });
+
+  it('every third byte after each three- and four-byte lead (with its lowest and highest valid second byte)', () => {
+    const wrong: string[] = [];
+    const seconds: Record<number, number[]> = { 0xe0: [0xa0, 0xbf], 0xed: [0x80, 0x9f], 0xf0: [0x90, 0xbf], 0xf4: [0x80, 0x8f] };
+    for (const lead of [0xe0, 0xe1, 0xec, 0xed, 0xee, 0xef, 0xf0, 0xf1, 0xf3, 0xf4]) {
+      for (const second of seconds[lead] ?? [0x80, 0xbf]) {
+        for (let third = 0; third <= 0xff; third += 1) {
+          const d = disagreement(lead >= 0xf0 ? [0x41, lead, second, third, 0x80] : [0x41, lead, second, third]);
+          if (d) wrong.push(d);
+        }
+      }
+    }
+    expect(wrong).toEqual([]);
+  });
+
+  it('every fourth byte after each four-byte lead', () => {
+    const wrong: string[] = [];
+    for (const [lead, second] of [[0xf0, 0x90], [0xf1, 0x80], [0xf4, 0x8f]] as const) {
+      for (let fourth = 0; fourth <= 0xff; fourth += 1) {
+        const d = disagreement([0x41, lead, second, 0xbf, fourth]);
+        if (d) wrong.push(d);
+      }
+    }
+    expect(wrong).toEqual([]);
+  });
+
+  it('byte counts at each code-point boundary agree with Buffer.byteLength, lone surrogates counting as U+FFFD', () => {
+    const points = [0x7f, 0x80, 0x7ff, 0x800, 0xd7ff, 0xe000, 0xfffd, 0xffff, 0x10000, 0x10ffff];
+    const units = [0xd800, 0xdbff, 0xdc00, 0xdfff];
+    const samples = [
+      ...points.map((cp) => String.fromCodePoint(cp)),
+      ...units.map((u) => String.fromCharCode(u)),
+      ...units.map((u) => `${String.fromCharCode(u)}a`),
+      '\udbff\udbff\udfff',
+      '\ud800\ue000',
+      '\udc00\ud800',
+    ];
+    for (const s of samples) expect([s, utf8ByteLength(s)]).toEqual([s, Buffer.byteLength(s, 'utf8')]);
   });
 });
