@@ -39,6 +39,11 @@ async function main() {
     '',
     'Written by `npm run bench` (bench/run.ts). Goals are met here, in benchmarks, never in timed tests.',
     '',
+    'Measuring on a shared machine: with the kernel\'s automatic process groups on (`/proc/sys/kernel/sched_autogroup_enabled`',
+    '= 1, the default on many distributions), `nice` only ranks processes within one terminal session, so a niced job started',
+    'elsewhere still takes its full share of the cores from a benchmark. Turn it off (`echo 0 >',
+    '/proc/sys/kernel/sched_autogroup_enabled`, as root) or run other work with `chrt -i 0` (idle class) before measuring.',
+    '',
     `Last run: ${new Date().toISOString()} on ${machine}.`,
     '',
   ];
