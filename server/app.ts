@@ -133,7 +133,7 @@ export function createApp(opts: AppOptions): Express {
     res.json({ status: 'ok' });
   });
   app.use(scoped(health));
-  app.use(scoped(authRouter(sequelize, passport, { loginAttemptsPerWindow: opts.loginAttemptsPerWindow ?? 20 })));
+  app.use(scoped(authRouter(sequelize, passport, { loginAttemptsPerWindow: opts.loginAttemptsPerWindow ?? 20, secureCookie: config.env === 'production' })));
   app.use(scoped(usersRouter(sequelize)));
   app.use(scoped(labProfileRouter(sequelize)));
   app.use(scoped(auditRouter()));

@@ -87,6 +87,14 @@ describe('production on an empty database behind a TLS proxy', () => {
     // What the TLS terminator forwards: the browser's origin, and that the browser spoke HTTPS.
     const proxied = { Origin: PUBLIC_ORIGIN, 'X-Forwarded-Proto': 'https', 'X-Forwarded-For': '198.51.100.23', 'Content-Type': 'application/json' };
 
+    // Straight to the server over plain HTTP (no X-Forwarded-Proto): the Secure cookie could not be kept, so the
+    // sign-in is refused with the reason, not answered 200 with no session.
+    const { 'X-Forwarded-Proto': _https, ...plainHttp } = proxied;
+    const plain = await fetch(`${server.origin}/api/auth/login`, { method: 'POST', headers: plainHttp, body: JSON.stringify(ADMIN) });
+    expect(plain.status).toBe(403);
+    expect(plain.headers.getSetCookie()).toEqual([]);
+    expect((await plain.json()).error.message).toMatch(/^Signing in needs HTTPS.*TRUST_PROXY/);
+
     const demo = await fetch(`${server.origin}/api/auth/login`, { method: 'POST', headers: proxied, body: JSON.stringify({ email: 'admin@demo.test', password: 'cristae-demo' }) });
     expect(demo.status).not.toBe(200);
 

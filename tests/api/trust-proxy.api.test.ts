@@ -34,10 +34,11 @@ describe('session cookie behind a TLS proxy', () => {
     expect((await request(app).get('/api/auth/me').set('Cookie', cookie!.split(';')[0]!)).status).toBe(200);
   });
 
-  it('when TRUST_PROXY is off (the default), then X-Forwarded-Proto is not believed and no Secure cookie is sent over plain HTTP', async () => {
+  it('when TRUST_PROXY is off (the default), then X-Forwarded-Proto is not believed: the sign-in over plain HTTP is refused with the reason, and no cookie is sent', async () => {
     const app = t.withOptions({ config: production({}) });
     const login = await request(app).post('/api/auth/login').set('Origin', ORIGIN).set('X-Forwarded-Proto', 'https').send(credentials);
-    expect(login.status).toBe(200);
+    expect(login.status).toBe(403);
+    expect(login.body.error.message).toMatch(/^Signing in needs HTTPS.*TRUST_PROXY/);
     expect(login.headers['set-cookie']).toBeUndefined();
   });
 

@@ -26,7 +26,7 @@ function logIn(req: Request, user: SessionUser): Promise<void> {
 export function authRouter(
   sequelize: Sequelize,
   passport: CristaePassport,
-  opts: { loginAttemptsPerWindow: number },
+  opts: { loginAttemptsPerWindow: number; secureCookie: boolean },
 ): Router {
   const r = Router();
   // Counts failed sign-ins per client address; successful ones are not counted. The address is req.ip, which
@@ -44,6 +44,15 @@ export function authRouter(
   });
 
   route(r, 'POST /api/auth/login', { body: loginInputSchema }, async (_in, req, res) => {
+    // In production the session cookie is Secure (RFC 6265 §4.1.2.5): over plain HTTP the browser would drop it,
+    // and the person would be "signed in" with no session, sent back to this page without a word. Say why instead,
+    // before the password is checked.
+    if (opts.secureCookie && !req.secure) {
+      throw new AppError(
+        'FORBIDDEN',
+        'Signing in needs HTTPS: this request reached Cristae over plain HTTP, where the browser would not keep the sign-in. Open Cristae at its https:// address; behind a TLS proxy, the server needs TRUST_PROXY set so that it believes the proxy\'s X-Forwarded-Proto',
+      );
+    }
     const user = await authenticate(passport, req);
     await logIn(req, user);
     await recordAudit(user, { action: 'sign-in', entity: 'user', entityId: user.id });
