@@ -29,6 +29,8 @@ export interface TextRun {
   y: number;
   size: number;
   color: string;
+  /** The font's PostScript name as embedded (subset tag, then family and style, e.g. "…+IBMPlexSans-SemiBold"). */
+  font: string;
   order: number;
 }
 
@@ -87,6 +89,7 @@ export async function readDrawing(bytes: Buffer): Promise<DrawnPage[]> {
     const stack: State[] = [];
     let tm: Matrix = IDENTITY;
     let fontSize = 0;
+    let fontName = '';
     let order = 0;
     list.fnArray.forEach((fn, i) => {
       const args = list.argsArray[i] as unknown[];
@@ -135,15 +138,18 @@ export async function readDrawing(bytes: Buffer): Promise<DrawnPage[]> {
         case OPS.setTextMatrix:
           tm = Array.from(args[0] as ArrayLike<number>) as Matrix;
           break;
-        case OPS.setFont:
+        case OPS.setFont: {
           fontSize = Number(args[1]);
+          const id = String(args[0]);
+          fontName = page.commonObjs.has(id) ? String((page.commonObjs.get(id) as { name?: string }).name ?? id) : id;
           break;
+        }
         case OPS.showText: {
           const glyphs = args[0] as Array<{ unicode?: string } | number>;
           const text = glyphs.map((g) => (typeof g === 'number' ? '' : (g.unicode ?? ''))).join('');
           const m = times(tm, state.ctm);
           const [x, y] = apply(m, 0, 0);
-          texts.push({ text, x, y, size: fontSize * Math.hypot(m[2], m[3]), color: state.fill, order: order++ });
+          texts.push({ text, x, y, size: fontSize * Math.hypot(m[2], m[3]), color: state.fill, font: fontName, order: order++ });
           break;
         }
         default:
