@@ -19,9 +19,16 @@ describe('rate check, in Chromium', () => {
     await expect(page.getByTestId('activity').textContent()).resolves.toBe('100');
     await page.getByText('No flags.').waitFor();
     expect(await page.locator('figure .recharts-line').count()).toBe(2); // a fitted line per trace
+    // A slow server: the recomputation started by ticking the box is still on its way when the end is typed;
+    // the typed end must still be computed (it was dropped while no result was on screen).
+    await page.route('**/api/calculations/activity', async (route) => {
+      await new Promise((r) => setTimeout(r, 1500));
+      await route.continue();
+    });
     await page.getByLabel('Set the window by hand').check();
     await page.getByLabel('To (s)').fill('40');
     await page.getByText('0–40 s (set by hand)').waitFor();
+    await page.unroute('**/api/calculations/activity');
     await screenshot(page, 'rate-check');
 
     // Swap the traces: the specific slope now rises for a falling assay -> a named flag, no activity.

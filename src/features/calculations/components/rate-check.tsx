@@ -72,10 +72,13 @@ export function RateCheck({ definitions }: { definitions: StoredAssayDefinition[
     });
   }
 
-  // Moving the window recomputes at once, as long as both ends are numbers in order.
+  // Once a calculation has been asked for, moving the window recomputes at once, as long as both ends are numbers
+  // in order. (Not "once a result is shown": while the previous recomputation is still on its way there is no
+  // result, and an end typed then was dropped, leaving the old window's figures on screen.)
+  const calculated = preview.data !== undefined || preview.isPending || preview.isError;
   function moveWindow(next: { fromS: string; toS: string }) {
     setWindow(next);
-    if (preview.data && next.fromS !== '' && next.toS !== '' && Number(next.toS) > Number(next.fromS)) run(next, true);
+    if (calculated && next.fromS !== '' && next.toS !== '' && Number(next.toS) > Number(next.fromS)) run(next, true);
   }
 
   const result = preview.data;
@@ -130,7 +133,7 @@ export function RateCheck({ definitions }: { definitions: StoredAssayDefinition[
                   checked={manual}
                   onChange={(e) => {
                     setManual(e.target.checked);
-                    if (preview.data) run(window, e.target.checked);
+                    if (calculated) run(window, e.target.checked);
                   }}
                 />
                 Set the window by hand
