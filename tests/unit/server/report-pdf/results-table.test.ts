@@ -1,4 +1,5 @@
 import { beforeAll, describe, expect, it } from 'vitest';
+import { PAGE } from '../../../../server/domain/report-pdf/layout';
 import { renderReportPdf } from '../../../../server/domain/report-pdf/render-report-pdf';
 import { buildReportDocument, buildTwoSpecimenReportDocument, muscleSection, withResultRow } from '../../../factories/report-document';
 import { readPdf } from '../../../factories/pdf-text';
@@ -15,6 +16,8 @@ import { readDrawing, type DrawnPage, type TextRun } from '../../../factories/pd
  *   the naming rule is derived from it).
  */
 
+/** ISO 216 A4 height in points [confirmed]. */
+const A4_HEIGHT = 841.89;
 const SEMIBOLD = /IBMPlexSans-SemiBold$/;
 const REGULAR = /IBMPlexSans-Regular$/;
 
@@ -110,19 +113,43 @@ describe('reference intervals used', () => {
 });
 
 describe('the note under the results table', () => {
-  it('when the table ends near the foot of a page, then its last assay and the note explaining it stay on one page', async () => {
+  it('when the table ends near the foot of a page, then its last assay and the note explaining it stay together above the footer', async () => {
     // Each step lengthens the clinical indication by about one line, moving the table's end down the first page
-    // past the point where the last row fits and the note does not [common practice: an explanatory note is not
-    // separated from the table it explains].
+    // past the point where the last row fits and the note does not. The note must neither leave its table nor run
+    // into the footer: no two pieces of text overlap, and the footer's two lines are the lowest on the page
+    // [common practice: an explanatory note is not separated from the table it explains].
     const base = buildReportDocument();
     const sentence = 'Further invented history for the demonstration case, added only to move the table down the page. ';
     for (let n = 0; n <= 14; n++) {
       const doc = buildReportDocument({ case: { clinicalIndication: `${base.case.clinicalIndication} ${sentence.repeat(n)}`.trim() } });
-      const pdf = await readPdf(await renderReportPdf(doc));
+      const bytes = await renderReportPdf(doc);
+      const pdf = await readPdf(bytes);
       const pageOf = (text: string): number => pdf.pages.findIndex((p) => p.flat.includes(text));
       const lastRow = pageOf('Citrate synthase');
       expect(lastRow, `step ${n}`).toBeGreaterThanOrEqual(0);
       expect(pageOf('% of ref. mean: the result as a percentage of the mean'), `step ${n}`).toBe(lastRow);
+      const page = pdf.pages[lastRow]!;
+      const footer = page.lines.findIndex((l) => l.startsWith('Patient ID') && l.includes(' · Accession '));
+      expect(page.lines.slice(footer + 1).map((l) => l.startsWith('Version ')), `step ${n}`).toEqual([true]);
+      // layout.ts's stated contract: "Content never goes below this [PAGE.contentBottom]; the footer lives underneath."
+      const lowest = Math.max(...page.baselines.slice(0, footer).map((y) => A4_HEIGHT - y));
+      expect(lowest, `step ${n}: the lowest line above the footer`).toBeLessThanOrEqual(PAGE.contentBottom + 0.01);
+      // Below the footer's rule (the lowest line across the text block) stand the footer's two lines and nothing else.
+      const drawn = (await readDrawing(bytes))[lastRow]!;
+      const rule = drawn.shapes
+        .filter((x) => x.kind === 'stroke' && Math.abs(x.y1 - x.y2) < 0.01 && x.x2 - x.x1 > 500)
+        .sort((a, b) => a.y1 - b.y1)[0]!;
+      const below = new Set(drawn.texts.filter((t) => t.text.trim() !== '' && t.y < rule.y1).map((t) => t.y.toFixed(1)));
+      expect(below.size, `step ${n}: lines under the footer rule`).toBe(2);
+      const pieces = page.pieces.filter((p) => p.str.trim() !== '' && p.h > 0);
+      for (let i = 0; i < pieces.length; i++) {
+        for (let j = i + 1; j < pieces.length; j++) {
+          const [a, b] = [pieces[i]!, pieces[j]!];
+          const ox = Math.min(a.x + a.w, b.x + b.w) - Math.max(a.x, b.x);
+          const oy = Math.min(a.y + 0.75 * a.h, b.y + 0.75 * b.h) - Math.max(a.y - 0.2 * a.h, b.y - 0.2 * b.h);
+          expect(ox > 0.5 && oy > 0.5, `step ${n}: "${a.str}" over "${b.str}"`).toBe(false);
+        }
+      }
     }
   }, 300_000);
 });
