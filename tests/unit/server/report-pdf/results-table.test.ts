@@ -71,7 +71,7 @@ describe('the results table', () => {
 describe('excluded replicates', () => {
   const replicate = {
     specimenLabel: 'B',
-    assay: 'CIV',
+    assay: 'CIV' as const,
     replicate: 2,
     value: 12.1,
     unit: 'nmol/min/mg protein',
