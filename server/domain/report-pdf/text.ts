@@ -215,7 +215,9 @@ function splitWord(doc: Doc, word: Word, maxWidth: number): Word[] {
     for (const ch of run.text) {
       const r: Run = { ...run, text: ch };
       const w = runWidth(doc, r);
-      if (current.width + w > maxWidth && current.runs.length > 0) {
+      // Characters shaped together can kern wider than their widths added up: the joined piece is what must fit.
+      const wider = (): boolean => finishLine(doc, [{ ...current, runs: [...current.runs, r] }]).width > maxWidth;
+      if (current.runs.length > 0 && (current.width + w > maxWidth || wider())) {
         pieces.push(current);
         current = { runs: [], width: 0, space: [] };
       }

@@ -13,6 +13,7 @@ import { registerFonts, shapeRuns, textWidth, uncoveredCharacters, wrapText, typ
  */
 
 const body: TextStyle = { weight: 400, size: 10, color: '#000000' };
+const body9: TextStyle = { ...body, size: 9 };
 const plain = (text: string): string => shapeRuns(text, body).map((r) => r.text).join('');
 
 describe('shapeRuns: super- and subscripts that no face has', () => {
@@ -78,6 +79,15 @@ describe('wrapText: edges', () => {
     const box = one + one + one + one;
     const lines = wrapText(doc, 'IIIIIIII', body, box);
     expect(lines.map((l) => l.runs.map((r) => r.text).join(''))).toEqual(['IIII', 'IIII']);
+  });
+
+  it('when a word too long for the box is split, then no piece is wider than the box once its letters are shaped together (kerning)', () => {
+    // Found by the wrapping property of fonts-and-text.test.ts (fast-check seed -1987728262): split letter by letter,
+    // the first piece's widths added up fitted 60 pt, but shaped as one run it measured 60.003 pt.
+    const lines = wrapText(doc, '00\u2013O\u03b50H\u03b5\u03b5H\u2013 a', body9, 60);
+    expect(lines.length).toBeGreaterThan(1);
+    for (const line of lines) expect(line.width).toBeLessThanOrEqual(60);
+    expect(lines.map((l) => l.runs.map((r) => r.text).join('')).join('').replace(/\s+/g, '')).toBe('00\u2013O\u03b50H\u03b5\u03b5H\u2013a');
   });
 
   it.each([
