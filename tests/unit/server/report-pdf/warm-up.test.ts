@@ -21,12 +21,18 @@ const caught = vi.hoisted(() => ({ pdfs: [] as Array<Promise<Buffer>> }));
 
 vi.mock('pdfkit', async (importOriginal) => {
   const actual = await importOriginal<{ default: new (...args: unknown[]) => NodeJS.EventEmitter }>();
+  // Keeps each chunk as the document pushes it, without a 'data' listener of its own (which would make the stream
+  // flow whether or not the warm-up reads it), and hands the bytes over when the document ends.
+  // (The chunks live in a WeakMap: the document pushes its header from its constructor, before class fields exist.)
+  const kept = new WeakMap<object, Buffer[]>();
   class KeepingBytes extends actual.default {
     constructor(...args: unknown[]) {
       super(...args);
-      const chunks: Buffer[] = [];
-      this.on('data', (chunk: Buffer) => chunks.push(chunk));
-      caught.pdfs.push(new Promise((resolve) => this.on('end', () => resolve(Buffer.concat(chunks)))));
+      caught.pdfs.push(new Promise((resolve) => this.on('end', () => resolve(Buffer.concat(kept.get(this) ?? [])))));
+    }
+    push(chunk: Buffer | null): boolean {
+      if (chunk) kept.set(this, [...(kept.get(this) ?? []), Buffer.from(chunk)]);
+      return (actual.default.prototype as unknown as { push(c: Buffer | null): boolean }).push.call(this, chunk);
     }
   }
   return { default: KeepingBytes };
@@ -41,7 +47,8 @@ const asExtracted = (s: string): string => s.replace(/µ/g, 'μ');
 
 const words = (s: string): string[] => s.split(/\s+/).filter(Boolean);
 
-let warm: ReadPdf;
+let warm: ReadPdf | undefined;
+let documentsMade = 0;
 let report: ReadPdf;
 let turnsDuringWarmUp = 0;
 const measuredAfter: Array<{ word: string; size: number; calls: number }> = [];
@@ -61,8 +68,9 @@ beforeAll(async () => {
   const before = caught.pdfs.length;
   await warmUpReportRendering();
   running = false;
-  expect(caught.pdfs.length).toBe(before + 1);
-  warm = await readPdf(await caught.pdfs[before]!);
+  // Checked in the tests, not here: a hook that throws leaves every test skipped, which Stryker counts as survived.
+  documentsMade = caught.pdfs.length - before;
+  if (documentsMade === 1) warm = await readPdf(await caught.pdfs[before]!);
 
   // After the warm-up, measure the report's fixed words, word by word as the layout does, on a new document.
   measure.mockClear();
@@ -87,13 +95,14 @@ beforeAll(async () => {
 }, 300_000);
 
 describe('warmUpReportRendering', () => {
-  it('when it has run, then its throw-away document is a finished PDF of one A4 page that a PDF reader opens', () => {
-    expect(warm.pages).toHaveLength(1);
-    expect(warm.pages[0]!.pieces.length).toBeGreaterThan(0);
+  it('when it has run, then it made one throw-away document, a finished PDF of one A4 page that a PDF reader opens', () => {
+    expect(documentsMade).toBe(1);
+    expect(warm?.pages).toHaveLength(1);
+    expect(warm!.pages[0]!.pieces.length).toBeGreaterThan(0);
   });
 
   it('when it draws, then every piece of text lies on the A4 sheet at least 5 mm from each edge', () => {
-    const off = warm.pages[0]!.pieces.filter(
+    const off = warm!.pages[0]!.pieces.filter(
       (p) =>
         p.str.trim() !== '' &&
         (p.x < EDGE || p.x + p.w > A4.width - EDGE || p.y - 0.2 * p.h < EDGE || p.y + 0.75 * p.h > A4.height - EDGE),
@@ -102,13 +111,13 @@ describe('warmUpReportRendering', () => {
   });
 
   it('when it draws, then text appears in the size of every report style', () => {
-    const sizes = new Set(warm.pages[0]!.pieces.map((p) => p.h.toFixed(2)));
+    const sizes = new Set(warm!.pages[0]!.pieces.map((p) => p.h.toFixed(2)));
     for (const [name, style] of Object.entries(STYLES)) expect(sizes.has(style.size.toFixed(2)), name).toBe(true);
   });
 
   it('when a report is printed, then every character it prints was drawn by the warm-up (glyphs loaded from every face)', () => {
     const reportChars = new Set([...asExtracted(report.flat)].filter((ch) => ch.trim() !== ''));
-    const warmChars = new Set([...warm.flat]);
+    const warmChars = new Set([...warm!.flat]);
     // Sanity: the report holds characters from more than one face of the chain (ε from the greek file) [fonts.ts].
     expect(reportChars.has('ε')).toBe(true);
     expect([...reportChars].filter((ch) => !warmChars.has(ch))).toEqual([]);
@@ -124,7 +133,7 @@ describe('warmUpReportRendering', () => {
       'Interpretation', 'Reference', 'interval', 'signature', 'Laboratory', 'Director',
     ];
     const inReport = report.flat.toLowerCase();
-    const inWarm = new Set(words(warm.flat.toLowerCase()));
+    const inWarm = new Set(words(warm!.flat.toLowerCase()));
     for (const w of vocabulary) {
       expect(inReport.includes(w.toLowerCase()), `report prints ${w}`).toBe(true);
       expect(inWarm.has(w.toLowerCase()) || [...inWarm].some((x) => x.startsWith(w.toLowerCase())), `warm-up draws ${w}`).toBe(true);
