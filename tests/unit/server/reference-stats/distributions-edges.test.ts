@@ -88,6 +88,8 @@ describe('studentTCdf and studentTQuantile: refusals, the median and the tails',
   it.each([0, 1, -0.1, 1.1, Number.NaN])('refuses p = %d', (p) => {
     expect(() => studentTQuantile(p, 5)).toThrow(RangeError);
     expect(() => studentTQuantile(p, 5)).toThrow(/p must lie in \(0, 1\)/);
+    // The refusal names the p given, not 1 − p (a probability of 0 or 1 has no finite quantile [analytic]).
+    expect(() => studentTQuantile(p, 5)).toThrow(`got ${p}`);
   });
 
   it('matches one-sided 95% t-table values (1.729 for 19 df, 1.833 for 9 df) [from memory: t table]', () => {
