@@ -1,0 +1,26 @@
+#!/bin/bash
+# One Stryker run per server file, each with its own incremental file and JSON report in reports/mutation-rest/
+# (a stopped run keeps nothing, so one file per run keeps what was finished). Idle CPU class: other work on the
+# machine goes first. Usage: bash scripts/mutation-per-file.sh server/domain/assay-engine/engine.ts …
+# CONC=1 for one test runner (default 2). A file whose report exists is skipped.
+cd "$(dirname "$0")/.." || exit 1
+out=reports/mutation-rest
+mkdir -p "$out"
+for f in "$@"; do
+  b=$(basename "$f" .ts)
+  [ -f "$out/$b.json" ] && continue
+  node -e '
+    const c = require("./stryker.config.json");
+    const [b, out] = process.argv.slice(1);
+    c.concurrency = Number(process.env.CONC ?? 2);
+    c.incrementalFile = `reports/stryker-rest-${b}.json`;
+    c.reporters = ["json", "progress"];
+    c.jsonReporter = { fileName: `${out}/${b}.json` };
+    c.thresholds = { high: 90, low: 85, break: null };
+    c.tempDirName = `.stryker-tmp-${b}`;
+    require("fs").writeFileSync(`${out}/${b}.config.json`, JSON.stringify(c, null, 2));
+  ' "$b" "$out"
+  echo "start $f $(date -u +%T)" >> "$out/progress.txt"
+  chrt -i 0 nice -n 19 npx stryker run "$out/$b.config.json" --mutate "$f" > "$out/$b.log" 2>&1
+  echo "end $f rc=$? $(date -u +%T)" >> "$out/progress.txt"
+done
