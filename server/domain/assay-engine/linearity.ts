@@ -382,11 +382,8 @@ function runsFasterAfter(
   const scale = Math.max(Math.abs(window.slope), Math.abs(after.slope));
   const changePct = relativePct(Math.abs(after.slope) - Math.abs(window.slope), scale, settings.nearZeroSlopePerMin);
   const df = hi - lo + 1 + (end - hi + 1) - 4;
-  const variance = Math.min((window.sse + after.sse) / df, Number.isFinite(noise) ? noise : Number.POSITIVE_INFINITY);
-  const se = Math.sqrt(variance * (1 / window.sxx + 1 / after.sxx));
-  const difference = Math.abs(after.slope - window.slope);
-  const t = se > 0 ? difference / se : difference === 0 ? 0 : Number.POSITIVE_INFINITY;
-  return changePct > settings.curvatureLimitPct && t > criticalT(df);
+  const parts = { slopes: [window.slope, after.slope], sxx: [window.sxx, after.sxx], variance: (window.sse + after.sse) / df, df };
+  return changePct > settings.curvatureLimitPct && contrastSignificant(after.slope - window.slope, [-1, 1], parts, noise);
 }
 
 function finiteOr0(x: number): number {
