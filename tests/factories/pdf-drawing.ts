@@ -1,4 +1,5 @@
-import { getDocument, OPS } from 'pdfjs-dist/legacy/build/pdf.mjs';
+import { OPS } from 'pdfjs-dist/legacy/build/pdf.mjs';
+import { openPdf } from './pdf-text';
 
 /**
  * Reads what a PDF page paints, with pdfjs-dist's operator list (an independent PDF reader): filled and stroked
@@ -78,7 +79,7 @@ function pathPoints(data: ArrayLike<number>): Array<[number, number]> {
 }
 
 export async function readDrawing(bytes: Buffer): Promise<DrawnPage[]> {
-  const pdf = await getDocument({ data: new Uint8Array(bytes), isEvalSupported: false, verbosity: 0 }).promise;
+  const pdf = await openPdf(bytes);
   const pages: DrawnPage[] = [];
   for (let n = 1; n <= pdf.numPages; n++) {
     const page = await pdf.getPage(n);

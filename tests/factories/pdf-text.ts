@@ -31,8 +31,11 @@ export interface ReadPdf {
 
 export const collapse = (s: string): string => s.replace(/\s+/g, ' ').trim();
 
+/** A PDF opened with pdfjs for reading back (no eval, no console noise); every read-back in the tests starts here. */
+export const openPdf = (bytes: Buffer) => getDocument({ data: new Uint8Array(bytes), isEvalSupported: false, verbosity: 0 }).promise;
+
 export async function readPdf(bytes: Buffer): Promise<ReadPdf> {
-  const pdf = await getDocument({ data: new Uint8Array(bytes), isEvalSupported: false, verbosity: 0 }).promise;
+  const pdf = await openPdf(bytes);
   const pages: PdfPage[] = [];
   for (let n = 1; n <= pdf.numPages; n++) {
     const page = await pdf.getPage(n);

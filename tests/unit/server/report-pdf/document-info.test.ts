@@ -1,12 +1,12 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { ReportDocument } from '@/schemas/report-document';
-import { getDocument } from 'pdfjs-dist/legacy/build/pdf.mjs';
 import {
   parseReportDocument,
   renderReportPdf,
   ReportDocumentError,
 } from '../../../../server/domain/report-pdf/render-report-pdf';
 import { buildCorrectedReportDocument, buildReportDocument } from '../../../factories/report-document';
+import { openPdf } from '../../../factories/pdf-text';
 
 /*
  * The document-level entries of the PDF, read back with pdfjs-dist (an independent reader), against the PDF
@@ -25,7 +25,7 @@ interface Info {
 }
 
 async function infoOf(bytes: Buffer): Promise<Info> {
-  const pdf = await getDocument({ data: new Uint8Array(bytes), isEvalSupported: false, verbosity: 0 }).promise;
+  const pdf = await openPdf(bytes);
   const meta = await pdf.getMetadata();
   const prefs = (await pdf.getViewerPreferences()) as Record<string, unknown> | null;
   await pdf.destroy();
