@@ -113,9 +113,11 @@ function keepPreparedStatements(connection: SqliteConnection): SqliteConnection 
     const original = connection[method].bind(connection) as (sql: string, ...rest: unknown[]) => unknown;
     (connection as unknown as Record<string, unknown>)[method] = (sql: string, ...rest: unknown[]) => {
       const callback = rest[rest.length - 1];
-      if (rest.length !== 2 || typeof callback !== 'function' || !KEEPABLE(sql)) return original(sql, ...rest);
+      if (rest.length !== 2 || typeof callback !== 'function') return original(sql, ...rest);
       const params = rest[0];
+      // A text in the list passed KEEPABLE when it was prepared: look it up before testing the text again.
       const statement = kept.get(sql);
+      if (!statement && !KEEPABLE(sql)) return original(sql, ...rest);
       if (statement) {
         kept.delete(sql);
         kept.set(sql, statement);

@@ -215,6 +215,8 @@ function isoFromSqlite(v: unknown): string | null {
   if (v == null) return null;
   if (v instanceof Date) return v.toISOString();
   const m = /^(\d{4}-\d{2}-\d{2}) (\d{2}:\d{2}:\d{2}(?:\.\d+)?) \+00:00$/.exec(String(v));
+  // With milliseconds ("09:30:00.000", the usual text) it is already an ISO instant but for the "T" and the "Z".
+  if (m?.[2]!.length === 12) return `${m[1]}T${m[2]}Z`;
   return new Date(m ? `${m[1]}T${m[2]}Z` : String(v)).toISOString();
 }
 
