@@ -44,11 +44,27 @@ function catchImport(fn: () => unknown): PlateImportError {
   throw new Error('expected a PlateImportError');
 }
 
+/** A map as it might arrive in a request body, before any checking. */
+function rawMap(name: unknown, wells: unknown): PlateMap {
+  return { name, wells } as unknown as PlateMap;
+}
+
+function mapIssues(map: PlateMap) {
+  return catchImport(() => applyPlateMap(parsePlateFile(fixture), map)).issues;
+}
+
 describe('applyPlateMap', () => {
-  it('when total, background and blank are mapped, then one group carries the three traces', () => {
+  it.each([
+    ['the total is listed first', [entry('A1', 'total'), entry('A2', 'background'), entry('B1', 'blank')]],
+    // A person may list a group's blank and background before its total; they belong to it all the same.
+    [
+      'blank and background are listed before the total',
+      [entry('B1', 'blank'), entry('A2', 'background'), entry('A1', 'total')],
+    ],
+  ])('when total, background and blank are mapped and %s, then one group carries the three traces', (_label, wells) => {
     // Arrange
     const parsed = parsePlateFile(fixture);
-    const map = mapOf(entry('A1', 'total'), entry('A2', 'background'), entry('B1', 'blank'));
+    const map = mapOf(...wells);
     // Act
     const mapped = applyPlateMap(parsed, map);
     // Assert
@@ -75,6 +91,9 @@ describe('applyPlateMap', () => {
     expect(mapped.warnings).toEqual([
       expect.objectContaining({ code: 'UNMAPPED_WELL', row: 5, column: 'B2', columnNumber: 5 }),
     ]);
+    // What the user is told, in words: which well, and that its readings are left out [derived].
+    expect(mapped.warnings[0]!.message).toContain('Well B2 is in the file but not in the plate map');
+    expect(mapped.warnings[0]!.message).toContain('not used');
   });
 
   it('when the traces are handed on, then a straight-line fit sees seconds and the file’s readings', () => {
@@ -110,6 +129,10 @@ describe('applyPlateMap', () => {
     const err = catchImport(() => applyPlateMap(parsePlateFile(fixture), map));
 
     expect(err.issues.map((i) => i.column)).toEqual(['H1', 'H2']);
+    // Every use of the shared blank is named, so the user sees which groups lose it [derived].
+    expect(err.issues[1]!.message).toBe(
+      'The plate map uses well H2 (S1 CI blank, replicate 1; S2 CI blank, replicate 1) but the file has no H2 column.',
+    );
   });
 
   it('when one blank well serves two specimens, then both groups get its trace', () => {
@@ -189,6 +212,91 @@ describe('applyPlateMap', () => {
   it('when the map has no wells, then it is refused', () => {
     const err = catchImport(() => applyPlateMap(parsePlateFile(fixture), mapOf()));
     expect(err.issues[0]).toMatchObject({ code: 'MAP_INVALID', column: null });
+  });
+});
+
+/*
+ * What a person reading a refusal should see, worked out by hand from the map they wrote [derived]: entries
+ * are counted from 1 in the order they are listed, the entry's field is named in brackets, and a problem with
+ * the map as a whole names the map's own field. After the colon comes the schema's own wording (src/schemas/
+ * plate.ts), or zod's for a wrong type, of which only the type it names is checked.
+ */
+describe('applyPlateMap refusals name the entry and field', () => {
+  it('when the second entry reuses a well, then the message counts it as entry 2 and names its well field', () => {
+    const [issue] = mapIssues(mapOf(entry('A1', 'total'), entry('A1', 'background')));
+
+    expect(issue).toEqual({
+      code: 'MAP_INVALID',
+      row: null,
+      column: 'A1',
+      columnNumber: null,
+      message: 'Plate map entry 2 (well): Well A1 is already mapped (entry 1); only a blank can be shared',
+    });
+  });
+
+  it('when the third entry is a second total of its group, then it is entry 3 and the role field is named', () => {
+    const map = mapOf(entry('A1', 'total'), entry('B1', 'blank'), entry('A2', 'total'));
+
+    const [issue] = mapIssues(map);
+
+    expect(issue).toMatchObject({ column: 'A2' });
+    expect(issue!.message).toBe('Plate map entry 3 (role): S1 CI replicate 1 already has a total well (A1)');
+  });
+
+  it('when an entry is not an object, then it is counted from 1 and no field or well is named', () => {
+    // A JSON body can carry null or a bare well name where an entry belongs; entry 1 is good.
+    const issues = mapIssues(rawMap('Fernhollow CI layout (invented)', [entry('A1', 'total'), null, 'A3']));
+
+    expect(issues.map((i) => [i.code, i.column])).toEqual([
+      ['MAP_INVALID', null],
+      ['MAP_INVALID', null],
+    ]);
+    expect(issues[0]!.message).toMatch(/^Plate map entry 2: \S.*null/);
+    expect(issues[1]!.message).toMatch(/^Plate map entry 3: \S.*string/);
+  });
+
+  it('when an entry’s well is a number, then the well field is named and no well is given as the column', () => {
+    const map = rawMap('Fernhollow CI layout (invented)', [{ ...entry('A1', 'total'), well: 12 }]);
+
+    const [issue] = mapIssues(map);
+
+    expect(issue).toMatchObject({ code: 'MAP_INVALID', column: null });
+    expect(issue!.message).toMatch(/^Plate map entry 1 \(well\): \S/);
+  });
+
+  it('when the map’s name is empty and it has no wells, then each problem names the map’s field', () => {
+    const issues = mapIssues(rawMap('', []));
+
+    expect(issues.map((i) => [i.column, i.message])).toEqual([
+      [null, 'Plate map (name): Name is required'],
+      [null, 'Plate map (wells): A plate map needs at least one well'],
+    ]);
+  });
+
+  it('when the map itself is not an object, then the message names no field', () => {
+    const [issue] = mapIssues(null as unknown as PlateMap);
+
+    expect(issue).toMatchObject({ code: 'MAP_INVALID', column: null });
+    expect(issue!.message).toMatch(/^Plate map: \S.*null/);
+  });
+});
+
+describe('applyPlateMap group order', () => {
+  it('when groups are interleaved with their blanks, then each group gets its own wells', () => {
+    const map = mapOf(
+      entry('B1', 'blank', { specimenRef: 'S2' }),
+      entry('A1', 'total'),
+      entry('B2', 'blank'),
+      entry('A2', 'total', { specimenRef: 'S2' }),
+    );
+
+    const mapped = applyPlateMap(parsePlateFile(fixture), map);
+
+    // S2 is named first (by its blank in entry 1), so its group comes first.
+    expect(mapped.groups.map((g) => [g.specimenRef, g.wells, g.total, g.blank])).toEqual([
+      ['S2', { total: 'A2', blank: 'B1' }, trace(a2), trace(b1)],
+      ['S1', { total: 'A1', blank: 'B2' }, trace(a1), trace(b2)],
+    ]);
   });
 });
 
