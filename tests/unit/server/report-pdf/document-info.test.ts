@@ -22,14 +22,21 @@ import { openPdf } from '../../../factories/pdf-text';
 interface Info {
   info: Record<string, unknown>;
   prefs: Record<string, unknown> | null;
+  /** Each page's width and height in points, from its MediaBox (ISO 32000-1 §14.11.2). */
+  pageSizes: [number, number][];
 }
 
 async function infoOf(bytes: Buffer): Promise<Info> {
   const pdf = await openPdf(bytes);
   const meta = await pdf.getMetadata();
   const prefs = (await pdf.getViewerPreferences()) as Record<string, unknown> | null;
+  const pageSizes: [number, number][] = [];
+  for (let n = 1; n <= pdf.numPages; n++) {
+    const [x0, y0, x1, y1] = (await pdf.getPage(n)).view as [number, number, number, number];
+    pageSizes.push([x1 - x0, y1 - y0]);
+  }
   await pdf.destroy();
-  return { info: meta.info as Record<string, unknown>, prefs };
+  return { info: meta.info as Record<string, unknown>, prefs, pageSizes };
 }
 
 describe('renderReportPdf: the document information a viewer and an index show', () => {
@@ -71,6 +78,19 @@ describe('renderReportPdf: the document information a viewer and an index show',
     for (const { info, prefs } of [finalInfo, correctedInfo]) {
       expect(info.Language).toBe('en');
       expect(prefs?.DisplayDocTitle).toBe(true);
+    }
+  });
+});
+
+describe('renderReportPdf: the paper size', () => {
+  it('when read back, then every page is ISO 216 A4, 210 × 297 mm, portrait', async () => {
+    // ISO 216: A4 is 210 mm × 297 mm. A PDF point is 1/72 inch (ISO 32000-1 §8.3.2.3) and an inch is 25.4 mm, so
+    // A4 is 595.28 × 841.89 points (worked by hand: 210 / 25.4 × 72 = 595.2756, 297 / 25.4 × 72 = 841.8898).
+    const { pageSizes } = await infoOf(await renderReportPdf(buildReportDocument()));
+    expect(pageSizes.length).toBeGreaterThan(0);
+    for (const [width, height] of pageSizes) {
+      expect(width).toBeCloseTo(595.28, 1);
+      expect(height).toBeCloseTo(841.89, 1);
     }
   });
 });
