@@ -446,6 +446,36 @@ describe('buildReportBundle: values and edges', () => {
     expect(one(b, 'DiagnosticReport').result).toEqual([]);
   });
 
+  it('when the printed name has a blank before its comma, then the family name is the words before the comma without it', () => {
+    // HumanName.family holds the family name, HumanName.text the name as printed (R4 datatypes) [confirmed as the
+    // standard]; "Quillfeather , Marigold Anne" worked by hand: family "Quillfeather", given "Marigold", "Anne".
+    const b = bundleOf(buildReportDocument({ patient: { name: 'Quillfeather , Marigold Anne' } }));
+    expect(one(b, 'Patient').name).toEqual([{ text: 'Quillfeather , Marigold Anne', family: 'Quillfeather', given: ['Marigold', 'Anne'] }]);
+  });
+
+  it('when limits arrive without their interval label (the report schema refuses this), then no range is made and no value is null', () => {
+    // A document built past the schema: in a stored report every limit comes with its interval's label.
+    const unlabelled = withResult(doc, 'CS', 'activity', { intervalLabel: null, intervalVersion: null, status: 'not_compared' });
+    const b = bundleOf(unlabelled);
+    expect(observationFor(b, 'CS.activity').referenceRange).toBeUndefined();
+    // FHIR JSON never carries null: an element without a value is left out (hl7.org/fhir/R4/json.html) [from memory].
+    const nulls = (v: unknown, path: string): string[] =>
+      v === null ? [path] : typeof v === 'object' ? Object.entries(v as Json).flatMap(([k, x]) => nulls(x, `${path}.${k}`)) : [];
+    expect(nulls(b, 'bundle')).toEqual([]);
+  });
+
+  it('when a rejected specimen has no reason or disposition recorded, then the notes say so with nothing invented and no trailing blank', () => {
+    // Only possible in a document built past the schema (a rejected specimen needs both); "Rejected: " + "" with the
+    // blank dropped, worked by hand.
+    const rejected = structuredClone(buildRejectedReportDocument());
+    Object.assign(rejected.specimens[0]!.specimen, { rejectionReason: null, disposition: null });
+    expect(one(bundleOf(rejected), 'Specimen').note).toEqual([
+      { text: 'Right vastus lateralis, needle biopsy, 12 mg wet weight' },
+      { text: 'Rejected:' },
+      { text: 'Disposition:' },
+    ]);
+  });
+
   it('when the version is a correction, then the report and every observation are "corrected" and the identifier names v2', () => {
     const b = bundleOf(buildCorrectedReportDocument());
     const report = one(b, 'DiagnosticReport');

@@ -259,3 +259,84 @@ describe('UTF-8 boundaries, exhaustively', () => {
     for (const s of samples) expect([s, utf8ByteLength(s)]).toEqual([s, Buffer.byteLength(s, 'utf8')]);
   });
 });
+
+/*
+ * Surrogates and line ends, worked by hand. UTF-16 (the Unicode Standard, ch. 3, D91 and Table 3-5; RFC 2781 §2.1)
+ * [from memory]: a code point U above FFFF is written as the pair W1 = D800 + the top 10 bits of U − 10000 and
+ * W2 = DC00 + its low 10 bits, so a high surrogate (D800–DBFF) is only ever followed by a low one (DC00–DFFF) and a
+ * low one only ever follows a high one. Worked: U+10000 → D800 DC00; U+10FFFF (U − 10000 = FFFFF) → DBFF DFFF;
+ * U+1F600 (F600: top bits 3D, low bits 200) → D83D DE00. U+E000 is the first code point after the surrogate block.
+ * UTF-8 byte counts (RFC 3629 §3) [confirmed]: U+0800–U+FFFF take 3 bytes (U+3042 → E3 81 82), U+10000 and up 4;
+ * a lone surrogate cannot be encoded and is written as U+FFFD (EF BF BD, 3 bytes), as Node's Buffer does.
+ */
+describe('surrogate pairs by hand (D91, Table 3-5, RFC 2781)', () => {
+  it('the hand-worked pairs are the ones the JavaScript engine writes for those code points', () => {
+    // An independent check of the working above, not of the code under test.
+    expect(String.fromCodePoint(0x10000)).toBe('\ud800\udc00');
+    expect(String.fromCodePoint(0x10ffff)).toBe('\udbff\udfff');
+    expect(String.fromCodePoint(0x1f600)).toBe('\ud83d\ude00');
+  });
+
+  it('utf8ByteLength: a low surrogate after anything but a high one is a lone surrogate of 3 bytes, not half a pair', () => {
+    expect(utf8ByteLength('\u3042\udc00')).toBe(3 + 3); // U+3042, then a lone low surrogate
+    expect(utf8ByteLength('\udc00\udc00')).toBe(3 + 3); // two lone low surrogates
+    expect(utf8ByteLength('\ue000\udc00')).toBe(3 + 3); // U+E000, then a lone low surrogate
+    expect(utf8ByteLength('\ud800\u3042')).toBe(3 + 3); // a lone high surrogate, then U+3042
+    expect(utf8ByteLength('\ud800\udc00\udbff\udfff')).toBe(4 + 4); // U+10000 and U+10FFFF
+  });
+
+  it('decodePlateText: the pairs at both ends of the range are text, also as the very first characters', () => {
+    for (const s of ['\ud800\udc00', '\udbff\udfff', '\ud83d\ude00 well A1', 'A1\t\ud800\udfff\t\udbff\udc00']) {
+      expect(decodePlateText(s)).toBe(s);
+    }
+    // U+E000 and U+FFFF lie outside the surrogate block: ordinary characters.
+    expect(decodePlateText('a\ue000\uffff')).toBe('a\ue000\uffff');
+  });
+
+  it('decodePlateText: every unpaired surrogate is refused on its own line', () => {
+    const unpaired = 'The text contains an unpaired surrogate and is not valid Unicode.';
+    const cases: Array<[string, number]> = [
+      ['a\n\udfff', 2], // the last low surrogate, alone
+      ['a\n\udc00\udc00', 2], // two low surrogates: the second does not pair the first
+      ['a\r\nb\n\ud800\ue000', 3], // a high surrogate followed by U+E000
+      ['\ud800\ue000', 1],
+      ['\udbff\udbff', 1], // two high surrogates
+    ];
+    for (const [s, row] of cases) {
+      expect([s, catchImport(() => decodePlateText(s)).issues[0]]).toEqual([
+        s,
+        { code: 'NOT_TEXT', row, column: null, columnNumber: null, message: unpaired },
+      ]);
+    }
+  });
+});
+
+describe('line numbers, byte numbers and empty texts (hand-worked)', () => {
+  // CR LF, LF and a lone CR each end one line [common practice]; a person counts lines and bytes from 1.
+  it('in a string, CR LF ends one line, not two, and a lone CR ends one', () => {
+    expect(catchImport(() => decodePlateText('a\r\nb\u0000')).issues[0]!.row).toBe(2);
+    expect(catchImport(() => decodePlateText('a\r\n\r\nb\ufffd')).issues[0]!.row).toBe(3);
+    expect(catchImport(() => decodePlateText('a\rb\u0000')).issues[0]!.row).toBe(2);
+    expect(catchImport(() => decodePlateText('a\r\n\rb\n\udc00')).issues[0]!.row).toBe(4);
+  });
+
+  it('a second byte FE or FF after an ordinary first byte is invalid UTF-8 at byte 2, not UTF-16', () => {
+    // FE and FF never appear in UTF-8 (RFC 3629 §1) [confirmed]; "A" is byte 1, the bad byte is byte 2.
+    for (const [second, hex] of [[0xfe, 'FE'], [0xff, 'FF']] as const) {
+      expect(catchImport(() => decodePlateText(new Uint8Array([0x41, second, 0x42]))).issues[0]).toEqual({
+        code: 'NOT_TEXT',
+        row: 1,
+        column: null,
+        columnNumber: null,
+        message: `The file is not valid UTF-8 text (byte 2, value 0x${hex}). Save it as UTF-8.`,
+      });
+    }
+  });
+
+  it('a byte-order mark and nothing else is an empty file, as bytes and as a string', () => {
+    // The mark is not part of the text (RFC 3629 §6) [confirmed]: EF BB BF alone, or U+FEFF alone, leaves nothing.
+    const empty = { code: 'EMPTY_FILE', row: null, column: null, columnNumber: null, message: 'The file is empty.' };
+    expect(catchImport(() => decodePlateText(new Uint8Array([0xef, 0xbb, 0xbf]))).issues).toEqual([empty]);
+    expect(catchImport(() => decodePlateText('\ufeff')).issues).toEqual([empty]);
+  });
+});
