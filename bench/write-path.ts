@@ -163,7 +163,8 @@ export default async function run(): Promise<BenchResult> {
   notes.push(
     `Server CPU (all threads) per answer while 20 writers and 20 readers ran: ${cpuPerAnswer.toFixed(2)} ms (${answered} answers). ` +
       `With 40 clients that each wait for their answer, the mean answer time cannot fall below about 40 × that = ${(40 * cpuPerAnswer).toFixed(0)} ms ` +
-      'while one event loop does most of the work; the goal (write p95 < 100 ms and read p95 < 50 ms at once) needs well under 1 ms per answer.',
+      'while one event loop does most of the work. The goal (write p95 < 100 ms and read p95 < 50 ms at once) is within about 10% of what that allows ' +
+      'on this machine: expect it met in some quiet runs and missed by a few milliseconds in others.',
   );
 
   // 2. 50 mixed clients on the same file, after a restart.
