@@ -2,7 +2,9 @@
 # One Stryker run per server file, each with its own incremental file and JSON report in reports/mutation-rest/
 # (a stopped run keeps nothing, so one file per run keeps what was finished). Idle CPU class: other work on the
 # machine goes first. Usage: bash scripts/mutation-per-file.sh server/domain/assay-engine/engine.ts …
-# CONC=1 for one test runner (default 2). A file whose report exists is skipped.
+# CONC=1 for one test runner (default 2). A file whose report exists is skipped. VITEST_CONFIG=vitest.stryker.subset.config.ts
+# with STRYKER_TESTS=<test files> runs only those test files against each mutant (a lower bound, for the report-pdf
+# files whose mutants are mostly static and would each re-run every related test file).
 cd "$(dirname "$0")/.." || exit 1
 out=reports/mutation-rest
 mkdir -p "$out"
@@ -13,6 +15,7 @@ for f in "$@"; do
     const c = require("./stryker.config.json");
     const [b, out] = process.argv.slice(1);
     c.concurrency = Number(process.env.CONC ?? 2);
+    if (process.env.VITEST_CONFIG) c.vitest = { ...c.vitest, configFile: process.env.VITEST_CONFIG };
     c.incrementalFile = `reports/stryker-rest-${b}.json`;
     c.reporters = ["json", "progress"];
     c.jsonReporter = { fileName: `${out}/${b}.json` };
