@@ -60,6 +60,10 @@ export function createApp(opts: AppOptions): Express {
   const { sequelize, config } = opts;
   const app = express();
   app.disable('x-powered-by');
+  // API answers carry patients' data, and no cache may keep them (Cache-Control: no-store below), so Express's
+  // default ETag (a SHA-1 of every answer's body) buys nothing. A route that serves a stored file with a validator
+  // of its own (a report's PDF, its SHA-256) sets ETag and Cache-Control itself, and Express still answers 304.
+  app.set('etag', false);
   // Behind a TLS proxy (TRUST_PROXY), req.secure and req.ip come from X-Forwarded-Proto/-For, so the Secure
   // session cookie is set and per-address limits see the real client.
   app.set('trust proxy', config.trustProxy);
@@ -100,6 +104,12 @@ export function createApp(opts: AppOptions): Express {
   const client = opts.clientDir && fs.existsSync(path.join(opts.clientDir, 'index.html')) ? opts.clientDir : null;
   if (client) app.use(serveClient(client));
 
+  // RFC 9111 §5.2.2.5: no-store keeps every answer out of the browser's and any proxy's cache (on disk, on shared
+  // machines); OWASP ASVS 4.0 V8.2.1 asks for it on sensitive data [from memory]. A route may set its own.
+  app.use('/api', (_req, res, next) => {
+    res.setHeader('Cache-Control', 'no-store');
+    next();
+  });
   app.use('/api', requireSameOrigin(config.allowedOrigins));
   // One read at a time while writes wait: with SQLite statements kept prepared a case list costs about 2 ms of the
   // event loop, and two in flight took the writers' share (20 writers + 20 readers, interleaved: write p95 about

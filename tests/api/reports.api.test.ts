@@ -129,6 +129,19 @@ describe('signing a case', () => {
     expect(again.status).toBe(304);
   });
 
+  it('when JSON about the case and its report is read, then no cache may keep it and no ETag is sent; the PDF keeps its own validator', async () => {
+    // RFC 9111 §5.2.2.5: no-store, for answers that carry patients' data. The PDF's validator is its stored SHA-256
+    // (RFC 9110 §8.8.3), and it is revalidated on every use (no-cache, RFC 9111 §5.2.2.4).
+    for (const path of [`/api/cases/${c.id}`, `/api/reports/${signed.id}`, '/api/cases', `/api/nothing-here`]) {
+      const res = await clinician.get(path);
+      expect(res.headers['cache-control'], path).toBe('no-store');
+      expect(res.headers.etag, path).toBeUndefined();
+    }
+    const pdf = await clinician.get(`/api/reports/${signed.id}/pdf`);
+    expect(pdf.headers['cache-control']).toBe('private, no-cache');
+    expect(pdf.headers.etag).toBe(`"${signed.pdfSha256}"`);
+  });
+
   it('then the PDF carries patient identity, laboratory, report date, specimen, results with units and interval versions (CLIA 493.1291(c))', async () => {
     // (c)(1) patient name and ID number
     expect(text).toContain(`${c.patient.familyName}, ${c.patient.givenName}`);
