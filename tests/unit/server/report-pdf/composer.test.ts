@@ -2,7 +2,7 @@ import PDFDocument from 'pdfkit';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { COLORS, Composer, CONTENT_WIDTH, PAGE, STYLES } from '../../../../server/domain/report-pdf/layout';
 import { renderReportPdf } from '../../../../server/domain/report-pdf/render-report-pdf';
-import { registerFonts } from '../../../../server/domain/report-pdf/text';
+import { registerFonts, textWidth } from '../../../../server/domain/report-pdf/text';
 import {
   buildCorrectedReportDocument,
   buildRejectedReportDocument,
@@ -10,6 +10,7 @@ import {
 } from '../../../factories/report-document';
 import { readDrawing, type DrawnPage } from '../../../factories/pdf-drawing';
 import { readPdf } from '../../../factories/pdf-text';
+import { faceBottom, latin1InkExtent } from '../../../factories/font-extent';
 
 /*
  * The page geometry and the Composer (layout.ts) checked on PDFs read back with pdfjs-dist, against rules from
@@ -20,7 +21,12 @@ import { readPdf } from '../../../factories/pdf-text';
  *   a little [common practice];
  * - a heading is never left alone at the foot of a page without room for what follows it [common practice];
  * - text contrast: WCAG 2.1 SC 1.4.3 asks for a contrast ratio of at least 4.5:1 for text under 18 pt, with
- *   relative luminance and ratio as defined in WCAG 2.1's glossary (sRGB, (L1 + 0.05)/(L2 + 0.05)) [confirmed].
+ *   relative luminance and ratio as defined in WCAG 2.1's glossary (sRGB, (L1 + 0.05)/(L2 + 0.05)) [confirmed];
+ * - the ink of a line stays inside the line box the layout reserved for it, so nothing the layout placed above or
+ *   below (a rule, a shaded row, the running header) touches its letters; the letters' real extent is read from the
+ *   shipped font files with fontkit (tests/factories/font-extent.ts) [common practice];
+ * - something that exactly fits above the content bottom stays on the page ("Content never goes below this",
+ *   layout.ts's stated contract: reaching it is allowed) [derived].
  */
 
 const A4 = { width: 595.28, height: 841.89 };
@@ -270,5 +276,105 @@ describe('the palette on the printed page (WCAG 2.1 SC 1.4.3)', () => {
   it('when the palette is read, then every entry is a #rrggbb colour (pdfkit ignores any other string and keeps the previous colour)', () => {
     for (const [name, value] of Object.entries(COLORS)) expect(value, name).toMatch(/^#[0-9a-f]{6}$/i);
     for (const [name, style] of Object.entries(STYLES)) expect(style.color, name).toMatch(/^#[0-9a-f]{6}$/i);
+  });
+});
+
+describe('the line box and the letters in it', () => {
+  it('when a line holds the tallest and the deepest Latin-1 letters, then their ink stays inside the line box in every style', async () => {
+    // Read with fontkit from the WOFF files: the tallest printable Latin-1 letter is Å (0.976 em in the regular face,
+    // 0.996 em in SemiBold, ring included), the deepest is g (0.212 em below the baseline). So at 10.5 pt SemiBold
+    // (the heading) the baseline must stand at least 0.996 × 10.5 = 10.458 pt under the top of its box.
+    expect([latin1InkExtent(400).topChar, latin1InkExtent(600).topChar]).toEqual(['Å', 'Å']);
+    const top = 200;
+    for (const [name, style] of Object.entries(STYLES)) {
+      const ink = latin1InkExtent(style.weight);
+      let boxBottom = 0;
+      const { bytes } = await compose((c) => {
+        c.paragraph(`Line ${ink.topChar}${ink.bottomChar}`, style);
+        boxBottom = c.y;
+      }, top);
+      const page = (await readPdf(bytes)).pages[0]!;
+      expect(page.lines, name).toEqual([`Line ${ink.topChar}${ink.bottomChar}`]);
+      const baseline = A4.height - page.baselines[0]!;
+      expect(baseline - ink.top * style.size, `${name}: top of ${ink.topChar} against the top of its box`).toBeGreaterThanOrEqual(top - 0.001);
+      expect(baseline - ink.bottom * style.size, `${name}: foot of ${ink.bottomChar} against the foot of its box`).toBeLessThanOrEqual(boxBottom + 0.001);
+    }
+  });
+
+  it('when a block exactly reaches the content bottom, then it stays on the page; 0.01 pt taller, it starts a new page', async () => {
+    // Worked by hand: the content bottom is 841.89 − 62 = 779.89 pt from the top; from y = 700 a block of 79.89 pt
+    // ends exactly there (both sums are exact in binary floating point: checked below).
+    const y = 700;
+    const fits = PAGE.contentBottom - y;
+    expect(y + fits).toBe(PAGE.contentBottom);
+    for (const [height, pagesAdded] of [
+      [fits, 0],
+      [fits + 0.01, 1],
+    ] as const) {
+      const { newPages } = await compose((c) => c.ensure(height), y);
+      expect(newPages, `a block of ${height} pt from y = ${y}`).toBe(pagesAdded);
+    }
+  });
+
+  it('when a blank line separates two paragraphs in the middle of a page, then it keeps its line: the gap is twice a line step', async () => {
+    const baselines = async (text: string): Promise<number[]> =>
+      (await readPdf((await compose((c) => c.paragraph(text, STYLES.body), 300)).bytes)).pages[0]!.baselines;
+    const [a, b] = await baselines('First paragraph.\nSecond paragraph.');
+    const [c, d] = await baselines('First paragraph.\n\nSecond paragraph.');
+    expect((c! - d!) / (a! - b!)).toBeCloseTo(2, 6);
+  });
+});
+
+describe('Composer.singleLine and runs of blanks', () => {
+  it('when the source text has two spaces between words, then a cut line still ends with the ellipsis straight after the last whole word', async () => {
+    // [common practice] A cut text ends with "…" right after the last character kept (as CSS text-overflow: ellipsis
+    // does); a run of blanks in the source prints as one space (the wrapper's rule, text.ts). The box is made just
+    // wide enough for "Complex I activity …" (with a space) and too narrow for "Complex I activity is…", so the
+    // longest run of whole words that fits is "Complex I activity".
+    const text = 'Complex I activity  is reduced relative to citrate synthase';
+    const { bytes } = await compose((c) => {
+      const width = textWidth(c.doc, 'Complex I activity \u2026', STYLES.body) + 0.5;
+      expect(textWidth(c.doc, 'Complex I activity is\u2026', STYLES.body)).toBeGreaterThan(width);
+      c.drawBlock(c.singleLine(text, STYLES.body, width), c.left, c.y);
+    });
+    expect((await readPdf(bytes)).pages[0]!.lines).toEqual(['Complex I activity\u2026']);
+  });
+});
+
+describe('Composer.heading: its rule and what it keeps with it', () => {
+  it('when a heading has letters with descenders, then its rule lies below the deepest ink any glyph of its face can have', async () => {
+    // The face's deepest glyph reaches 0.266 em under the baseline (SemiBold, 'head' yMin read with fontkit): at
+    // 10.5 pt that is 2.79 pt. The rule's stroke (its width read from the page) must lie wholly below that.
+    const { bytes } = await compose((c) => c.heading('Typology of the assay, by query', 40), 300);
+    const baseline = (await readPdf(bytes)).pages[0]!.baselines[0]!;
+    const rule = (await readDrawing(bytes))[0]!.shapes.find((s) => s.kind === 'stroke' && Math.abs(s.y1 - s.y2) < 0.01)!;
+    expect(rule).toBeDefined();
+    const deepestInk = baseline + faceBottom(STYLES.heading.weight) * STYLES.heading.size;
+    expect(rule.y1 + rule.lineWidth / 2).toBeLessThanOrEqual(deepestInk);
+  });
+
+  it('when a heading is placed ever lower near the foot of the page, then the first line after it is always on its page, and it moves only when both do not fit', async () => {
+    // The heading is kept with one line of body text (keepWith = that line's height). How far a heading moves the
+    // cursor (title, rule and gap) is measured where there is room; the pair fits when start + that + one line
+    // reaches no lower than the content bottom. Start positions step 1 pt across that limit, half a point off it.
+    let footprint = 0;
+    let keep = 0;
+    await compose((c) => {
+      keep = c.measure('First line of the section.', STYLES.body, c.width).height;
+      c.heading('Methods and traceability', keep);
+      footprint = c.y - 300;
+    }, 300);
+    const limit = PAGE.contentBottom - footprint - keep;
+    for (let d = -4.5; d <= 13.5; d += 1) {
+      const start = limit + d;
+      const { bytes } = await compose((c) => {
+        c.heading('Methods and traceability', keep);
+        c.paragraph('First line of the section.', STYLES.body);
+      }, start);
+      const pages = (await readPdf(bytes)).pages;
+      const pageOf = (text: string): number => pages.findIndex((p) => p.lines.includes(text));
+      expect(pageOf('First line of the section.'), `start ${start.toFixed(2)}`).toBe(pageOf('Methods and traceability'));
+      expect(pageOf('Methods and traceability'), `start ${start.toFixed(2)}`).toBe(d < 0 ? 0 : 1);
+    }
   });
 });
