@@ -1,0 +1,53 @@
+import { describe, expect, it } from 'vitest';
+import type { TracePoint } from '@/schemas/assay';
+import { worstOutlier } from '../../../../server/domain/assay-engine/linearity';
+
+/*
+ * worstOutlier on five readings one second apart, every value hand-worked (least squares of the four other
+ * readings, residual SD with n − 2 = 2 degrees of freedom: Draper & Smith, Applied Regression Analysis, ch. 1
+ * [from memory]; externally studentised residual = deviation from the others' line / that SD, floored at the
+ * noise floor).
+ */
+const readings = (a: number[]): TracePoint[] => a.map((value, i) => ({ t: i, a: value }));
+
+describe('worstOutlier on hand-worked five-reading traces', () => {
+  // 0, 0, 10, 0, 0: without reading 2 the others lie exactly on a = 0, so its SD is the floor (1) and it sits
+  // 10 SDs off. Without reading 0 the others (1,0) (2,10) (3,0) (4,0) give mean x 2.5, mean a 2.5, Sxx 5,
+  // Sxy −5, slope −1, SSE 75 − 5 = 70, SD √35; the line at t = 0 reads 5, so reading 0 sits 5/√35 ≈ 0.845 SD
+  // off [worked by hand].
+  const spike = readings([0, 0, 10, 0, 0]);
+
+  it('finds the spike 10 SDs off with exactly five readings', () => {
+    const r = worstOutlier(spike, 0, 4, 3, 1)!;
+    expect(r.index).toBe(2);
+    expect(r.t).toBe(2);
+    expect(r.sds).toBeCloseTo(10, 9);
+    expect(r.deviation).toBeCloseTo(10, 9);
+  });
+
+  it('keeps the largest of several readings beyond a low limit', () => {
+    // Reading 0 (0.845 SD) already passes a limit of 0.5, but the spike (10 SDs) is further.
+    expect(worstOutlier(spike, 0, 4, 0.5, 1)!.index).toBe(2);
+  });
+
+  it('does not flag a reading exactly at the limit (the limit must be exceeded)', () => {
+    expect(worstOutlier(spike, 0, 4, 10, 1)).toBeNull();
+    expect(worstOutlier(spike, 0, 4, 9.999, 1)!.index).toBe(2);
+  });
+
+  it('uses n − 2 degrees of freedom for the SD of the other readings', () => {
+    // 5, 0, 1, 0, 1: without reading 0 the others (1,0) (2,1) (3,0) (4,1) give mean x 2.5, mean a 0.5, Sxx 5,
+    // Sxy 1, slope 0.2, Syy 1, SSE 1 − 0.2 = 0.8, SD √(0.8/2) = √0.4; the line at t = 0 reads 0.5 − 0.5 = 0,
+    // so reading 0 sits 5/√0.4 ≈ 7.906 SDs off [worked by hand]. No floor (0).
+    const r = worstOutlier(readings([5, 0, 1, 0, 1]), 0, 4, 3, 0)!;
+    expect(r.index).toBe(0);
+    expect(r.deviation).toBeCloseTo(5, 9);
+    expect(r.sds).toBeCloseTo(5 / Math.sqrt(0.4), 9);
+  });
+
+  it('keeps the earlier of two readings equally far off (a mirror-symmetric trace)', () => {
+    // 10, 0, 0, 0, 10 is its own mirror image, so readings 0 and 4 are equally far from the others' lines.
+    const r = worstOutlier(readings([10, 0, 0, 0, 10]), 0, 4, 0.1, 0)!;
+    expect(r.index).toBe(0);
+  });
+});
