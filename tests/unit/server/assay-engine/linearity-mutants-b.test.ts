@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import type { TracePoint } from '@/schemas/assay';
-import { worstOutlier } from '../../../../server/domain/assay-engine/linearity';
+import { curvedPart, worstOutlier, type WindowShape } from '../../../../server/domain/assay-engine/linearity';
 
 /*
  * worstOutlier on five readings one second apart, every value hand-worked (least squares of the four other
@@ -49,5 +49,51 @@ describe('worstOutlier on hand-worked five-reading traces', () => {
     // 10, 0, 0, 0, 10 is its own mirror image, so readings 0 and 4 are equally far from the others' lines.
     const r = worstOutlier(readings([10, 0, 0, 0, 10]), 0, 4, 0.1, 0)!;
     expect(r.index).toBe(0);
+  });
+});
+
+/*
+ * curvedPart on kinked traces read once a minute (t in seconds = 60·i, so slopes are per reading = per minute).
+ * The whole window is handed in as straight (its quadratic not significant), so only the part tests decide.
+ * Each trace's reading noise is 0 [worked by hand: most interior readings lie on the line through their
+ * neighbours, so the median pseudo-residual is 0], so any difference between part slopes is significant.
+ */
+const perMinute = (a: number[]): TracePoint[] => a.map((value, i) => ({ t: 60 * i, a: value }));
+const straightWhole = (n: number): WindowShape => ({
+  n,
+  slopePerMin: -0.5,
+  slopeSePerMin: 0.1,
+  startSlopePerMin: -0.5,
+  changePct: 0,
+  curvatureT: 0,
+  significant: false,
+  r2: 0.9,
+});
+const partSettings = { curvatureLimitPct: 5, nearZeroSlopePerMin: 1e-6, readingNoiseFloor: 0 };
+
+describe('curvedPart: the halves and thirds of a window', () => {
+  // Six readings 0, 0, 0, −1, −2, −3: first half flat (slope 0), second half −1/min; the change against the
+  // faster half is +100 % (speeds up) [worked by hand].
+  const kink = perMinute([0, 0, 0, -1, -2, -3]);
+
+  it('compares the halves from six readings on (a flat half then a falling half)', () => {
+    const bent = curvedPart(kink, 0, 5, partSettings, undefined, straightWhole(6));
+    expect(bent).not.toBeNull();
+    expect(bent!.changePct).toBeCloseTo(100, 9);
+    expect(bent!.significant).toBe(true);
+  });
+
+  it('does not judge the parts when the trace noise is unknown (not finite)', () => {
+    expect(curvedPart(kink, 0, 5, partSettings, Number.POSITIVE_INFINITY, straightWhole(6))).toBeNull();
+  });
+
+  // Eight readings 0, 0, 0, −1, −2, −3, −3, −3: the halves (0,0,0,−1) and (−2,−3,−3,−3) both have slope −0.3/min
+  // (Sxy −1.5, Sxx 5), so they agree; the thirds (readings 0–1, 2–4, 5–7) have slopes 0, −1, 0: the ends run
+  // 100 % slower than the middle (an S) [worked by hand].
+  it('compares the middle third with the outer thirds from eight readings on', () => {
+    const s = perMinute([0, 0, 0, -1, -2, -3, -3, -3]);
+    const bent = curvedPart(s, 0, 7, partSettings, undefined, straightWhole(8));
+    expect(bent).not.toBeNull();
+    expect(bent!.changePct).toBeCloseTo(-100, 9);
   });
 });
