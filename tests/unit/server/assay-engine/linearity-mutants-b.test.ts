@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import type { TracePoint } from '@/schemas/assay';
-import { curvedPart, worstOutlier, type WindowShape } from '../../../../server/domain/assay-engine/linearity';
+import { curvedPart, findLinearWindow, worstOutlier, type WindowShape } from '../../../../server/domain/assay-engine/linearity';
 
 /*
  * worstOutlier on five readings one second apart, every value hand-worked (least squares of the four other
@@ -95,5 +95,29 @@ describe('curvedPart: the halves and thirds of a window', () => {
     const bent = curvedPart(s, 0, 7, partSettings, undefined, straightWhole(8));
     expect(bent).not.toBeNull();
     expect(bent!.changePct).toBeCloseTo(-100, 9);
+  });
+});
+
+/*
+ * A window that lies in a lag: the readings just after it (its last reading and the next minPoints − 1 = 2)
+ * run faster than the window, so it says nothing of the reaction's rate (domain.md, the rate window). Readings
+ * once a minute, no start other than the first allowed (lagMaxS 0), noise 0 as above.
+ */
+const onlyFirstStart = { minPoints: 3, curvatureLimitPct: 5, lagMaxS: 0, nearZeroSlopePerMin: 1e-6, readingNoiseFloor: 0 };
+
+describe('findLinearWindow: a flat window followed by a fall', () => {
+  it('keeps the flat readings 0–4 when only one reading follows them (too few to judge what comes after)', () => {
+    const r = findLinearWindow(perMinute([0, 0, 0, 0, 0, -1]), onlyFirstStart);
+    expect(r.kind).toBe('found');
+    expect([r.lo, r.hi]).toEqual([0, 4]);
+  });
+
+  it('refuses the flat readings 0–4 when the next three (0, −1, −2: −1/min) run faster', () => {
+    expect(findLinearWindow(perMinute([0, 0, 0, 0, 0, -1, -2]), onlyFirstStart).kind).toBe('none');
+  });
+
+  it('judges only the next minPoints readings, not a later recovery', () => {
+    // Readings 4–6 (0, −1, −2) fall at −1/min; readings 4–8 (0, −1, −2, −1, 0) would have slope 0 by symmetry.
+    expect(findLinearWindow(perMinute([0, 0, 0, 0, 0, -1, -2, -1, 0]), onlyFirstStart).kind).toBe('none');
   });
 });
