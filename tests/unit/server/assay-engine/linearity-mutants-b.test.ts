@@ -121,3 +121,14 @@ describe('findLinearWindow: a flat window followed by a fall', () => {
     expect(findLinearWindow(perMinute([0, 0, 0, 0, 0, -1, -2, -1, 0]), onlyFirstStart).kind).toBe('none');
   });
 });
+
+describe('findLinearWindow: the window named when a trace is refused', () => {
+  it('names the earliest three-reading window when every part of the trace speeds up', () => {
+    // 0, −1, −3, −6, −10: a fall speeding up by 1/min each minute (a parabola), so no window of it is straight and
+    // no three-reading window slows down: the earliest one (readings 0–2) explains the refusal.
+    const r = findLinearWindow(perMinute([0, -1, -3, -6, -10]), { ...onlyFirstStart, lagMaxS: 600 });
+    expect(r.kind).toBe('none');
+    expect([r.lo, r.hi]).toEqual([0, 2]);
+    expect(r.shape.changePct).toBeGreaterThan(5);
+  });
+});
