@@ -132,3 +132,20 @@ describe('findLinearWindow: the window named when a trace is refused', () => {
     expect(r.shape.changePct).toBeGreaterThan(5);
   });
 });
+
+describe('findLinearWindow: a lag on a trace whose clock does not start at 0', () => {
+  it('counts the lag allowance from the first reading, not from time 0', () => {
+    // Readings every minute from t = 600 s: 0, 0, 0, then −1/min; readings 2–8 lie exactly on one line
+    // (0, −1, …, −6). The two flat opening readings are a lag stepped over: the window starts at reading 2
+    // (t = 720 s, 120 s after the first reading, within lagMaxS 300) and the opening ran 100 % slower.
+    const trace = [0, 0, 0, -1, -2, -3, -4, -5, -6].map((a, i) => ({ t: 600 + 60 * i, a }));
+    const r = findLinearWindow(trace, { ...onlyFirstStart, lagMaxS: 300 });
+    expect(r.kind).toBe('found');
+    if (r.kind !== 'found') return;
+    expect([r.lo, r.hi]).toEqual([2, 8]);
+    expect(r.shape.slopePerMin).toBeCloseTo(-1, 9);
+    expect(r.lag?.readings).toBe(2);
+    expect(r.lag?.toS).toBe(720);
+    expect(r.lag?.slowerPct).toBeCloseTo(100, 9);
+  });
+});
