@@ -1,0 +1,73 @@
+import { describe, expect, it } from 'vitest';
+import type { TracePoint } from '@/schemas/assay';
+import { traceNoiseVariance, windowShape } from '../../../../server/domain/assay-engine/linearity';
+
+/*
+ * Edge cases of the window shape and the trace noise estimate, each checked against a hand-worked value.
+ * - Pseudo-residual of an interior reading: its distance to the straight line through its two neighbours, divided
+ *   by √(1 + w₁² + w₂²) where w₁, w₂ are the linear-interpolation weights (Gasser, Sroka & Jennen-Steinmetz,
+ *   Biometrika 1986 [from memory]); 1.4826 is the normal consistency factor of the MAD [common practice].
+ * - Standard error of a slope s/√Sxx (Draper & Smith, Applied Regression Analysis, ch. 1 [from memory]).
+ * Times are in seconds, x in minutes.
+ */
+const atMinutes = (ys: number[]): TracePoint[] => ys.map((a, i) => ({ t: i * 60, a }));
+const MAD = 1.4826;
+
+describe('traceNoiseVariance: hand-worked pseudo-residuals', () => {
+  it('unevenly spaced 0, 1, 3 min with a bump of 1: w₁ = 2/3, w₂ = 1/3, size 1/√(14/9)', () => {
+    const trace: TracePoint[] = [
+      { t: 0, a: 0 },
+      { t: 60, a: 1 },
+      { t: 180, a: 0 },
+    ];
+    // neighbours' line at 1 min is 0, so the distance is 1; 1 + 4/9 + 1/9 = 14/9 [by hand]
+    const size = 1 / Math.sqrt(14 / 9);
+    expect(traceNoiseVariance(trace)).toBeCloseTo((MAD * size) ** 2, 12);
+  });
+
+  it('odd count: sizes 0.5, 1, 0.5 (unsorted middle 1) → median 0.5', () => {
+    // readings 0, 0, 1, 0, 0 at 1-min steps: distances |0 − 0.5|, |1 − 0|, |0 − 0.5| [by hand], factor √1.5
+    const v = traceNoiseVariance(atMinutes([0, 0, 1, 0, 0]));
+    expect(v).toBeCloseTo((MAD * 0.5 / Math.sqrt(1.5)) ** 2, 12);
+  });
+
+  it('even count: sizes 1, 0.5, 1.5, 3 → median (1 + 1.5)/2 = 1.25', () => {
+    // readings 0, 1, 0, 0, 3, 0: distances |1−0|, |0−0.5|, |0−1.5|, |3−0| [by hand]
+    const v = traceNoiseVariance(atMinutes([0, 1, 0, 0, 3, 0]));
+    expect(v).toBeCloseTo((MAD * 1.25 / Math.sqrt(1.5)) ** 2, 12);
+  });
+});
+
+describe('windowShape: degenerate and noise-bounded windows', () => {
+  it('two readings: slope known, its error unknown (infinite), no curvature can be judged', () => {
+    const s = windowShape(atMinutes([0, 2]), 0, 1, 1e-6);
+    expect(s.slopePerMin).toBeCloseTo(2, 12);
+    expect(s.slopeSePerMin).toBe(Number.POSITIVE_INFINITY);
+    expect(s.significant).toBe(false);
+    expect(s.startSlopePerMin).toBeCloseTo(2, 12);
+  });
+
+  it('readings 0, 1, 0 at 0, 1, 2 min: slope 0, s² = (2/3)/1, Sxx = 2 → SE √(1/3); with noise 0.02 → SE 0.1', () => {
+    const trace = atMinutes([0, 1, 0]);
+    // mean 1/3, residuals −1/3, 2/3, −1/3 → SSE 2/3 [by hand]
+    expect(windowShape(trace, 0, 2, 1e-6).slopeSePerMin).toBeCloseTo(Math.sqrt(1 / 3), 12);
+    expect(windowShape(trace, 0, 2, 1e-6, Number.NaN).slopeSePerMin).toBeCloseTo(Math.sqrt(1 / 3), 12);
+    // the smaller reading noise bounds the error: √(0.02 / 2) = 0.1
+    expect(windowShape(trace, 0, 2, 1e-6, 0.02).slopeSePerMin).toBeCloseTo(0.1, 12);
+  });
+
+  it('an exact straight line 0, 1, 2, 3: quadratic term t = 0, n counts both ends', () => {
+    const s = windowShape(atMinutes([0, 1, 2, 3, 9]), 0, 3, 1e-6);
+    expect(s.n).toBe(4);
+    expect(s.slopePerMin).toBeCloseTo(1, 12);
+    expect(s.curvatureT).toBe(0);
+  });
+
+  it('a NaN reading noise is ignored: the curvature t equals that without noise and is finite', () => {
+    const trace = atMinutes([0, 1.1, 1.9, 2.2, 2.5]);
+    const without = windowShape(trace, 0, 4, 1e-6);
+    const withNaN = windowShape(trace, 0, 4, 1e-6, Number.NaN);
+    expect(Number.isFinite(without.curvatureT)).toBe(true);
+    expect(withNaN.curvatureT).toBe(without.curvatureT);
+  });
+});
