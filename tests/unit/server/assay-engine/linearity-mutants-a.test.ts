@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import type { TracePoint } from '@/schemas/assay';
-import { traceNoiseVariance, windowShape } from '../../../../server/domain/assay-engine/linearity';
+import { curvedPart, traceNoiseVariance, windowShape } from '../../../../server/domain/assay-engine/linearity';
 
 /*
  * Edge cases of the window shape and the trace noise estimate, each checked against a hand-worked value.
@@ -8,6 +8,10 @@ import { traceNoiseVariance, windowShape } from '../../../../server/domain/assay
  *   by √(1 + w₁² + w₂²) where w₁, w₂ are the linear-interpolation weights (Gasser, Sroka & Jennen-Steinmetz,
  *   Biometrika 1986 [from memory]); 1.4826 is the normal consistency factor of the MAD [common practice].
  * - Standard error of a slope s/√Sxx (Draper & Smith, Applied Regression Analysis, ch. 1 [from memory]).
+ * - Halves test: slopes of two 3-reading halves compared by Student's t with pooled residual variance
+ *   SSE/(n − 4) on n − 4 df, SE of the difference √(s²·(1/Sxx₁ + 1/Sxx₂)) (Zar, Biostatistical Analysis, ch. 18
+ *   [from memory]); t(0.995, 2 df) = 9.925 (standard t tables [from memory]). Residual pattern (+e, −2e, +e) on
+ *   x = 0, 1, 2 leaves the slope unchanged and adds SSE 6e² [by hand: orthogonal to 1 and x].
  * Times are in seconds, x in minutes.
  */
 const atMinutes = (ys: number[]): TracePoint[] => ys.map((a, i) => ({ t: i * 60, a }));
@@ -69,5 +73,46 @@ describe('windowShape: degenerate and noise-bounded windows', () => {
     const withNaN = windowShape(trace, 0, 4, 1e-6, Number.NaN);
     expect(Number.isFinite(without.curvatureT)).toBe(true);
     expect(withNaN.curvatureT).toBe(without.curvatureT);
+  });
+});
+
+describe('windowShape: three readings leave no residual degrees of freedom', () => {
+  it('1.1, 0.7, 0.55: the quadratic passes through all three, so its bend (c2 = 0.125 > 0) has t = +∞', () => {
+    // second difference 0.55 − 1.4 + 1.1 = 0.25 = 2·c2 [by hand]; residual variance 0 even when a noise is given
+    expect(windowShape(atMinutes([1.1, 0.7, 0.55]), 0, 2, 1e-6, 1e-4).curvatureT).toBe(Number.POSITIVE_INFINITY);
+  });
+});
+
+/** Six readings at 1-min steps: halves of slope 1 and 0.5, each with residual pattern (+e, −2e, +e). */
+const halvesTrace = (e: number): TracePoint[] =>
+  atMinutes([0 + e, 1 - 2 * e, 2 + e, 3 + e, 3.5 - 2 * e, 4 + e]);
+const settings = { curvatureLimitPct: 5, nearZeroSlopePerMin: 1e-6 };
+/** The whole-window quadratic test taken as passed, so only the halves decide. */
+const passedWhole = (trace: TracePoint[]) => ({ ...windowShape(trace, 0, trace.length - 1, 1e-6), significant: false });
+const halves = (e: number, noise: number, nearZero = 1e-6) => {
+  const trace = halvesTrace(e);
+  return curvedPart(trace, 0, 5, { ...settings, nearZeroSlopePerMin: nearZero }, noise, passedWhole(trace));
+};
+
+describe('curvedPart: halves test worked by hand', () => {
+  it('e = 0.025: s² = 12e²/2, SE = e√6 = 0.0612, t = 0.5/0.0612 = 8.16 < 9.925 → straight', () => {
+    expect(halves(0.025, 1)).toBeNull();
+  });
+
+  it('e = 0.017: t = 0.5/(0.017·√6) = 12.0 > 9.925 → bent, second half 50% slower', () => {
+    const bent = halves(0.017, 1);
+    expect(bent).not.toBeNull();
+    expect(bent!.significant).toBe(true);
+    expect(bent!.changePct).toBeCloseTo(-50, 6);
+  });
+
+  it('no residuals (e = 0) and a reading noise of 0.01: the parts\' variance 0 is smaller, t = ∞ → bent', () => {
+    // with the noise instead, SE = √(0.01·1) = 0.1 and t = 5 < 9.925 would pass it
+    expect(halves(0, 0.01)!.changePct).toBeCloseTo(-50, 9);
+  });
+
+  it('near-zero slope threshold: faster half 1/min below a threshold of 2 → no change; at exactly 1 → still judged', () => {
+    expect(halves(0, 0.01, 2)).toBeNull();
+    expect(halves(0, 0.01, 1)!.changePct).toBeCloseTo(-50, 9);
   });
 });
