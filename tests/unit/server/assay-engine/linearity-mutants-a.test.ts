@@ -116,3 +116,18 @@ describe('curvedPart: halves test worked by hand', () => {
     expect(halves(0, 0.01, 1)!.changePct).toBeCloseTo(-50, 9);
   });
 });
+
+describe('curvedPart: thirds test worked by hand', () => {
+  // Nine readings, thirds of slope 0.5, 1, 0.5, each with residual pattern (+e, −2e, +e): pooled s² = 18e²/3 = 6e²;
+  // contrast m − (a + c)/2 = 0.5 with weights (−½, 1, −½), SE = √(6e²·(¼ + 1 + ¼)/2) = e√4.5;
+  // t(0.995, 3 df) = 5.841 (standard t tables [from memory]).
+  it('e = 0.033: t = 0.5/(0.033·√4.5) = 7.14 > 5.841 → the middle runs faster than the ends', () => {
+    const e = 0.033;
+    const r = [e, -2 * e, e];
+    const ys = [0, 0.5, 1, 2, 3, 4, 4.5, 5, 5.5].map((y, i) => y + r[i % 3]!);
+    const trace = atMinutes(ys);
+    const bent = curvedPart(trace, 0, 8, settings, 1, passedWhole(trace));
+    expect(bent).not.toBeNull();
+    expect(bent!.changePct).toBeCloseTo(-50, 6);
+  });
+});
