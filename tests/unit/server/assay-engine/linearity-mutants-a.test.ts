@@ -131,3 +131,14 @@ describe('curvedPart: thirds test worked by hand', () => {
     expect(bent!.changePct).toBeCloseTo(-50, 6);
   });
 });
+
+describe('windowShape: a parabola read at short intervals', () => {
+  // A = 0.1 + 0.6·x − 3·x² (x in min): the quadratic's start rate is 0.6; for evenly spaced x from 0 to X the
+  // line's slope is the rate at the middle, b + c·X [by hand]. Short spacings make the fit's sums tiny, not singular.
+  it.each([1, 0.05])('three readings %s s apart: start rate 0.6, line slope 0.6 − 3·X', (step) => {
+    const trace = [0, 1, 2].map((k) => ({ t: k * step, a: 0.1 + 0.6 * ((k * step) / 60) - 3 * ((k * step) / 60) ** 2 }));
+    const shape = windowShape(trace, 0, 2, 1e-6);
+    expect(shape.startSlopePerMin).toBeCloseTo(0.6, 6);
+    expect(shape.slopePerMin).toBeCloseTo(0.6 - 3 * ((2 * step) / 60), 6);
+  });
+});
