@@ -142,3 +142,14 @@ describe('windowShape: a parabola read at short intervals', () => {
     expect(shape.slopePerMin).toBeCloseTo(0.6 - 3 * ((2 * step) / 60), 6);
   });
 });
+
+describe('windowShape: near-zero threshold of the change', () => {
+  // A = x − 0.25·x² at x = 0, 1, 2 min (0, 0.75, 1): start rate 1, line slope 1 − 0.25·2 = 0.5 → −50% [by hand]
+  const trace = atMinutes([0, 0.75, 1]);
+  it('a faster rate exactly at the threshold (1/min) is still judged: −50%', () => {
+    expect(windowShape(trace, 0, 2, 1).changePct).toBeCloseTo(-50, 9);
+  });
+  it('below a threshold of 1.5/min the change is taken as 0', () => {
+    expect(windowShape(trace, 0, 2, 1.5).changePct).toBe(0);
+  });
+});
