@@ -153,3 +153,16 @@ describe('windowShape: near-zero threshold of the change', () => {
     expect(windowShape(trace, 0, 2, 1.5).changePct).toBe(0);
   });
 });
+
+describe('curvedPart: a tent has a zero thirds contrast', () => {
+  // 0,1,2,3 | 3,3,3,3 | 3,2,1,0 at 1-min steps: thirds' slopes 1, 0, −1 with no residuals, so the contrast
+  // m − (a + c)/2 = 0 and its t is 0 however small the error; the halves' slopes are mirror images (same size)
+  // [by hand]. Only the whole-window quadratic test can see this shape.
+  const trace = atMinutes([0, 1, 2, 3, 3, 3, 3, 3, 3, 2, 1, 0]);
+  it('the part tests alone let it pass', () => {
+    expect(curvedPart(trace, 0, 11, settings, 0.01, passedWhole(trace))).toBeNull();
+  });
+  it('the whole-window quadratic test flags it', () => {
+    expect(curvedPart(trace, 0, 11, settings, 0.01)).not.toBeNull();
+  });
+});
