@@ -35,18 +35,11 @@ for part in domain auth lib; do
   fi
   echo "mutation:changed: server/$part, changed since $base: $files (at most ${left} s)"
   mkdir -p reports
-  node -e '
-    const [config, part] = process.argv.slice(1);
-    const c = require(`./${config}`);
-    Object.assign(c, {
-      incremental: false,
-      concurrency: 2,
-      tempDirName: `.stryker-tmp-changed-${part}`,
-      reporters: ["clear-text", "progress", "json"],
-      jsonReporter: { fileName: `reports/mutation-changed-${part}.json` },
-    });
-    require("fs").writeFileSync(`reports/mutation-changed-${part}.config.json`, JSON.stringify(c, null, 2));
-  ' "$config" "$part"
+  node scripts/stryker-config-copy.mjs "$config" "reports/mutation-changed-$part.config.json" "{
+    \"incremental\": false, \"concurrency\": 2, \"tempDirName\": \".stryker-tmp-changed-$part\",
+    \"reporters\": [\"clear-text\", \"progress\", \"json\"],
+    \"jsonReporter\": {\"fileName\": \"reports/mutation-changed-$part.json\"}
+  }"
   timeout --signal=INT "$left" npx stryker run "reports/mutation-changed-$part.config.json" --mutate "$files" 2>&1 | tail -n 60
   rc=${PIPESTATUS[0]}
   if [ "$rc" -eq 124 ] || [ "$rc" -eq 130 ]; then

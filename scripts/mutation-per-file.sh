@@ -11,18 +11,12 @@ mkdir -p "$out"
 for f in "$@"; do
   b=$(basename "$f" .ts)
   [ -f "$out/$b.json" ] && continue
-  node -e '
-    const c = require("./stryker.config.json");
-    const [b, out] = process.argv.slice(1);
-    c.concurrency = Number(process.env.CONC ?? 2);
-    if (process.env.VITEST_CONFIG) c.vitest = { ...c.vitest, configFile: process.env.VITEST_CONFIG };
-    c.incrementalFile = `reports/stryker-rest-${b}.json`;
-    c.reporters = ["json", "progress"];
-    c.jsonReporter = { fileName: `${out}/${b}.json` };
-    c.thresholds = { high: 90, low: 85, break: null };
-    c.tempDirName = `.stryker-tmp-${b}`;
-    require("fs").writeFileSync(`${out}/${b}.config.json`, JSON.stringify(c, null, 2));
-  ' "$b" "$out"
+  vitest=${VITEST_CONFIG:+", \"vitest\": {\"configFile\": \"$VITEST_CONFIG\"}"}
+  node scripts/stryker-config-copy.mjs stryker.config.json "$out/$b.config.json" "{
+    \"concurrency\": ${CONC:-2}, \"incrementalFile\": \"reports/stryker-rest-$b.json\",
+    \"reporters\": [\"json\", \"progress\"], \"jsonReporter\": {\"fileName\": \"$out/$b.json\"},
+    \"thresholds\": {\"high\": 90, \"low\": 85, \"break\": null}, \"tempDirName\": \".stryker-tmp-$b\"$vitest
+  }"
   echo "start $f $(date -u +%T)" >> "$out/progress.txt"
   chrt -i 0 nice -n 19 npx stryker run "$out/$b.config.json" --mutate "$f" > "$out/$b.log" 2>&1
   echo "end $f rc=$? $(date -u +%T)" >> "$out/progress.txt"
