@@ -139,6 +139,8 @@ export interface WindowShape {
   curvatureT: number;
   significant: boolean;
   r2: number;
+  /** Set when the window is bent only once this reading (far off its neighbours) is left out (curvedPart). */
+  leftOut?: { index: number; t: number };
 }
 
 export interface LinearitySettings {
@@ -148,6 +150,8 @@ export interface LinearitySettings {
   nearZeroSlopePerMin: number;
   /** The instrument's reading noise, absorbance SD: the least noise a trace is taken to have (0 when not given). */
   readingNoiseFloor?: number;
+  /** A reading this many noise SDs off its neighbours is also left out when judging a window (not given: none is). */
+  outlierLimitSd?: number;
 }
 
 export function isStraight(shape: WindowShape, curvatureLimitPct: number): boolean {
@@ -201,7 +205,17 @@ function partSlopes(trace: readonly TracePoint[], lo: number, hi: number, parts:
  * never more exact than that, even where a trace looks noise-free.
  */
 export function traceNoiseVariance(trace: readonly TracePoint[], floor = 0): number {
-  const sizes: number[] = [];
+  const sizes = pseudoResiduals(trace).slice(1, -1);
+  if (sizes.length === 0) return Number.NaN;
+  sizes.sort((x, y) => x - y);
+  const m = sizes.length;
+  const median = m % 2 === 1 ? sizes[(m - 1) / 2]! : (sizes[m / 2 - 1]! + sizes[m / 2]!) / 2;
+  return Math.max(1.4826 * median, floor) ** 2;
+}
+
+/** Each reading's pseudo-residual size (see traceNoiseVariance), in absorbance; 0 for the first and last reading, which have one neighbour. */
+function pseudoResiduals(trace: readonly TracePoint[]): number[] {
+  const sizes = trace.map(() => 0);
   for (let i = 1; i < trace.length - 1; i += 1) {
     const before = trace[i - 1]!;
     const at = trace[i]!;
@@ -209,13 +223,24 @@ export function traceNoiseVariance(trace: readonly TracePoint[], floor = 0): num
     const span = after.t - before.t;
     const w1 = (after.t - at.t) / span;
     const w2 = (at.t - before.t) / span;
-    sizes.push(Math.abs(at.a - (w1 * before.a + w2 * after.a)) / Math.sqrt(1 + w1 * w1 + w2 * w2));
+    sizes[i] = Math.abs(at.a - (w1 * before.a + w2 * after.a)) / Math.sqrt(1 + w1 * w1 + w2 * w2);
   }
-  if (sizes.length === 0) return Number.NaN;
-  sizes.sort((x, y) => x - y);
-  const m = sizes.length;
-  const median = m % 2 === 1 ? sizes[(m - 1) / 2]! : (sizes[m / 2 - 1]! + sizes[m / 2]!) / 2;
-  return Math.max(1.4826 * median, floor) ** 2;
+  return sizes;
+}
+
+/**
+ * The reading of trace[lo..hi] that stands furthest off the line through its two neighbours, when that distance
+ * exceeds `limitSd` times the trace's reading noise (a bubble, a knock): null when none does. Judged against its
+ * neighbours rather than a line through the window, so a bend in the window does not hide it.
+ */
+export function isolatedReading(trace: readonly TracePoint[], lo: number, hi: number, limitSd: number, noiseVariance: number): number | null {
+  const sizes = pseudoResiduals(trace);
+  const limit = limitSd * Math.sqrt(noiseVariance);
+  let worst: number | null = null;
+  for (let i = lo; i <= hi; i += 1) {
+    if (sizes[i]! > limit && (worst === null || sizes[i]! > sizes[worst]!)) worst = i;
+  }
+  return worst;
 }
 
 /** Student's t of a contrast Σ wᵢ·slopeᵢ of part slopes: significant at α = 0.01 two-sided (see CURVATURE_ALPHA). */
@@ -246,9 +271,30 @@ export function curvedPart(
   trace: readonly TracePoint[],
   lo: number,
   hi: number,
-  settings: Pick<LinearitySettings, 'curvatureLimitPct' | 'nearZeroSlopePerMin' | 'readingNoiseFloor'>,
+  settings: Pick<LinearitySettings, 'curvatureLimitPct' | 'nearZeroSlopePerMin' | 'readingNoiseFloor' | 'outlierLimitSd'>,
   noise: number = traceNoiseVariance(trace, settings.readingNoiseFloor),
   whole: WindowShape = windowShape(trace, lo, hi, settings.nearZeroSlopePerMin, noise),
+): WindowShape | null {
+  const bent = curvedAsRead(trace, lo, hi, settings, noise, whole);
+  if (bent !== null || settings.outlierLimitSd === undefined || hi - lo + 1 < 4) return bent;
+  // One reading far off its neighbours can hide a bend: a bubble in the middle of a slowing window straightens its
+  // quadratic and its halves. The window is straight only if it is also straight without that reading.
+  const suspect = isolatedReading(trace, lo, hi, settings.outlierLimitSd, noise);
+  if (suspect === null) return null;
+  const rest = [...trace.slice(lo, suspect), ...trace.slice(suspect + 1, hi + 1)];
+  const last = rest.length - 1;
+  const without = curvedAsRead(rest, 0, last, settings, noise, windowShape(rest, 0, last, settings.nearZeroSlopePerMin, noise));
+  return without && { ...without, leftOut: { index: suspect, t: trace[suspect]!.t } };
+}
+
+/** curvedPart with every reading of the window counted. */
+function curvedAsRead(
+  trace: readonly TracePoint[],
+  lo: number,
+  hi: number,
+  settings: Pick<LinearitySettings, 'curvatureLimitPct' | 'nearZeroSlopePerMin'>,
+  noise: number,
+  whole: WindowShape,
 ): WindowShape | null {
   if (!isStraight(whole, settings.curvatureLimitPct)) return whole;
   const n = hi - lo + 1;
@@ -320,7 +366,7 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
     for (let i = lo; i <= last; i += 1) sums.add(trace[i]!);
     for (let hi = last; hi - lo + 1 >= minPoints; hi -= 1) {
       const shape = sums.shape(settings.nearZeroSlopePerMin, noise);
-      if (isStraight(shape, settings.curvatureLimitPct) && curvedPart(trace, lo, hi, settings, noise, shape) === null) {
+      if (isStraight(shape, settings.curvatureLimitPct) && hasEnoughReadings(trace, lo, hi, minPoints, settings, noise) && curvedPart(trace, lo, hi, settings, noise, shape) === null) {
         if (!runsFasterAfter(trace, lo, hi, minPoints, settings, noise)) candidates.push({ lo, hi, shape });
         break;
       }
@@ -359,6 +405,12 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
     };
   }
   return { kind: 'found', lo: chosen.lo, hi: chosen.hi, shape: chosen.shape, lag };
+}
+
+/** Whether trace[lo..hi] holds minPoints readings besides one far off its neighbours (isolatedReading), which does not count. */
+function hasEnoughReadings(trace: readonly TracePoint[], lo: number, hi: number, minPoints: number, settings: Pick<LinearitySettings, 'outlierLimitSd'>, noise: number): boolean {
+  if (hi - lo + 1 > minPoints || settings.outlierLimitSd === undefined) return true;
+  return isolatedReading(trace, lo, hi, settings.outlierLimitSd, noise) === null;
 }
 
 /**

@@ -124,12 +124,15 @@ function flagCurvature(trace: readonly TracePoint[], lo: number, hi: number, lab
   const change = shape.changePct;
   const fromS = trace[lo]!.t;
   const toS = trace[hi]!.t;
+  const leftOut = shape.leftOut
+    ? `; judged without reading ${shape.leftOut.index + 1} (t = ${fmt(shape.leftOut.t)} s), which lies far off its neighbours and hid the bend`
+    : '';
   flags.push({
     code: 'CURVATURE',
     message:
-      change < 0
+      (change < 0
         ? `${label} trace between ${fmt(fromS)} and ${fmt(toS)} s is curved: the straight line's rate is ${fmt(-change, 3)}% below the rate at the window's start (limit ${fmt(settings.curvatureLimitPct, 3)}%), so the activity is underestimated; a shorter, earlier window or a diluted sample gives the initial rate`
-        : `${label} trace between ${fmt(fromS)} and ${fmt(toS)} s speeds up: the rate at the window's start is ${fmt(change, 3)}% slower than the straight line's (limit ${fmt(settings.curvatureLimitPct, 3)}%), as after a lag; start the window later`,
+        : `${label} trace between ${fmt(fromS)} and ${fmt(toS)} s speeds up: the rate at the window's start is ${fmt(change, 3)}% slower than the straight line's (limit ${fmt(settings.curvatureLimitPct, 3)}%), as after a lag; start the window later`) + leftOut,
     values: { changePct: change, limitPct: settings.curvatureLimitPct },
   });
 }

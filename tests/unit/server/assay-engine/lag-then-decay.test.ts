@@ -1,7 +1,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import type { TracePoint } from '@/schemas/assay';
-import { findLinearWindow } from '../../../../server/domain/assay-engine/linearity';
+import { curvedPart, findLinearWindow } from '../../../../server/domain/assay-engine/linearity';
 import { fitTraceRange } from '../../../../server/domain/assay-engine/regression';
 
 /*
@@ -93,6 +93,68 @@ describe('automatic window on a lag followed by a first-order decay', () => {
         },
       ),
       { numRuns: 400, seed: 20261202 },
+    );
+  });
+});
+
+describe('automatic window on a lag followed by a first-order decay, with one bubble', () => {
+  /*
+   * A bubble reads as one reading well above its neighbours. In the middle of a slowing window it straightens
+   * the window's quadratic and its halves, so a window a third to a half below the initial rate passed with only
+   * an outlier flag (the rate check, 2 December 2026: 60 s flat, then 0.8·e^(−0.01·(t − 60)) read every 10 s,
+   * +0.08 at 150 s gave −0.199 per minute over 110–190 s against −0.48 at 60 s, 59% low). The promise: the bubble
+   * never makes a bent stretch pass, so the window given, read on the same trace without the bubble, keeps the
+   * 8% promise above; a window of the laboratory's minimum that holds the bubble is not taken (four good readings
+   * are fewer than the minimum of five).
+   */
+  const withBubble = (trace: TracePoint[], at: number, size: number) => trace.map((p, i) => (i === at ? { t: p.t, a: p.a + size } : p));
+
+  it('the trace of the rate check: no window, as without the bubble (every five readings after the lag fall by more than 5%)', () => {
+    const o = { lagS: 60, stepS: 10, durationS: 300, a1: 0.8, aInf: 0.2, k: 0.01 };
+    const clean = lagThenDecay(o);
+    expect(findLinearWindow(clean, { ...settings, outlierLimitSd: 4 }).kind).toBe('none');
+    for (const atS of [110, 130, 150, 170]) {
+      const found = findLinearWindow(withBubble(clean, atS / 10, 0.08), { ...settings, outlierLimitSd: 4 });
+      expect({ atS, kind: found.kind }).toEqual({ atS, kind: 'none' });
+    }
+  });
+
+  it('a straight trace with a bubble still gets a window', () => {
+    // A line falling 0.1 per minute, read every 10 s for 5 minutes, +0.08 at 150 s: straight without the bubble,
+    // so leaving the bubble out must not cost the window; the bubble is the outlier check's to flag (rates.ts).
+    const line = Array.from({ length: 31 }, (_, i) => ({ t: 10 * i, a: 1 - (0.1 * 10 * i) / 60 }));
+    const found = findLinearWindow(withBubble(line, 15, 0.08), { ...settings, outlierLimitSd: 4 });
+    expect(found.kind).toBe('found');
+    expect(found.hi - found.lo + 1).toBeGreaterThanOrEqual(16);
+  });
+
+  it('for any such trace and one bubble of 0.03–0.1 at any inner reading, the window given is straight (within 7%) on the trace without the bubble', () => {
+    fc.assert(
+      fc.property(
+        fc.record({
+          lagS: fc.integer({ min: 0, max: 90 }),
+          stepS: fc.constantFrom(2, 5, 10),
+          durationS: fc.integer({ min: 120, max: 300 }),
+          a1: fc.double({ min: 0.2, max: 1.5, noNaN: true }),
+          aInf: fc.double({ min: 0, max: 0.3, noNaN: true }),
+          fallPerReading: fc.double({ min: 0.0005, max: 0.03, noNaN: true }),
+          bubble: fc.double({ min: 0.03, max: 0.1, noNaN: true }),
+          place: fc.double({ min: 0, max: 1, noNaN: true }),
+        }),
+        ({ fallPerReading, bubble, place, ...rest }) => {
+          const o = { ...rest, k: fallPerReading / rest.stepS };
+          const clean = lagThenDecay(o);
+          const at = 1 + Math.floor(place * (clean.length - 2));
+          const found = findLinearWindow(withBubble(clean, at, bubble), { ...settings, readingNoiseFloor: 0, outlierLimitSd: 4 });
+          fc.pre(found.kind === 'found');
+          if (found.kind !== 'found') return;
+          // Judged at 7% rather than 5%: the bubble moves the trace's noise figure (a median) by a few percent, which
+          // can tip the significance of a window bent just past 5% (seen: −6.0% on a 2-s trace). Before the rule the
+          // first failure came after 84 traces, a window bent past 7%; with it 3,000 pass (3 December 2026).
+          expect(curvedPart(clean, found.lo, found.hi, { ...settings, readingNoiseFloor: 0, curvatureLimitPct: 7 })).toBeNull();
+        },
+      ),
+      { numRuns: 3000, seed: 20261203 },
     );
   });
 });

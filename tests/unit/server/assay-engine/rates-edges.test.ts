@@ -259,3 +259,30 @@ describe('the automatic window', () => {
     expect(flags.find((x) => x.code === 'LAG_EXCLUDED')!.message).toMatch(/^total trace: the first 1 reading \(before 10 s\) were left out/);
   });
 });
+
+describe('a bubble in a slowing window', () => {
+  // 60 s flat at 1.0, then A = 0.2 + 0.8·e^(−0.01·(t − 60)) read every 10 s to 300 s, +0.08 at 150 s: the trace of
+  // the rate check that gave −0.199 per minute over 110–190 s, 59% below the initial rate 0.8 × 0.01 × 60 = 0.48
+  // per minute [analytic: the derivative of a first-order decay at its start], with only lag, r² and outlier flags.
+  const trace = Array.from({ length: 31 }, (_, i) => {
+    const t = 10 * i;
+    return { t, a: (t < 60 ? 1 : 0.2 + 0.8 * Math.exp(-0.01 * (t - 60))) + (t === 150 ? 0.08 : 0) };
+  });
+
+  it('the automatic window refuses, as on the same trace without the bubble', () => {
+    const flags: Flag[] = [];
+    expect(fitTrace(trace, 'total', settings, { kind: 'auto' }, { checkR2: true }, flags)).toBeNull();
+    expect(codes(flags)).toEqual(['NO_LINEAR_WINDOW']);
+  });
+
+  it('the window 110–190 s set by hand is flagged curved, judged without the bubble, and the flag names that reading', () => {
+    const flags: Flag[] = [];
+    fitTrace(trace, 'total', settings, { kind: 'manual', window: { fromS: 110, toS: 190 } }, { checkR2: true }, flags);
+    const curved = flags.find((f) => f.code === 'CURVATURE');
+    // Without the bubble the eight readings 110–190 s run from the rate at 110 s, 0.48·e^(−0.5) = 0.291 per
+    // minute, down to 0.48·e^(−1.3) = 0.131 [analytic]: far past the 5% limit.
+    expect(curved?.message).toContain('reading 16 (t = 150 s)');
+    expect(curved?.values?.changePct).toBeLessThan(-5);
+    expect(codes(flags)).toContain('OUTLIER_READING');
+  });
+});
