@@ -72,12 +72,12 @@ export class WindowSums {
   }
 
   /** The straight line alone: slope per minute, residual sum of squares and Sxx (needs n ≥ 2). */
-  line(): { slope: number; sse: number; sxx: number } {
+  line(): { slope: number; sse: number; sxx: number; n: number } {
     const sxx = this.sx2 - (this.sx * this.sx) / this.n;
     const sxy = this.sxy - (this.sx * this.sy) / this.n;
     const syy = this.syy - (this.sy * this.sy) / this.n;
     const slope = sxy / sxx;
-    return { slope, sse: Math.max(0, syy - slope * sxy), sxx };
+    return { slope, sse: Math.max(0, syy - slope * sxy), sxx, n: this.n };
   }
 
   /**
@@ -170,10 +170,10 @@ export function windowShape(trace: readonly TracePoint[], lo: number, hi: number
 const MIN_FOR_HALVES = 6;
 const MIN_FOR_THIRDS = 8;
 
-/** Slope (per minute), residual sum of squares and Sxx of a straight line through trace[lo..hi]. */
-function lineSums(trace: readonly TracePoint[], lo: number, hi: number): { slope: number; sse: number; sxx: number } {
+/** Slope (per minute), residual sum of squares, Sxx and count of a straight line through trace[lo..hi], without reading `skip` when given. */
+function lineSums(trace: readonly TracePoint[], lo: number, hi: number, skip: number | null = null): ReturnType<WindowSums['line']> {
   const sums = new WindowSums(trace[lo]!.t, trace[lo]!.a);
-  for (let i = lo; i <= hi; i += 1) sums.add(trace[i]!);
+  for (let i = lo; i <= hi; i += 1) if (i !== skip) sums.add(trace[i]!);
   return sums.line();
 }
 
@@ -234,8 +234,11 @@ function pseudoResiduals(trace: readonly TracePoint[]): number[] {
  * neighbours rather than a line through the window, so a bend in the window does not hide it.
  */
 export function isolatedReading(trace: readonly TracePoint[], lo: number, hi: number, limitSd: number, noiseVariance: number): number | null {
-  const sizes = pseudoResiduals(trace);
-  const limit = limitSd * Math.sqrt(noiseVariance);
+  return worstIn(pseudoResiduals(trace), lo, hi, limitSd * Math.sqrt(noiseVariance));
+}
+
+/** The index in lo..hi of the largest of `sizes` above `limit`, or null. */
+function worstIn(sizes: readonly number[], lo: number, hi: number, limit: number): number | null {
   let worst: number | null = null;
   for (let i = lo; i <= hi; i += 1) {
     if (sizes[i]! > limit && (worst === null || sizes[i]! > sizes[worst]!)) worst = i;
@@ -277,14 +280,28 @@ export function curvedPart(
 ): WindowShape | null {
   const bent = curvedAsRead(trace, lo, hi, settings, noise, whole);
   if (bent !== null || settings.outlierLimitSd === undefined || hi - lo + 1 < 4) return bent;
-  // One reading far off its neighbours can hide a bend: a bubble in the middle of a slowing window straightens its
-  // quadratic and its halves. The window is straight only if it is also straight without that reading.
   const suspect = isolatedReading(trace, lo, hi, settings.outlierLimitSd, noise);
-  if (suspect === null) return null;
-  const rest = [...trace.slice(lo, suspect), ...trace.slice(suspect + 1, hi + 1)];
+  return suspect === null ? null : curvedWithout(trace, lo, hi, suspect, settings, noise);
+}
+
+/**
+ * curvedPart of trace[lo..hi] without reading `skip`, one far off its neighbours (isolatedReading). Such a reading can
+ * hide a bend: a bubble in the middle of a slowing window straightens its quadratic and its halves. So a window
+ * must be straight both with and without it (judged without it alone, a window straddling a lag could drop the
+ * reading at the kink and pass); the reading itself is the outlier check's to flag (rates.ts).
+ */
+function curvedWithout(
+  trace: readonly TracePoint[],
+  lo: number,
+  hi: number,
+  skip: number,
+  settings: Pick<LinearitySettings, 'curvatureLimitPct' | 'nearZeroSlopePerMin'>,
+  noise: number,
+): WindowShape | null {
+  const rest = [...trace.slice(lo, skip), ...trace.slice(skip + 1, hi + 1)];
   const last = rest.length - 1;
-  const without = curvedAsRead(rest, 0, last, settings, noise, windowShape(rest, 0, last, settings.nearZeroSlopePerMin, noise));
-  return without && { ...without, leftOut: { index: suspect, t: trace[suspect]!.t } };
+  const bent = curvedAsRead(rest, 0, last, settings, noise, windowShape(rest, 0, last, settings.nearZeroSlopePerMin, noise));
+  return bent && { ...bent, leftOut: { index: skip, t: trace[skip]!.t } };
 }
 
 /** curvedPart with every reading of the window counted. */
@@ -355,19 +372,39 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
   const last = trace.length - 1;
   const minPoints = Math.max(3, settings.minPoints);
   const t0 = trace[0]!.t;
-  const candidates: { lo: number; hi: number; shape: WindowShape }[] = [];
+  // `rate`: the window's slope without its isolated reading (isolatedReading), if any: one bubble must not make a
+  // flat stretch look like the fastest rate, nor hide that the readings after it run faster.
+  const candidates: { lo: number; hi: number; shape: WindowShape; rate: number }[] = [];
   let firstShortest: { lo: number; hi: number; shape: WindowShape } | null = null;
   let firstSlowing: { lo: number; hi: number; shape: WindowShape } | null = null;
 
   const noise = traceNoiseVariance(trace, settings.readingNoiseFloor);
+  const sizes = pseudoResiduals(trace);
+  const limit = settings.outlierLimitSd === undefined ? Number.POSITIVE_INFINITY : settings.outlierLimitSd * Math.sqrt(noise);
+  // worstFrom[i]: the reading of trace[lo..i] furthest off its neighbours beyond the limit (isolatedReading), −1 if none.
+  const worstFrom = new Array<number>(trace.length).fill(-1);
   for (let lo = 0; lo + minPoints - 1 <= last && trace[lo]!.t - t0 <= settings.lagMaxS; lo += 1) {
     // Longest first: all readings from lo, then shrink from the end until the window is straight.
     const sums = new WindowSums(trace[lo]!.t, trace[lo]!.a);
-    for (let i = lo; i <= last; i += 1) sums.add(trace[i]!);
+    for (let i = lo; i <= last; i += 1) {
+      sums.add(trace[i]!);
+      const before = i > lo ? worstFrom[i - 1]! : -1;
+      worstFrom[i] = sizes[i]! > limit && (before < 0 || sizes[i]! > sizes[before]!) ? i : before;
+    }
     for (let hi = last; hi - lo + 1 >= minPoints; hi -= 1) {
       const shape = sums.shape(settings.nearZeroSlopePerMin, noise);
-      if (isStraight(shape, settings.curvatureLimitPct) && hasEnoughReadings(trace, lo, hi, minPoints, settings, noise) && curvedPart(trace, lo, hi, settings, noise, shape) === null) {
-        if (!runsFasterAfter(trace, lo, hi, minPoints, settings, noise)) candidates.push({ lo, hi, shape });
+      const suspect = worstFrom[hi]!;
+      // Straight as read and without a reading far off its neighbours (curvedPart); a window of the minimum length
+      // that holds one has one good reading too few.
+      const straight =
+        isStraight(shape, settings.curvatureLimitPct) &&
+        curvedAsRead(trace, lo, hi, settings, noise, shape) === null &&
+        (suspect < 0 || (hi - lo + 1 > minPoints && curvedWithout(trace, lo, hi, suspect, settings, noise) === null));
+      if (straight) {
+        const judged = lineSums(trace, lo, hi, suspect < 0 ? null : suspect);
+        if (!runsFasterAfter(trace, hi, judged, minPoints, settings, noise, (from, to) => worstIn(sizes, from, to, limit))) {
+          candidates.push({ lo, hi, shape, rate: judged.slope });
+        }
         break;
       }
       // The earliest shortest window that is not straight explains a refusal: preferably one that slows down
@@ -386,12 +423,12 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
   }
 
   let fastest = candidates[0]!;
-  for (const c of candidates) if (Math.abs(c.shape.slopePerMin) > Math.abs(fastest.shape.slopePerMin)) fastest = c;
-  const top = Math.abs(fastest.shape.slopePerMin);
+  for (const c of candidates) if (Math.abs(c.rate) > Math.abs(fastest.rate)) fastest = c;
+  const top = Math.abs(fastest.rate);
   // The allowance is the fastest window's own noise (as if the two were independent), not the other
   // window's: a window straddling a lag has a large residual SD from the kink itself, which must not excuse it.
   const allowance = Math.max(4 * Math.SQRT2 * finiteOr0(fastest.shape.slopeSePerMin), 0.005 * top);
-  const chosen = candidates.find((c) => Math.abs(c.shape.slopePerMin) >= top - allowance) ?? fastest;
+  const chosen = candidates.find((c) => Math.abs(c.rate) >= top - allowance) ?? fastest;
 
   let lag: FoundWindow['lag'] = null;
   if (chosen.lo > 0) {
@@ -407,33 +444,29 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
   return { kind: 'found', lo: chosen.lo, hi: chosen.hi, shape: chosen.shape, lag };
 }
 
-/** Whether trace[lo..hi] holds minPoints readings besides one far off its neighbours (isolatedReading), which does not count. */
-function hasEnoughReadings(trace: readonly TracePoint[], lo: number, hi: number, minPoints: number, settings: Pick<LinearitySettings, 'outlierLimitSd'>, noise: number): boolean {
-  if (hi - lo + 1 > minPoints || settings.outlierLimitSd === undefined) return true;
-  return isolatedReading(trace, lo, hi, settings.outlierLimitSd, noise) === null;
-}
-
 /**
- * Whether the readings just after trace[lo..hi] (its last reading and the next minPoints − 1) run faster than the
- * window itself, beyond the curvature limit and beyond noise: the window then lies in a lag, before the reaction
- * got going (a flat opening followed by a fall), and says nothing of the reaction's rate. Judged like the halves
- * of a window (curvedPart), the window and what follows it being the two halves.
+ * Whether the readings just after a window ending at trace[hi] (its last reading and the next minPoints − 1) run
+ * faster than the window itself (`window`, its straight line), beyond the curvature limit and beyond noise: the
+ * window then lies in a lag, before the reaction got going (a flat opening followed by a fall), and says nothing of
+ * the reaction's rate. Judged like the halves of a window (curvedPart), the window and what follows it being the
+ * two halves.
  */
 function runsFasterAfter(
   trace: readonly TracePoint[],
-  lo: number,
   hi: number,
+  window: ReturnType<WindowSums['line']>,
   minPoints: number,
   settings: Pick<LinearitySettings, 'curvatureLimitPct' | 'nearZeroSlopePerMin'>,
   noise: number,
+  isolatedIn: (from: number, to: number) => number | null,
 ): boolean {
   const end = Math.min(trace.length - 1, hi + minPoints - 1);
   if (end - hi + 1 < 3) return false;
-  const window = lineSums(trace, lo, hi);
-  const after = lineSums(trace, hi, end);
+  // Without a reading far off its neighbours, as for the window (a bubble just after a lag must not hide the fall).
+  const after = lineSums(trace, hi, end, end - hi + 1 > 3 ? isolatedIn(hi, end) : null);
   const scale = Math.max(Math.abs(window.slope), Math.abs(after.slope));
   const changePct = relativePct(Math.abs(after.slope) - Math.abs(window.slope), scale, settings.nearZeroSlopePerMin);
-  const df = hi - lo + 1 + (end - hi + 1) - 4;
+  const df = window.n + after.n - 4;
   const parts = { slopes: [window.slope, after.slope], sxx: [window.sxx, after.sxx], variance: (window.sse + after.sse) / df, df };
   return changePct > settings.curvatureLimitPct && contrastSignificant(after.slope - window.slope, [-1, 1], parts, noise);
 }
