@@ -129,6 +129,10 @@ describe('automatic window on a lag followed by a first-order decay, with one bu
     expect(found.kind).toBe('found');
     if (found.kind !== 'found') return;
     expect(trace[found.lo]!.t).toBeGreaterThanOrEqual(12);
+    // The lag's own rate is that of its flat readings without the bubble: 0 up to the window's first reading, which
+    // the reaction has just left (a small fall), so the lag runs well over 90% slower [derived]; with the bubble it
+    // came out "−11.6% slower" (a lag faster than the reaction).
+    expect(found.lag?.slowerPct).toBeGreaterThan(90);
     const slope = fitTraceRange(trace, found.lo, found.hi).slope * 60;
     expect(slope).toBeLessThan(-0.92 * 0.096);
     expect(slope).toBeGreaterThan(-0.096);
