@@ -233,7 +233,17 @@ function pseudoResiduals(trace: readonly TracePoint[]): number[] {
  * neighbours rather than a line through the window, so a bend in the window does not hide it.
  */
 export function isolatedReading(trace: readonly TracePoint[], lo: number, hi: number, limitSd: number, noiseVariance: number): number | null {
-  return worstIn(pseudoResiduals(trace), lo, hi, limitSd * Math.sqrt(noiseVariance));
+  return worstIn(spikeSizes(trace), lo, hi, limitSd * Math.sqrt(noiseVariance));
+}
+
+/**
+ * pseudoResiduals kept only where a reading stands further off than both its neighbours (0 elsewhere): one reading
+ * lifted by d is d/√1.5 off its neighbours' line, and each neighbour, measured against it, about half that; only
+ * the lifted reading is the odd one out [derived by hand from the pseudo-residual's weights ½, ½].
+ */
+function spikeSizes(trace: readonly TracePoint[]): number[] {
+  const sizes = pseudoResiduals(trace);
+  return sizes.map((size, i) => (size > (sizes[i - 1] ?? 0) && size >= (sizes[i + 1] ?? 0) ? size : 0));
 }
 
 /** The index in lo..hi of the largest of `sizes` above `limit`, or null. */
@@ -373,12 +383,12 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
   const t0 = trace[0]!.t;
   // `rate`: the window's slope without its isolated reading (isolatedReading), if any: one bubble must not make a
   // flat stretch look like the fastest rate, nor hide that the readings after it run faster.
-  const candidates: { lo: number; hi: number; shape: WindowShape; rate: number }[] = [];
+  const candidates: { lo: number; hi: number; shape: WindowShape; rate: number; clean: boolean }[] = [];
   let firstShortest: { lo: number; hi: number; shape: WindowShape } | null = null;
   let firstSlowing: { lo: number; hi: number; shape: WindowShape } | null = null;
 
   const noise = traceNoiseVariance(trace, settings.readingNoiseFloor);
-  const sizes = pseudoResiduals(trace);
+  const sizes = spikeSizes(trace);
   const limit = settings.outlierLimitSd === undefined ? Number.POSITIVE_INFINITY : settings.outlierLimitSd * Math.sqrt(noise);
   // worstFrom[i]: the reading of trace[lo..i] furthest off its neighbours beyond the limit (isolatedReading), −1 if none.
   const worstFrom = new Array<number>(trace.length).fill(-1);
@@ -402,7 +412,7 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
       if (straight) {
         const judged = lineSums(trace, lo, hi, suspect < 0 ? null : suspect);
         if (!runsFasterAfter(trace, hi, judged, minPoints, settings, noise, (from, to) => worstIn(sizes, from, to, limit))) {
-          candidates.push({ lo, hi, shape, rate: judged.slope });
+          candidates.push({ lo, hi, shape, rate: judged.slope, clean: suspect < 0 });
         }
         break;
       }
@@ -427,7 +437,10 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
   // The allowance is the fastest window's own noise (as if the two were independent), not the other
   // window's: a window straddling a lag has a large residual SD from the kink itself, which must not excuse it.
   const allowance = Math.max(4 * Math.SQRT2 * finiteOr0(fastest.shape.slopeSePerMin), 0.005 * top);
-  const chosen = candidates.find((c) => Math.abs(c.rate) >= top - allowance) ?? fastest;
+  const equal = candidates.filter((c) => Math.abs(c.rate) >= top - allowance);
+  const earliest = equal[0] ?? fastest;
+  // A window holding a reading far off its neighbours gives way to a longer one of the same rate without it.
+  const chosen = earliest.clean ? earliest : (equal.find((c) => c.clean && c.hi - c.lo > earliest.hi - earliest.lo) ?? earliest);
 
   let lag: FoundWindow['lag'] = null;
   if (chosen.lo > 0) {

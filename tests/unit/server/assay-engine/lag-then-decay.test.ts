@@ -138,13 +138,30 @@ describe('automatic window on a lag followed by a first-order decay, with one bu
     expect(slope).toBeGreaterThan(-0.096);
   });
 
-  it('a straight trace with a bubble still gets a window', () => {
-    // A line falling 0.1 per minute, read every 10 s for 5 minutes, +0.08 at 150 s: straight without the bubble,
-    // so leaving the bubble out must not cost the window; the bubble is the outlier check's to flag (rates.ts).
+  it('a straight trace with a bubble still gets a long window', () => {
+    // A line falling 0.1 per minute, read every 10 s for 5 minutes, +0.08 at 150 s: straight without the bubble, so
+    // leaving the bubble out must not cost the window. Windows may start up to 120 s (lagMaxS), so every window
+    // reaching past 150 s holds the bubble, and the windows without it are shorter: the earliest window is kept,
+    // and the bubble is the outlier check's to flag (rates.ts).
     const line = Array.from({ length: 31 }, (_, i) => ({ t: 10 * i, a: 1 - (0.1 * 10 * i) / 60 }));
     const found = findLinearWindow(withBubble(line, 15, 0.08), { ...settings, outlierLimitSd: 4 });
     expect(found.kind).toBe('found');
+    expect(found.lo).toBe(0);
     expect(found.hi - found.lo + 1).toBeGreaterThanOrEqual(16);
+  });
+
+  it('a noisy straight trace with a bubble near its start: the short window holding the bubble gives way to a longer one without it', () => {
+    // A = 1.2 − 0.06·t/min read every 2 s for 180 s, with a fixed ±0.003 zig-zag as reading noise, +0.12 at 2 s
+    // (40 noise SDs). The earliest straight window, 0–12 s, holds the bubble and its slope is several times the
+    // true rate (seen: 4.6× in a random trial, 3 December 2026); a window of the same rate from 4 s on holds none.
+    const trace = Array.from({ length: 91 }, (_, i) => ({ t: 2 * i, a: 1.2 - (0.06 * 2 * i) / 60 + (i % 2 === 0 ? 0.003 : -0.003) + (i === 1 ? 0.12 : 0) }));
+    const found = findLinearWindow(trace, { ...settings, outlierLimitSd: 4 });
+    expect(found.kind).toBe('found');
+    expect(found.lo).toBeGreaterThanOrEqual(2);
+    // The zig-zag moves a least-squares slope by at most 2·0.003 over the window's span [derived: the largest
+    // change a ±0.003 alternation can make to the line's end points]; over 60 s or more that is 0.006 per minute.
+    expect(found.hi - found.lo).toBeGreaterThanOrEqual(30);
+    expect(Math.abs(fitTraceRange(trace, found.lo, found.hi).slope * 60 + 0.06)).toBeLessThan(0.006);
   });
 
   it('for any such trace and one bubble of 0.03–0.1 at any reading after the lag, the window given is straight (within 7%) on the trace without the bubble and its rate within 8%', () => {
