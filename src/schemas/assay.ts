@@ -342,6 +342,8 @@ export const flagCodes = [
   'LAG_EXCLUDED',
   /** One reading lies far off the fitted line (a bubble, a knock, a lid). */
   'OUTLIER_READING',
+  /** The automatic window starts later than it could, to leave out a reading far off its neighbours. */
+  'STRAY_READING_AVOIDED',
   /** Most of the total rate remains with the inhibitor (or before the substrate). */
   'HIGH_BACKGROUND_FRACTION',
   /** Most of the total rate is also in the no-sample blank. */
@@ -379,6 +381,7 @@ export const flagTitles: Record<FlagCode, string> = {
   NO_LINEAR_WINDOW: 'No straight stretch: no rate given',
   LAG_EXCLUDED: 'Slow start left out',
   OUTLIER_READING: 'A stray reading',
+  STRAY_READING_AVOIDED: 'Window moved past a stray reading',
   HIGH_BACKGROUND_FRACTION: 'Background is most of the rate',
   HIGH_BLANK_FRACTION: 'Blank is most of the rate',
   IMPLAUSIBLE_ACTIVITY: 'Implausibly high: check units',

@@ -357,6 +357,11 @@ export interface FoundWindow {
   shape: WindowShape;
   /** Set when the window starts after the first reading because the opening readings ran slower. */
   lag: { readings: number; toS: number; openingSlopePerMin: number; slowerPct: number } | null;
+  /**
+   * Set when the window starts later than an earlier one of the same rate, `fromS`, because that one held a reading
+   * far off its neighbours (`index`, at `t`) and this longer one does not: `readings` readings are left out.
+   */
+  avoided: { index: number; t: number; readings: number; fromS: number; toS: number } | null;
 }
 
 export interface NoWindow {
@@ -383,7 +388,7 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
   const t0 = trace[0]!.t;
   // `rate`: the window's slope without its isolated reading (isolatedReading), if any: one bubble must not make a
   // flat stretch look like the fastest rate, nor hide that the readings after it run faster.
-  const candidates: { lo: number; hi: number; shape: WindowShape; rate: number; clean: boolean }[] = [];
+  const candidates: { lo: number; hi: number; shape: WindowShape; rate: number; suspect: number }[] = [];
   let firstShortest: { lo: number; hi: number; shape: WindowShape } | null = null;
   let firstSlowing: { lo: number; hi: number; shape: WindowShape } | null = null;
 
@@ -412,7 +417,7 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
       if (straight) {
         const judged = lineSums(trace, lo, hi, suspect < 0 ? null : suspect);
         if (!runsFasterAfter(trace, hi, judged, minPoints, settings, noise, (from, to) => worstIn(sizes, from, to, limit))) {
-          candidates.push({ lo, hi, shape, rate: judged.slope, clean: suspect < 0 });
+          candidates.push({ lo, hi, shape, rate: judged.slope, suspect });
         }
         break;
       }
@@ -440,21 +445,26 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
   const equal = candidates.filter((c) => Math.abs(c.rate) >= top - allowance);
   const earliest = equal[0] ?? fastest;
   // A window holding a reading far off its neighbours gives way to a longer one of the same rate without it.
-  const chosen = earliest.clean ? earliest : (equal.find((c) => c.clean && c.hi - c.lo > earliest.hi - earliest.lo) ?? earliest);
+  const chosen = earliest.suspect < 0 ? earliest : (equal.find((c) => c.suspect < 0 && c.hi - c.lo > earliest.hi - earliest.lo) ?? earliest);
+  const avoided: FoundWindow['avoided'] =
+    chosen === earliest
+      ? null
+      : { index: earliest.suspect, t: trace[earliest.suspect]!.t, readings: chosen.lo - earliest.lo, fromS: trace[earliest.lo]!.t, toS: trace[chosen.lo]!.t };
 
+  // The lag is what comes before the earliest window of the fastest rate (the rest, if any, was avoided).
   let lag: FoundWindow['lag'] = null;
-  if (chosen.lo > 0) {
+  if (earliest.lo > 0) {
     // The opening readings' own rate, from a line through them and the window's first reading, without a reading
     // far off its neighbours (a bubble in the lag once made the lag "−11.6% slower" than the reaction).
-    const opening = lineSums(trace, 0, chosen.lo, chosen.lo >= 2 ? worstIn(sizes, 0, chosen.lo, limit) : null).slope;
+    const opening = lineSums(trace, 0, earliest.lo, earliest.lo >= 2 ? worstIn(sizes, 0, earliest.lo, limit) : null).slope;
     lag = {
-      readings: chosen.lo,
-      toS: trace[chosen.lo]!.t,
+      readings: earliest.lo,
+      toS: trace[earliest.lo]!.t,
       openingSlopePerMin: opening,
       slowerPct: chosen.shape.slopePerMin !== 0 ? (100 * (Math.abs(chosen.shape.slopePerMin) - Math.abs(opening))) / Math.abs(chosen.shape.slopePerMin) : 0,
     };
   }
-  return { kind: 'found', lo: chosen.lo, hi: chosen.hi, shape: chosen.shape, lag };
+  return { kind: 'found', lo: chosen.lo, hi: chosen.hi, shape: chosen.shape, lag, avoided };
 }
 
 /**

@@ -172,6 +172,14 @@ export function selectRange(
           values: { readings: found.lag.readings, toS: found.lag.toS, slowerPct: found.lag.slowerPct },
         });
       }
+      if (found.avoided && judged) {
+        const v = found.avoided;
+        flags.push({
+          code: 'STRAY_READING_AVOIDED',
+          message: `${label} trace: the window starts at ${fmt(v.toS)} s rather than ${fmt(v.fromS)} s, leaving out ${v.readings} reading${v.readings === 1 ? '' : 's'} that ran at the same rate, because reading ${v.index + 1} (t = ${fmt(v.t)} s) lies far off its neighbours (a bubble or a knock) and the longer window from ${fmt(v.toS)} s does not hold it`,
+          values: { reading: v.index + 1, t: v.t, readings: v.readings, fromS: v.fromS, toS: v.toS },
+        });
+      }
       return { lo: found.lo, hi: found.hi };
     }
   }

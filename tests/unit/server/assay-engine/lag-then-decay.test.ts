@@ -157,9 +157,13 @@ describe('automatic window on a lag followed by a first-order decay, with one bu
     const trace = Array.from({ length: 91 }, (_, i) => ({ t: 2 * i, a: 1.2 - (0.06 * 2 * i) / 60 + (i % 2 === 0 ? 0.003 : -0.003) + (i === 1 ? 0.12 : 0) }));
     const found = findLinearWindow(trace, { ...settings, outlierLimitSd: 4 });
     expect(found.kind).toBe('found');
+    if (found.kind !== 'found') return;
     expect(found.lo).toBeGreaterThanOrEqual(2);
-    // The zig-zag moves a least-squares slope by at most 2·0.003 over the window's span [derived: the largest
-    // change a ±0.003 alternation can make to the line's end points]; over 60 s or more that is 0.006 per minute.
+    // Not a lag: the readings left out run at the same rate; the bubble is named as the reason.
+    expect(found.lag).toBeNull();
+    expect(found.avoided).toMatchObject({ index: 1, t: 2, fromS: 0, toS: trace[found.lo]!.t, readings: found.lo });
+    // The zig-zag moves a least-squares slope by 6·0.003/(n + 1) over the window's span, at most 2·0.003 [derived by
+    // hand for an alternating ±e on n evenly spaced readings]; over 60 s or more that is under 0.006 per minute.
     expect(found.hi - found.lo).toBeGreaterThanOrEqual(30);
     expect(Math.abs(fitTraceRange(trace, found.lo, found.hi).slope * 60 + 0.06)).toBeLessThan(0.006);
   });

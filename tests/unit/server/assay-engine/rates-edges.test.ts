@@ -286,3 +286,20 @@ describe('a bubble in a slowing window', () => {
     expect(codes(flags)).toContain('OUTLIER_READING');
   });
 });
+
+describe('a bubble near the start of a straight trace', () => {
+  it('the automatic window moves past it and says so, naming the reading; no lag is claimed', () => {
+    // A = 1.2 − 0.06·t/min read every 2 s for 180 s with a ±0.003 zig-zag, +0.12 at 2 s (reading 2). The readings
+    // before the window run at the trace's own rate, so calling them a slow start would be false.
+    const trace = Array.from({ length: 91 }, (_, i) => ({ t: 2 * i, a: 1.2 - (0.06 * 2 * i) / 60 + (i % 2 === 0 ? 0.003 : -0.003) + (i === 1 ? 0.12 : 0) }));
+    const flags: Flag[] = [];
+    const line = fitTrace(trace, 'total', settings, { kind: 'auto' }, { checkR2: true }, flags)!;
+    expect(codes(flags)).toEqual(['STRAY_READING_AVOIDED']);
+    expect(flags[0]!.message).toContain('reading 2 (t = 2 s) lies far off its neighbours');
+    expect(flags[0]!.message).toContain(`starts at ${line.fromS} s rather than 0 s`);
+    // The zig-zag moves the slope by at most 6·0.003/(n + 1) over the window's span [derived by hand for an
+    // alternating ±e on evenly spaced readings]: far under 0.006 per minute for a window of a minute or more.
+    expect(line.toS - line.fromS).toBeGreaterThanOrEqual(60);
+    expect(Math.abs(line.slopePerMin + 0.06)).toBeLessThan(0.006);
+  });
+});
