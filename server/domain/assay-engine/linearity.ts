@@ -379,7 +379,9 @@ export interface NoWindow {
  *    each half, see curvedPart);
  * 2. of those, the earliest start whose rate is within noise of the fastest one (4·√2 standard errors of
  *    the fastest window's slope, and at least 0.5%): a slower opening stretch is a lag and is stepped over, while on a straight trace
- *    every start gives the same rate and the first reading is kept;
+ *    every start gives the same rate and the first reading is kept; rates are compared without a reading far off
+ *    its neighbours (isolatedReading), and a window holding one gives way to a longer one of the same rate
+ *    without it (`avoided`);
  * 3. no straight window at all → `none`: the caller refuses to give a rate rather than fit a curve.
  */
 export function findLinearWindow(trace: readonly TracePoint[], settings: LinearitySettings): FoundWindow | NoWindow {
