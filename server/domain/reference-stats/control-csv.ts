@@ -189,7 +189,10 @@ function readHeader(header: CsvRecord, issues: IssueList): Column[] {
 }
 
 interface ParsedRow {
-  subject: ControlSubject;
+  row: number;
+  /** Null when a cell of the row is refused (its issues are listed). */
+  subject: ControlSubject | null;
+  /** The row's unit cell, checked against the others even when another cell of the row is refused. */
   unit: string | null;
 }
 
@@ -261,8 +264,11 @@ function readRow(record: CsvRecord, columns: Column[], width: number, issues: Is
       }
     }
   }
-  if (!ok || specimenType === null || ageYears === null) return null;
-  return { subject: { row: record.row, controlId, specimenType, ageYears, activities }, unit };
+  const subject =
+    ok && specimenType !== null && ageYears !== null
+      ? { row: record.row, controlId, specimenType, ageYears, activities }
+      : null;
+  return { row: record.row, subject, unit };
 }
 
 function buildSeries(subjects: ControlSubject[], assays: AssayCode[], warnings: string[]): ControlSeries[] {
@@ -348,7 +354,7 @@ export function parseControlCsv(text: string): ControlDataUploadResult {
     if (row) parsed.push(row);
   }
 
-  // Units: header suffixes and the unit column must all name the same unit.
+  // Units: header suffixes and the unit column must all name the same unit, rows with other problems included.
   const unitColumn = columns.find((c) => c.role.kind === 'unit');
   const headerUnit = columns.find((c) => c.role.kind === 'assay' && c.role.unit !== null);
   let declared: { unit: string; where: string } | null =
@@ -356,12 +362,12 @@ export function parseControlCsv(text: string): ControlDataUploadResult {
       ? { unit: headerUnit.role.unit, where: `the header of column "${headerUnit.name}"` }
       : null;
   if (unitColumn) {
-    for (const { subject, unit } of parsed) {
+    for (const { row, unit } of parsed) {
       if (unit === null) continue;
-      if (declared === null) declared = { unit, where: `row ${subject.row}` };
+      if (declared === null) declared = { unit, where: `row ${row}` };
       else if (normaliseUnit(unit) !== normaliseUnit(declared.unit)) {
         issues.add(
-          subject.row,
+          row,
           unitColumn.name,
           `Mixed units: "${unit}" here but "${declared.unit}" in ${declared.where}; convert all activities to one unit`,
         );
@@ -370,7 +376,8 @@ export function parseControlCsv(text: string): ControlDataUploadResult {
   }
   issues.throwIfAny();
 
-  const subjects = parsed.map((p) => p.subject);
+  // Every row read to the end here: any refused cell has thrown above.
+  const subjects = parsed.flatMap((p) => (p.subject ? [p.subject] : []));
   const warnings: string[] = [];
   const empty = subjects.filter((s) => Object.keys(s.activities).length === 0).map((s) => s.row);
   if (empty.length > 0) warnings.push(`Row(s) ${empty.join(', ')} have no activity values`);
