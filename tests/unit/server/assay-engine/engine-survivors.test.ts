@@ -66,6 +66,18 @@ describe('the background and blank are still fitted when the total cannot be (au
     ]);
   });
 
+  it('with a manual window the background is fitted over that window even when the total fails in it', () => {
+    // Readings every 10 s: the window 30–90 s holds t = 30 … 90, 7 readings [by hand]; the background is an exact
+    // line, so its slope over them is −0.012 A/min [analytic].
+    const r = calculateActivity(
+      { assay: 'CI', ...cuvette, total: withNaN(line(1, -0.06)), background: line(0.9, -0.012), window: { fromS: 30, toS: 90 } },
+      def('CI'),
+    );
+    expect(r.fitBackground).toMatchObject({ fromS: 30, toS: 90, points: 7 });
+    expect(r.slopeBackgroundPerMin).toBeCloseTo(-0.012, 12);
+    expect(r.window).toEqual({ fromS: 30, toS: 90 });
+  });
+
   it('a blank trace likewise: −0.01 A/min', () => {
     const r = calculateActivity({ assay: 'CIV', ...cuvette, total: withNaN(line(1, -0.06)) }, def('CIV'), { blank: line(1, -0.01) });
     expect(r.slopeBlankPerMin).toBeCloseTo(-0.01, 12);
