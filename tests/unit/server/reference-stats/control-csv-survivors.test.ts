@@ -8,7 +8,7 @@ import { issuesOf } from '../../../factories/control-csv';
  * control_id and unit, one column per assay (CI … CS), a unit in the header such as "CI (nmol/min/mg)".
  * Sources named per test:
  * - Decimal numbers: a fraction may start at the point (".25") and an exponent may have several digits
- *   ("125e-2" = 1.25) — the decimal literal forms of ECMA-262 §12.9.3 (NumericLiteral) [confirmed].
+ *   ("125e-2" = 1.25) — the decimal literal forms of ECMA-262 NumericLiteral grammar [from memory].
  * - Unicode §23.8 [confirmed]: U+FEFF at the very start of a file is a signature (byte-order mark); anywhere else it
  *   is ZERO WIDTH NO-BREAK SPACE, part of the text.
  * - House rule (docs/testing.md): bad input gets a clear error naming the row or column; a hint is given only where
