@@ -200,6 +200,16 @@ describe('reading lines with the wrong number of cells', () => {
     expect(issues[1]!.message).toBe('Expected 3 tab-separated cells as in the header (line 1), found 2.');
   });
 
+  it('when a tab line is split by tabs, or has no separator at all, then it is not said to use commas or semicolons', () => {
+    // Line 3 "10\t0;7": the tab splits it into 2 cells, so it does use the file's separator; the semicolon is
+    // inside a cell. Line 4 "20": one cell with no comma in it, so "separated by commas" would be false.
+    const issues = issuesOf('time_s\tA1\tA2\n0\t0.9\t0.8\n10\t0;7\n20\n');
+    expect(issues.map((i) => [i.code, i.row, i.column, i.columnNumber, i.message])).toEqual([
+      ['COLUMN_COUNT', 3, 'A2', 3, 'Expected 3 tab-separated cells as in the header (line 1), found 2.'],
+      ['COLUMN_COUNT', 4, 'A1', 2, 'Expected 3 tab-separated cells as in the header (line 1), found 1.'],
+    ]);
+  });
+
   it('when a tab line has one cell too many, then the column after the last is named and no hint is given', () => {
     // 4 cells for a 3-cell header: the extra cell is column 4. A decimal comma cannot split cells in a tab
     // file, so that hint does not apply.
