@@ -41,13 +41,15 @@ type CsvRecord = { row: number; cells: string[] };
 /**
  * Reads the cells of `lines` (the file from `firstRow` on) with csv-parse: quoted cells may hold the separator
  * ("" inside stands for "), cells are trimmed, blank lines skipped. Each record keeps its 1-based line number.
- * An unclosed quote is reported at its line and ends the reading.
+ * An unclosed quote is reported at the line where it opens and ends the reading.
  */
 function readCsvRecords(lines: string[], firstRow: number, delimiter: PlateDelimiter, issues: IssueList): CsvRecord[] {
   // One line ending for csv-parse; whitespace-only lines become empty so that they are skipped like blank ones.
-  const text = lines.map((l) => (l.trim() === '' ? '' : l)).join('\n');
+  const csvLines = lines.map((l) => (l.trim() === '' ? '' : l));
+  // The line (of csvLines, from 1) on which the last whole record ended.
+  let lastRecordLine = 0;
   try {
-    const records = parseCsv(text, {
+    const records = parseCsv(csvLines.join('\n'), {
       delimiter: delimiterChar[delimiter],
       record_delimiter: '\n',
       relax_column_count: true,
@@ -56,16 +58,33 @@ function readCsvRecords(lines: string[], firstRow: number, delimiter: PlateDelim
       trim: true,
       bom: false,
       info: true,
+      on_record: (record, context) => {
+        lastRecordLine = context.lines;
+        return record;
+      },
     }) as unknown as { record: string[]; info: { lines: number } }[];
     return records.map(({ record, info }) => ({ row: firstRow + info.lines - 1, cells: record.map((c) => c.trim()) }));
   } catch (err) {
     if (!(err instanceof CsvError)) throw err;
+    if (err.code === 'CSV_QUOTE_NOT_CLOSED') {
+      // csv-parse stops at the end of the text; the open quote is on the first non-blank line after the last
+      // whole record (csvLines[lastRecordLine] is the line after it).
+      let i = lastRecordLine;
+      while (csvLines[i] === '') i += 1;
+      issues.add(
+        'BAD_QUOTING',
+        'A quoted cell is never closed: a double quote (") opens a cell that runs to the end of the file.',
+        { row: firstRow + i },
+      );
+      return issues.fail();
+    }
+    // csv-parse counts lines from the start of the text it was given, not of the file: its message is not shown.
     const line = (err as CsvError & { lines?: number }).lines;
     issues.add(
       'BAD_QUOTING',
-      err.code === 'CSV_QUOTE_NOT_CLOSED'
-        ? 'A quoted cell is never closed: a double quote (") opens a cell that runs to the end of the file.'
-        : `The cells cannot be read: ${err.message}.`,
+      err.code === 'CSV_NON_TRIMABLE_CHAR_AFTER_CLOSING_QUOTE'
+        ? 'A quoted cell goes on after its closing quote ("): only spaces, the separator or the end of the line may follow it.'
+        : `The cells cannot be read (${err.code}).`,
       { row: line === undefined ? null : firstRow + line - 1 },
     );
     return issues.fail();

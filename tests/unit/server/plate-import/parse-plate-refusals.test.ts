@@ -349,3 +349,36 @@ describe('cells that are not readings', () => {
     ]);
   });
 });
+
+describe('quoting problems name the line where they are', () => {
+  it('when a quote opens on line 3 and readings follow, then line 3 is named, not the end of the file', () => {
+    // Rule 4: "a quote left open is reported at its line". Lines: 1 header, 2 reading, 3 '30,"0.6' (the quote
+    // opens here), 4 and 5 readings, 6 empty after the last line break.
+    const issue = onlyIssueOf('time_s,A1\n0,0.5\n30,"0.6\n60,0.7\n90,0.8\n');
+    expect(issue).toMatchObject({ code: 'BAD_QUOTING', row: 3 });
+  });
+
+  it('when blank lines come before the line with the open quote, then that line is still the one named', () => {
+    // Lines: 1 header, 2 reading, 3 blank, 4 "  " (blank), 5 '30,"0.6', 6 reading.
+    const issue = onlyIssueOf('time_s,A1\n0,0.5\n\n  \n30,"0.6\n60,0.7\n');
+    expect(issue).toMatchObject({ code: 'BAD_QUOTING', row: 5 });
+  });
+
+  it('when the header itself opens a quote that is never closed, then the header line is named', () => {
+    // Lines: 1 comment, 2 blank, 3 header 'time_s,"A1' (the quote opens here), 4 and 5 readings.
+    const issue = onlyIssueOf('# plate_label: p1\n\ntime_s,"A1\n0,0.5\n30,0.6\n');
+    expect(issue).toMatchObject({ code: 'BAD_QUOTING', row: 3 });
+  });
+
+  it('when text follows a closing quote on line 3, then line 3 is named and the message names no other line', () => {
+    // RFC 4180: a quoted cell ends at its closing quote, so '"0.6"x' cannot be read. Lines: 1 header,
+    // 2 reading, 3 '30,"0.6"x', 4 reading. The issue's line is 3; a line number inside the message would have
+    // to be 3 as well, so the message should carry none (the line is given by the issue itself).
+    const issue = onlyIssueOf('time_s,A1\n0,0.5\n30,"0.6"x\n60,0.7\n');
+    expect(issue).toMatchObject({ code: 'BAD_QUOTING', row: 3 });
+    expect(issue.message).not.toMatch(/line \d/);
+    expect(issue.message).toBe(
+      'A quoted cell goes on after its closing quote ("): only spaces, the separator or the end of the line may follow it.',
+    );
+  });
+});
