@@ -217,12 +217,13 @@ function readHeaderCells(
   return { wells, timeColumnOk };
 }
 
-function notANumberMessage(cell: string, isTime: boolean, delimiter: PlateDelimiter): string {
+function notANumberMessage(cell: string, isTime: boolean): string {
   const shown = cell.length > 40 ? `${cell.slice(0, 40)}…` : cell;
   if (isTime && CLOCK_PATTERN.test(cell)) {
     return `Time "${shown}" is a clock time; write times as seconds (e.g. 90 for 1:30).`;
   }
-  if (delimiter === 'tab' && DECIMAL_COMMA_PATTERN.test(cell)) {
+  // In a comma file such a cell was quoted, as spreadsheets set to a decimal comma write it.
+  if (DECIMAL_COMMA_PATTERN.test(cell)) {
     return `"${shown}" uses a decimal comma; write numbers with a decimal point (e.g. 0.512).`;
   }
   return isTime
@@ -345,7 +346,7 @@ export function parsePlateFile(input: Uint8Array | string, format: PlateFormat =
         columnNumber: 1,
       });
     } else if (t === null) {
-      issues.add('NOT_A_NUMBER', notANumberMessage(timeCell, true, delimiter), {
+      issues.add('NOT_A_NUMBER', notANumberMessage(timeCell, true), {
         row,
         column: headerCells[0] || null,
         columnNumber: 1,
@@ -372,7 +373,7 @@ export function parsePlateFile(input: Uint8Array | string, format: PlateFormat =
           columnNumber: col.columnNumber,
         });
       } else if (a === null) {
-        issues.add('NOT_A_NUMBER', notANumberMessage(cell, false, delimiter), {
+        issues.add('NOT_A_NUMBER', notANumberMessage(cell, false), {
           row,
           column: col.header,
           columnNumber: col.columnNumber,

@@ -330,6 +330,16 @@ describe('cells that are not readings', () => {
     ]);
   });
 
+  it('when a comma file has a quoted decimal comma, then the cell is named as a decimal comma too', () => {
+    // RFC 4180: a quoted field may hold the separator, so "0,512" is one cell of a comma file, as a spreadsheet set
+    // to a decimal comma writes it. Line 3, column 2 (A1); "1,2,3" in A2 is a list, not one number.
+    const issues = issuesOf('time_s,A1,A2\n0,0.9,0.8\n10,"0,512","1,2,3"\n');
+    expect(issues.map((i) => [i.code, i.row, i.column, i.columnNumber, i.message])).toEqual([
+      ['NOT_A_NUMBER', 3, 'A1', 2, '"0,512" uses a decimal comma; write numbers with a decimal point (e.g. 0.512).'],
+      ['NOT_A_NUMBER', 3, 'A2', 3, '"1,2,3" is not a number; every reading must be a decimal number such as 0.512.'],
+    ]);
+  });
+
   it('when a comma file has a word for a reading, then it gets the reading message', () => {
     const issue = onlyIssueOf('time_s,A1\n0,0.9\n10,OVER\n');
     expect(issue.message).toBe('"OVER" is not a number; every reading must be a decimal number such as 0.512.');
