@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import type { Flag, TracePoint } from '@/schemas/assay';
-import { fitTrace, type RateSettings } from '../../../../server/domain/assay-engine/rates';
+import { fitTrace } from '../../../../server/domain/assay-engine/rates';
+import { labRateSettings } from './fixtures';
 
 /*
  * Straight traces with reading noise and one bubble, through the automatic window. The truth is the line's own
@@ -14,17 +15,7 @@ import { fitTrace, type RateSettings } from '../../../../server/domain/assay-eng
  * 349%; after, median 1.0%, 95th percentile 8.7%. The traces still off by more than 20% hold the bubble in a
  * long window of a slow trace (the bubble outweighs the whole fall) and are flagged OUTLIER_READING.
  */
-const settings: RateSettings = {
-  r2Threshold: 0.99,
-  minPoints: 5,
-  linearRangeMin: 0,
-  linearRangeMax: 2,
-  curvatureLimitPct: 5,
-  lagMaxS: 120,
-  outlierLimitSd: 4,
-  readingNoiseFloor: 0.002,
-  nearZeroSlopePerMin: 0.001,
-};
+const settings = labRateSettings;
 
 function generator(seed: number) {
   let state = seed;

@@ -1,7 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { defaultAssayDefinitions, type AssayDefinition, type FlagCode, type Trace } from '@/schemas/assay';
-import type { AssayCode } from '@/schemas/common';
 import { calculateActivity, calculateActivityFromRates } from '../../../../server/domain/assay-engine/engine';
+import { codes, cuvette, def, line } from './fixtures';
 
 /*
  * calculateActivity and calculateActivityFromRates on exact straight traces, so every slope is known
@@ -10,16 +9,6 @@ import { calculateActivity, calculateActivityFromRates } from '../../../../serve
  * (Beer–Lambert, IUPAC Gold Book [confirmed]). With ε 20 (a definition set here), l 1 cm, V_r 1000 µL, V_s 50 µL
  * and 1 mg/mL, the factor is 10⁶ / (20 × 50) = 1000 exactly [derived by hand].
  */
-const def = (code: AssayCode, over: Partial<AssayDefinition> = {}): AssayDefinition => ({
-  ...defaultAssayDefinitions.find((d) => d.code === code)!,
-  epsilonPerMmPerCm: 20,
-  ...over,
-});
-const cuvette = { pathlengthCm: 1, reactionVolumeUl: 1000, sampleVolumeUl: 50, proteinMgPerMl: 1 };
-const codes = (r: { flags: { code: FlagCode }[] }) => r.flags.map((f) => f.code);
-/** 13 readings every 10 s on a straight line of the given slope per minute. */
-const line = (a0: number, slopePerMin: number, n = 13): Trace =>
-  Array.from({ length: n }, (_, i) => ({ t: i * 10, a: a0 + (slopePerMin * i * 10) / 60 }));
 
 describe('blank and background', () => {
   it('a blank given as a slope is subtracted from the total when there is no background', () => {

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { calculationResultSchema, defaultAssayDefinitions, type AssayDefinition, type FlagCode, type Trace } from '@/schemas/assay';
-import type { AssayCode } from '@/schemas/common';
+import { calculationResultSchema, type Trace } from '@/schemas/assay';
 import { calculateActivity, calculateActivityFromRates } from '../../../../server/domain/assay-engine/engine';
+import { codes, cuvette, def, line } from './fixtures';
 
 /*
  * Behaviour of calculateActivity / calculateActivityFromRates that earlier tests left open: which trace a flag
@@ -14,16 +14,6 @@ import { calculateActivity, calculateActivityFromRates } from '../../../../serve
  * names the trace or field it is about. The result must meet the public contract, calculationResultSchema
  * (src/schemas/assay.ts), which fixes `basis` to 'linear_rate'.
  */
-const def = (code: AssayCode, over: Partial<AssayDefinition> = {}): AssayDefinition => ({
-  ...defaultAssayDefinitions.find((d) => d.code === code)!,
-  epsilonPerMmPerCm: 20,
-  ...over,
-});
-const cuvette = { pathlengthCm: 1, reactionVolumeUl: 1000, sampleVolumeUl: 50, proteinMgPerMl: 1 };
-const codes = (r: { flags: { code: FlagCode }[] }) => r.flags.map((f) => f.code);
-/** 13 readings every 10 s on a straight line of the given slope per minute. */
-const line = (a0: number, slopePerMin: number, n = 13): Trace =>
-  Array.from({ length: n }, (_, i) => ({ t: i * 10, a: a0 + (slopePerMin * i * 10) / 60 }));
 /** The same line with reading 3 (t = 20 s) unreadable. */
 const withNaN = (trace: Trace): Trace => trace.map((p, i) => (i === 2 ? { t: p.t, a: Number.NaN } : p));
 

@@ -39,6 +39,16 @@ function check(o: Parameters<typeof lagThenDecay>[0], floor = settings.readingNo
   return { found: true as const, slope, truth: trueRatePerMin(o, fastestAt), fromS: trace[found.lo]!.t, toS: trace[found.hi]!.t };
 }
 
+/** Random lag-then-decay traces: any lag, reading interval and length, falling 0.05–2% per reading. */
+const lagDecayFields = {
+  lagS: fc.integer({ min: 0, max: 90 }),
+  stepS: fc.constantFrom(2, 5, 10),
+  durationS: fc.integer({ min: 120, max: 300 }),
+  a1: fc.double({ min: 0.2, max: 1.5, noNaN: true }),
+  aInf: fc.double({ min: 0, max: 0.3, noNaN: true }),
+  fallPerReading: fc.double({ min: 0.0005, max: 0.02, noNaN: true }),
+};
+
 describe('automatic window on a lag followed by a first-order decay', () => {
   it('30 s flat, then k = 0.01/s from 1.2 read every 5 s to 150 s: the straddling window 20–110 s (a third low) is no longer taken', () => {
     // The initial rate after the lag is 1.2 × 0.01 × 60 = 0.72 per minute [derived]; the old choice, 20–110 s,
@@ -68,14 +78,7 @@ describe('automatic window on a lag followed by a first-order decay', () => {
   it('for any lag, reading interval, length and rate constant read at under 2% per reading, a window that is given is at most 8% below the fastest true rate inside it', () => {
     fc.assert(
       fc.property(
-        fc.record({
-          lagS: fc.integer({ min: 0, max: 90 }),
-          stepS: fc.constantFrom(2, 5, 10),
-          durationS: fc.integer({ min: 120, max: 300 }),
-          a1: fc.double({ min: 0.2, max: 1.5, noNaN: true }),
-          aInf: fc.double({ min: 0, max: 0.3, noNaN: true }),
-          fallPerReading: fc.double({ min: 0.0005, max: 0.02, noNaN: true }),
-        }),
+        fc.record(lagDecayFields),
         ({ fallPerReading, ...rest }) => {
           const o = { ...rest, k: fallPerReading / rest.stepS };
           // The traces are exact, so no reading noise is assumed (floor 0): with the default floor of 0.002 a
@@ -172,12 +175,7 @@ describe('automatic window on a lag followed by a first-order decay, with one bu
     fc.assert(
       fc.property(
         fc.record({
-          lagS: fc.integer({ min: 0, max: 90 }),
-          stepS: fc.constantFrom(2, 5, 10),
-          durationS: fc.integer({ min: 120, max: 300 }),
-          a1: fc.double({ min: 0.2, max: 1.5, noNaN: true }),
-          aInf: fc.double({ min: 0, max: 0.3, noNaN: true }),
-          fallPerReading: fc.double({ min: 0.0005, max: 0.02, noNaN: true }),
+          ...lagDecayFields,
           bubble: fc.double({ min: 0.03, max: 0.1, noNaN: true }),
           place: fc.double({ min: 0, max: 1, noNaN: true }),
         }),

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import type { Flag, FlagCode, TracePoint } from '@/schemas/assay';
-import { fitTrace, type RateSettings } from '../../../../server/domain/assay-engine/rates';
+import { fitTrace } from '../../../../server/domain/assay-engine/rates';
+import { labRateSettings } from './fixtures';
 
 /*
  * fitTrace, the slope behind every activity, against analytic truths:
@@ -13,17 +14,7 @@ import { fitTrace, type RateSettings } from '../../../../server/domain/assay-eng
  *   noise) [analytic; externally studentised residual, Belsley, Kuh & Welsch 1980, from memory].
  * The settings are the default laboratory settings of src/schemas/assay.ts.
  */
-const settings: RateSettings = {
-  r2Threshold: 0.99,
-  minPoints: 5,
-  linearRangeMin: 0,
-  linearRangeMax: 2,
-  curvatureLimitPct: 5,
-  lagMaxS: 120,
-  outlierLimitSd: 4,
-  readingNoiseFloor: 0.002,
-  nearZeroSlopePerMin: 0.001,
-};
+const settings = labRateSettings;
 
 const codes = (flags: Flag[]): FlagCode[] => flags.map((f) => f.code);
 /** Readings every `step` s from 0, A = f(minutes). */
