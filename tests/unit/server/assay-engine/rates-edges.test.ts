@@ -264,6 +264,9 @@ describe('a bubble in a slowing window', () => {
     const flags: Flag[] = [];
     expect(fitTrace(trace, 'total', settings, { kind: 'auto' }, { checkR2: true }, flags)).toBeNull();
     expect(codes(flags)).toEqual(['NO_LINEAR_WINDOW']);
+    // The earliest five readings that slow down start where the lag ends, 60 s (the windows reaching back into the
+    // flat lag speed up instead): "the", not "the first", since they are not the trace's first readings.
+    expect(flags[0]!.message).toContain('across the 5 readings (60–100 s) the rate already falls');
   });
 
   it('the window 110–190 s set by hand is flagged curved, judged without the bubble, and the flag names that reading', () => {
@@ -288,9 +291,25 @@ describe('a bubble near the start of a straight trace', () => {
     expect(codes(flags)).toEqual(['STRAY_READING_AVOIDED']);
     expect(flags[0]!.message).toContain('reading 2 (t = 2 s) lies far off its neighbours');
     expect(flags[0]!.message).toContain(`starts at ${line.fromS} s rather than 0 s`);
+    // The bubble is reading 2; the first start without it is the next reading, 4 s, so readings 1 and 2 are left out.
+    expect(flags[0]!.message).toContain('leaving out 2 readings that ran at the same rate');
+    expect(flags[0]!.values).toEqual({ reading: 2, t: 2, readings: 2, fromS: 0, toS: 4 });
     // The zig-zag moves the slope by at most 6·0.003/(n + 1) over the window's span [derived by hand for an
     // alternating ±e on evenly spaced readings]: far under 0.006 per minute for a window of a minute or more.
     expect(line.toS - line.fromS).toBeGreaterThanOrEqual(60);
     expect(Math.abs(line.slopePerMin + 0.06)).toBeLessThan(0.006);
+  });
+});
+
+describe('the refusal names where the trace bends', () => {
+  it('a decay bent from its first reading: "across the first 5 readings (0–40 s) the rate already falls by" about 15%', () => {
+    // A = 0.6 + 0.7·e^(−0.5·t/min) every 10 s for 300 s. Over the first five readings (0–40 s, 2/3 min) the rate falls
+    // to e^(−1/3) = 0.72 of its start, and the straight line runs at about the middle's rate, e^(−1/6) = 0.85: some
+    // 15% below the start [derived by hand], far past the 5% limit, and every later window bends as much.
+    const decay = sample(31, 10, (x) => 0.6 + 0.7 * Math.exp(-0.5 * x));
+    const flags: Flag[] = [];
+    expect(fitTrace(decay, 'total', settings, { kind: 'auto' }, { checkR2: true }, flags)).toBeNull();
+    expect(codes(flags)).toEqual(['NO_LINEAR_WINDOW']);
+    expect(flags[0]!.message).toMatch(/across the first 5 readings \(0–40 s\) the rate already falls by 1[3-7](\.\d+)?%/);
   });
 });
