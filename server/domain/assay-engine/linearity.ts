@@ -204,7 +204,12 @@ function partSlopes(trace: readonly TracePoint[], lo: number, hi: number, parts:
  * never more exact than that, even where a trace looks noise-free.
  */
 export function traceNoiseVariance(trace: readonly TracePoint[], floor = 0): number {
-  const sizes = pseudoResiduals(trace).slice(1, -1);
+  return noiseVarianceOf(pseudoResiduals(trace), floor);
+}
+
+/** traceNoiseVariance from the trace's pseudoResiduals. */
+function noiseVarianceOf(pseudo: readonly number[], floor: number): number {
+  const sizes = pseudo.slice(1, -1);
   if (sizes.length === 0) return Number.NaN;
   sizes.sort((x, y) => x - y);
   const m = sizes.length;
@@ -233,7 +238,7 @@ function pseudoResiduals(trace: readonly TracePoint[]): number[] {
  * neighbours rather than a line through the window, so a bend in the window does not hide it.
  */
 export function isolatedReading(trace: readonly TracePoint[], lo: number, hi: number, limitSd: number, noiseVariance: number): number | null {
-  return worstIn(spikeSizes(trace), lo, hi, limitSd * Math.sqrt(noiseVariance));
+  return worstIn(spikeSizes(pseudoResiduals(trace)), lo, hi, limitSd * Math.sqrt(noiseVariance));
 }
 
 /**
@@ -241,8 +246,7 @@ export function isolatedReading(trace: readonly TracePoint[], lo: number, hi: nu
  * lifted by d is d/√1.5 off its neighbours' line, and each neighbour, measured against it, about half that; only
  * the lifted reading is the odd one out [derived by hand from the pseudo-residual's weights ½, ½].
  */
-function spikeSizes(trace: readonly TracePoint[]): number[] {
-  const sizes = pseudoResiduals(trace);
+function spikeSizes(sizes: readonly number[]): number[] {
   return sizes.map((size, i) => (size > (sizes[i - 1] ?? 0) && size >= (sizes[i + 1] ?? 0) ? size : 0));
 }
 
@@ -394,8 +398,10 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
   let firstShortest: { lo: number; hi: number; shape: WindowShape } | null = null;
   let firstSlowing: { lo: number; hi: number; shape: WindowShape } | null = null;
 
-  const noise = traceNoiseVariance(trace, settings.readingNoiseFloor);
-  const sizes = spikeSizes(trace);
+  // One pass over the readings gives both the trace's noise and each reading's distance from its neighbours.
+  const pseudo = pseudoResiduals(trace);
+  const noise = noiseVarianceOf(pseudo, settings.readingNoiseFloor ?? 0);
+  const sizes = spikeSizes(pseudo);
   const limit = settings.outlierLimitSd === undefined ? Number.POSITIVE_INFINITY : settings.outlierLimitSd * Math.sqrt(noise);
   // worstFrom[i]: the reading of trace[lo..i] furthest off its neighbours beyond the limit (isolatedReading), −1 if none.
   const worstFrom = new Array<number>(trace.length).fill(-1);
