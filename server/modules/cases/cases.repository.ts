@@ -339,29 +339,46 @@ type ListRow = {
   clinicianName: string | null;
 };
 
-export async function listCaseSummaries(f: CaseListFilter): Promise<{ items: CaseSummary[]; total: number }> {
-  const sequelize = CaseModel.sequelize!;
-  const { sql: where, replacements, soleCount } = listWhere(f);
-  const [{ n }] = (await sequelize.query(soleCount ?? `SELECT COUNT(*) AS n FROM cases c ${where}`, {
-    replacements,
-    type: QueryTypes.SELECT,
-  })) as [{ n: number | string }];
-  const total = Number(n); // PostgreSQL answers a bigint, as a string
-  if (total === 0 || f.offset >= total) return { items: [], total };
-
+/** Reads one page of the list; `total` is read in the same statement when given as a scalar subquery. */
+async function listPage(f: CaseListFilter, where: ListWhere, hint: string, totalSql = ''): Promise<(ListRow & { total?: number | string })[]> {
   const dir = f.dir ?? (f.sort && f.sort !== 'receivedAt' ? 'asc' : 'desc');
   const direction = dir === 'asc' ? 'ASC' : 'DESC';
   const column = sortColumn[f.sort ?? 'receivedAt'];
-  const rows = (await sequelize.query(
+  return (await CaseModel.sequelize!.query(
     `SELECT c.id, c.accession, c.state, c."patientName", c."specimenTypes", c."receivedAt", c.priority, c."patternCode",
-            u.name AS "clinicianName"
-       FROM cases c ${sortIndexHint(f, total)}
+            u.name AS "clinicianName"${totalSql}
+       FROM cases c ${hint}
        LEFT JOIN users u ON u.id = c."referringClinicianId"
-       ${where}
+       ${where.sql}
       ORDER BY c."${column}" ${direction}, c.id ${direction}
       LIMIT :limit OFFSET :offset`,
-    { replacements: { ...replacements, limit: f.limit, offset: f.offset }, type: QueryTypes.SELECT },
-  )) as ListRow[];
+    { replacements: { ...where.replacements, limit: f.limit, offset: f.offset }, type: QueryTypes.SELECT },
+  )) as (ListRow & { total?: number | string })[];
+}
+
+async function countMatches(where: ListWhere): Promise<number> {
+  const [{ n }] = (await CaseModel.sequelize!.query(where.soleCount ?? `SELECT COUNT(*) AS n FROM cases c ${where.sql}`, {
+    replacements: where.replacements,
+    type: QueryTypes.SELECT,
+  })) as [{ n: number | string }];
+  return Number(n); // PostgreSQL answers a bigint, as a string
+}
+
+export async function listCaseSummaries(f: CaseListFilter): Promise<{ items: CaseSummary[]; total: number }> {
+  const where = listWhere(f);
+  let rows: ListRow[];
+  let total: number;
+  if (!where.sql) {
+    // The whole list (the landing page, the most frequent call): its sort column's index serves the page without
+    // a hint, so the count comes in the same statement, one trip to the database instead of two. A page past
+    // the end has no row to carry the count, which is then read on its own.
+    const page = await listPage(f, where, '', ', (SELECT COUNT(*) FROM cases) AS total');
+    rows = page;
+    total = page.length ? Number(page[0]!.total) : await countMatches(where);
+  } else {
+    total = await countMatches(where);
+    rows = total === 0 || f.offset >= total ? [] : await listPage(f, where, sortIndexHint(f, total));
+  }
   return {
     items: rows.map((r) => ({
       id: r.id,
