@@ -344,6 +344,8 @@ export const flagCodes = [
   'OUTLIER_READING',
   /** The automatic window starts later than it could, to leave out a reading far off its neighbours. */
   'STRAY_READING_AVOIDED',
+  /** The readings jump to another level part-way through the window, which moves the straight line's rate. */
+  'LEVEL_JUMP',
   /** Most of the total rate remains with the inhibitor (or before the substrate). */
   'HIGH_BACKGROUND_FRACTION',
   /** Most of the total rate is also in the no-sample blank. */
@@ -382,6 +384,7 @@ export const flagTitles: Record<FlagCode, string> = {
   LAG_EXCLUDED: 'Slow start left out',
   OUTLIER_READING: 'A stray reading',
   STRAY_READING_AVOIDED: 'Window moved past a stray reading',
+  LEVEL_JUMP: 'Readings jump part-way',
   HIGH_BACKGROUND_FRACTION: 'Background is most of the rate',
   HIGH_BLANK_FRACTION: 'Blank is most of the rate',
   IMPLAUSIBLE_ACTIVITY: 'Implausibly high: check units',

@@ -1,4 +1,5 @@
 import type { AssayDefinition, Flag, FittedLine, RateWindow, TracePoint } from '@/schemas/assay';
+import { levelJump } from './level-jump';
 import { curvedPart, findLinearWindow, worstOutlier } from './linearity';
 import { fitTraceRange } from './regression';
 import { checkLinearRange, checkTrace, fmt, indexRange, type TraceLabel } from './trace';
@@ -91,9 +92,9 @@ export function fitTrace(
   }
   // A chosen window is checked and flagged; an automatic one found by the search is straight by construction
   // (so passes), and a trace shorter than the minimum, fitted whole, is checked like a chosen window.
-  if (options.checkR2 && count >= 4) {
-    flagCurvature(trace, lo, hi, label, settings, flags);
-  }
+  const curved = options.checkR2 && count >= 4 && flagCurvature(trace, lo, hi, label, settings, flags);
+  // A bent window is already flagged; on a straight one, a jump in level is what the curvature tests cannot see.
+  if (options.checkR2 && options.checkOutliers !== false && !curved) flagLevelJump(trace, lo, hi, label, settings, flags);
   if (options.checkOutliers !== false) {
     const outlier = worstOutlier(trace, lo, hi, settings.outlierLimitSd, settings.readingNoiseFloor);
     if (outlier) {
@@ -117,10 +118,21 @@ export function fitTrace(
   };
 }
 
-/** Flags the window when it is not straight (as a whole, or its second half against its first). */
-function flagCurvature(trace: readonly TracePoint[], lo: number, hi: number, label: TraceLabel, settings: RateSettings, flags: Flag[]): void {
+/** Flags the window when its readings jump to another level part-way (level-jump.ts). */
+function flagLevelJump(trace: readonly TracePoint[], lo: number, hi: number, label: TraceLabel, settings: RateSettings, flags: Flag[]): void {
+  const jump = levelJump(trace, lo, hi, settings);
+  if (!jump) return;
+  flags.push({
+    code: 'LEVEL_JUMP',
+    message: `${label} trace between ${fmt(trace[lo]!.t)} and ${fmt(trace[hi]!.t)} s: from ${fmt(jump.t)} s on the readings sit ${fmt(Math.abs(jump.jump), 2)} ${jump.jump > 0 ? 'higher' : 'lower'} than the line of those before (a jump: a bubble that stays, a knock, a lid), so the straight line's rate is ${fmt(Math.abs(jump.changePct), 3)}% ${jump.changePct > 0 ? 'faster' : 'slower'} than the rate on either side, ${fmt(jump.ratePerMin, 3)} per minute (limit ${fmt(settings.curvatureLimitPct, 3)}%); set the window on one side of the jump, or repeat the reading`,
+    values: { t: jump.t, jump: jump.jump, changePct: jump.changePct, ratePerMin: jump.ratePerMin, limitPct: settings.curvatureLimitPct },
+  });
+}
+
+/** Flags the window when it is not straight (as a whole, or its second half against its first); true when flagged. */
+function flagCurvature(trace: readonly TracePoint[], lo: number, hi: number, label: TraceLabel, settings: RateSettings, flags: Flag[]): boolean {
   const shape = curvedPart(trace, lo, hi, settings);
-  if (!shape) return;
+  if (!shape) return false;
   const change = shape.changePct;
   const fromS = trace[lo]!.t;
   const toS = trace[hi]!.t;
@@ -135,6 +147,7 @@ function flagCurvature(trace: readonly TracePoint[], lo: number, hi: number, lab
         : `${label} trace between ${fmt(fromS)} and ${fmt(toS)} s speeds up: the rate at the window's start is ${fmt(change, 3)}% slower than the straight line's (limit ${fmt(settings.curvatureLimitPct, 3)}%), as after a lag; start the window later`) + leftOut,
     values: { changePct: change, limitPct: settings.curvatureLimitPct },
   });
+  return true;
 }
 
 /** Index range for a choice; null (with a flag) when the automatic choice finds no straight window. */
