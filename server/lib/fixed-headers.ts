@@ -4,13 +4,13 @@ type HeaderValue = number | string | readonly string[];
 
 /**
  * The same response headers as `middleware` (helmet, say), worked out once instead of on every request. The
- * middleware is run once against a stand-in request and response that record what it sets and removes; when it
- * looks at the request, does not finish at once, or does anything else with the response, its answer may differ
- * between requests, and the middleware itself is used unchanged.
+ * middleware is run once against a stand-in request and response that record what it sets and removes, in order
+ * (a header set and then removed stays removed), and each request replays those calls; when it looks at the
+ * request, does not finish at once, or does anything else with the response, its answer may differ between
+ * requests, and the middleware itself is used unchanged.
  */
 export function fixedHeaders(middleware: RequestHandler): RequestHandler {
-  const set: Array<[string, HeaderValue]> = [];
-  const removed: string[] = [];
+  const steps: Array<(response: Response) => void> = [];
   let readsRequest = false;
   let finished = false;
   const req = new Proxy({} as Request, {
@@ -20,8 +20,8 @@ export function fixedHeaders(middleware: RequestHandler): RequestHandler {
     },
   });
   const recorder = {
-    setHeader: (name: string, value: HeaderValue) => void set.push([name, value]),
-    removeHeader: (name: string) => void removed.push(name),
+    setHeader: (name: string, value: HeaderValue) => void steps.push((response) => response.setHeader(name, value)),
+    removeHeader: (name: string) => void steps.push((response) => response.removeHeader(name)),
   };
   const res = new Proxy(recorder as unknown as Response, {
     get: (target, key) => {
@@ -39,8 +39,7 @@ export function fixedHeaders(middleware: RequestHandler): RequestHandler {
   }
   if (readsRequest || !finished) return middleware;
   return (_req, response, next) => {
-    for (const name of removed) response.removeHeader(name);
-    for (const [name, value] of set) response.setHeader(name, value);
+    for (const step of steps) step(response);
     next();
   };
 }

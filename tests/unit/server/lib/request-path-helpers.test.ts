@@ -1,4 +1,4 @@
-import express, { Router, type RequestHandler } from 'express';
+import express, { Router, type Request, type RequestHandler, type Response } from 'express';
 import helmet from 'helmet';
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
@@ -52,6 +52,120 @@ describe('fixedHeaders', () => {
   it('when a middleware does not call next at once, then it is used as it is', () => {
     const later: RequestHandler = (_req, _res, next) => void setTimeout(next, 0);
     expect(fixedHeaders(later)).toBe(later);
+  });
+});
+
+/** A stand-in response that writes down, in order, every header call made on it. */
+function recordingResponse() {
+  const calls: unknown[][] = [];
+  const res = {
+    setHeader: (name: string, value: unknown) => void calls.push(['setHeader', name, value]),
+    removeHeader: (name: string) => void calls.push(['removeHeader', name]),
+  } as unknown as Response;
+  return { res, calls };
+}
+
+const anyRequest = {} as Request;
+
+describe('fixedHeaders, what it promises beyond the same headers', () => {
+  it('when a middleware only sets headers and calls next at once, then it runs once when wrapped and never per request', async () => {
+    // Doc comment of fixedHeaders: the headers are "worked out once instead of on every request".
+    let runs = 0;
+    const headersOnly: RequestHandler = (_req, res, next) => {
+      runs += 1;
+      res.setHeader('X-Fixed', 'yes');
+      next();
+    };
+    const wrapped = fixedHeaders(headersOnly);
+    expect(runs).toBe(1);
+    expect(wrapped).not.toBe(headersOnly);
+    const first = await headersFrom(wrapped);
+    const second = await headersFrom(wrapped);
+    expect(runs).toBe(1);
+    expect(first.headers['x-fixed']).toBe('yes');
+    expect(second.headers['x-fixed']).toBe('yes');
+  });
+
+  it('when wrapped around helmet, then the replay makes exactly the header calls helmet makes itself, nothing more', () => {
+    // Reference: helmet 8 run directly on the same kind of stand-in response [confirmed: run beside it here]; helmet
+    // hides X-Powered-By with removeHeader [helmet 8 documentation, x-powered-by].
+    const direct = recordingResponse();
+    let directNext = 0;
+    void helmet(helmetOptions)(anyRequest, direct.res, () => void (directNext += 1));
+    const replayed = recordingResponse();
+    let replayNext = 0;
+    void fixedHeaders(helmet(helmetOptions))(anyRequest, replayed.res, () => void (replayNext += 1));
+    expect(replayed.calls).toEqual(direct.calls);
+    expect(replayed.calls).toContainEqual(['removeHeader', 'X-Powered-By']);
+    expect(replayed.calls.filter((c) => c[0] === 'removeHeader')).toEqual([['removeHeader', 'X-Powered-By']]);
+    expect([directNext, replayNext]).toEqual([1, 1]);
+  });
+
+  it('when a middleware sets a header and then removes it, then the answer has no such header, as with the middleware itself', async () => {
+    // Reference: the same middleware mounted directly in Express 5 [confirmed: run beside it here]; Node's
+    // removeHeader drops a header set earlier on the same response [Node.js http documentation].
+    const setThenRemove: RequestHandler = (_req, res, next) => {
+      res.setHeader('X-Temporary', '1');
+      res.removeHeader('X-Temporary');
+      res.setHeader('X-Kept', '2');
+      next();
+    };
+    const direct = await headersFrom(setThenRemove);
+    const fixed = await headersFrom(fixedHeaders(setThenRemove));
+    expect(direct.headers['x-temporary']).toBeUndefined();
+    expect(fixed.headers['x-temporary']).toBeUndefined();
+    expect(fixed.headers['x-kept']).toBe('2');
+    // Hand-worked order of calls: remove X-Gone, set X-Temporary, remove X-Temporary, set X-Kept.
+    const removeFirst: RequestHandler = (_req, res, next) => {
+      res.removeHeader('X-Gone');
+      setThenRemove(_req, res, next);
+    };
+    const replayed = recordingResponse();
+    void fixedHeaders(removeFirst)(anyRequest, replayed.res, () => undefined);
+    expect(replayed.calls).toEqual([
+      ['removeHeader', 'X-Gone'],
+      ['setHeader', 'X-Temporary', '1'],
+      ['removeHeader', 'X-Temporary'],
+      ['setHeader', 'X-Kept', '2'],
+    ]);
+  });
+
+  it('when a middleware looks at anything else on the response, then it is used as it is, per request', async () => {
+    // Doc comment: "does anything else with the response" means the middleware itself is used unchanged.
+    let runs = 0;
+    const readsResponse: RequestHandler = (_req, res, next) => {
+      runs += 1;
+      if (!res.headersSent) res.setHeader('X-Checked', 'yes');
+      next();
+    };
+    const wrapped = fixedHeaders(readsResponse);
+    expect(wrapped).toBe(readsResponse);
+    expect((await headersFrom(wrapped)).headers['x-checked']).toBe('yes');
+    expect(runs).toBe(2); // once when wrapped, once for the request
+  });
+
+  it('when a middleware calls next with an error, then it is used as it is', () => {
+    // Doc comment: a middleware that does not finish (next with an error is a failure, not a finish [Express 5
+    // guide, error handling]) is used unchanged.
+    const failing: RequestHandler = (_req, res, next) => {
+      res.setHeader('X-A', '1');
+      next(new Error('refused'));
+    };
+    expect(fixedHeaders(failing)).toBe(failing);
+  });
+
+  it('when a middleware throws, before or after calling next, then it is used as it is', () => {
+    // Doc comment: only a middleware that finishes at once is replaced; a throw is not a finish.
+    const throwsAtOnce: RequestHandler = () => {
+      throw new Error('broken');
+    };
+    const throwsAfterNext: RequestHandler = (_req, res, next) => {
+      res.setHeader('X-A', '1');
+      next();
+      throw new Error('broken late');
+    };
+    expect(fixedHeaders(throwsAtOnce)).toBe(throwsAtOnce);
+    expect(fixedHeaders(throwsAfterNext)).toBe(throwsAfterNext);
   });
 });
 
