@@ -207,3 +207,125 @@ describe('scoped', () => {
     expect(res.body).toEqual({ from: 'fallthrough' });
   });
 });
+
+/**
+ * A router wrapped so that a test can count the requests that enter it and the reads of its routes; the wrapper
+ * carries the router's own `stack`, which is all scoped() reads of it.
+ */
+function countingRouter(router: Router) {
+  const seen = { entered: 0, stackReads: 0 };
+  const handler = (req: Request, res: Response, next: (err?: unknown) => void) => {
+    seen.entered += 1;
+    router(req, res, next);
+  };
+  Object.defineProperty(handler, 'stack', {
+    get: () => {
+      seen.stackReads += 1;
+      return router.stack;
+    },
+  });
+  return { router: handler as unknown as Router, seen };
+}
+
+/** One app with the router mounted plainly and one with it scoped, each with the same fallthrough after it. */
+function plainAndScoped(router: Router) {
+  const counted = countingRouter(router);
+  const build = (mounted: RequestHandler) => {
+    const app = express();
+    app.use(mounted);
+    app.use((_req, res) => void res.status(404).json({ from: 'fallthrough' }));
+    return app;
+  };
+  return { plain: build(router), scopedApp: build(scoped(counted.router)), seen: counted.seen };
+}
+
+async function sameAnswer(plain: express.Express, scopedApp: express.Express, method: 'get' | 'post', path: string) {
+  const a = await request(plain)[method](path);
+  const b = await request(scopedApp)[method](path);
+  expect({ path, status: b.status, body: b.body as unknown }).toEqual({ path, status: a.status, body: a.body as unknown });
+  return b;
+}
+
+describe('scoped, which requests enter the router', () => {
+  it('when a request is under another prefix, then it never enters the router; under its own, in any case and with a trailing slash, it does', async () => {
+    // Doc comment of scoped: "only requests under its own prefixes (/api/<resource>) enter it"; Express 5 routing is
+    // case-insensitive and not strict about a trailing slash [confirmed: the plain router answers the same here].
+    const cases = Router();
+    cases.get('/api/cases', (_req, res) => void res.json({ from: 'cases' }));
+    cases.get('/api/cases/:id', (req, res) => void res.json({ id: req.params.id }));
+    const { plain, scopedApp, seen } = plainAndScoped(cases);
+    for (const path of ['/api/patients', '/api/casework', '/health', '/api', '/']) {
+      expect((await sameAnswer(plain, scopedApp, 'get', path)).status).toBe(404);
+    }
+    expect(seen.entered).toBe(0);
+    for (const path of ['/api/cases', '/API/Cases', '/api/cases/', '/api/CASES/7']) {
+      expect((await sameAnswer(plain, scopedApp, 'get', path)).status).toBe(200);
+    }
+    expect(seen.entered).toBe(4);
+  });
+
+  it('when a router has a route with one segment, then only requests for that segment enter it', async () => {
+    // Express 5: a route path matches the whole request path, so '/api' answers '/api' and '/api/' but not
+    // '/api/cases' [confirmed: the plain router answers the same here].
+    const root = Router();
+    root.get('/api', (_req, res) => void res.json({ from: 'root' }));
+    const { plain, scopedApp, seen } = plainAndScoped(root);
+    expect((await sameAnswer(plain, scopedApp, 'get', '/api/cases')).status).toBe(404);
+    expect((await sameAnswer(plain, scopedApp, 'get', '/other')).status).toBe(404);
+    expect(seen.entered).toBe(0);
+    expect((await sameAnswer(plain, scopedApp, 'get', '/api')).body).toEqual({ from: 'root' });
+    expect((await sameAnswer(plain, scopedApp, 'get', '/API/')).body).toEqual({ from: 'root' });
+    expect(seen.entered).toBe(2);
+  });
+
+  it('when a route\'s first segment is a parameter, then every request enters and the route answers any first segment', async () => {
+    // Doc comment: a route whose first two segments are not plain words lets a request of any path concern the router.
+    const anyKind = Router();
+    anyKind.get('/:kind/items', (req, res) => void res.json({ kind: req.params.kind }));
+    const { plain, scopedApp, seen } = plainAndScoped(anyKind);
+    expect((await sameAnswer(plain, scopedApp, 'get', '/reagents/items')).body).toEqual({ kind: 'reagents' });
+    expect((await sameAnswer(plain, scopedApp, 'get', '/elsewhere')).status).toBe(404);
+    expect(seen.entered).toBe(2);
+  });
+
+  it('when a route\'s segments hold a character other than a letter, digit or hyphen, then every request enters', async () => {
+    // Doc comment: only plain words make a prefix; '/api/cases.csv' (Express 5: a literal dot) is not one.
+    const exports = Router();
+    exports.get('/api/cases.csv', (_req, res) => void res.type('text/csv').send('id\n'));
+    const { plain, scopedApp, seen } = plainAndScoped(exports);
+    expect((await sameAnswer(plain, scopedApp, 'get', '/api/cases.csv')).status).toBe(200);
+    expect((await sameAnswer(plain, scopedApp, 'get', '/api/patients')).status).toBe(404);
+    expect(seen.entered).toBe(2);
+  });
+
+  it('when a router has router-level middleware, then every request enters it', async () => {
+    // Doc comment: router-level middleware may concern a request of any path.
+    const withMiddleware = Router();
+    withMiddleware.use((_req, res, next) => {
+      res.setHeader('X-Seen-By', 'router');
+      next();
+    });
+    withMiddleware.get('/api/runs', (_req, res) => void res.json({ from: 'runs' }));
+    const { plain, scopedApp, seen } = plainAndScoped(withMiddleware);
+    const elsewhere = await sameAnswer(plain, scopedApp, 'get', '/api/patients');
+    expect(elsewhere.status).toBe(404);
+    expect(elsewhere.headers['x-seen-by']).toBe('router');
+    expect((await sameAnswer(plain, scopedApp, 'get', '/api/runs')).body).toEqual({ from: 'runs' });
+    expect(seen.entered).toBe(2);
+  });
+
+  it('when requests come in, then the routes are read on the first request and not again', async () => {
+    // Doc comment: "The routes are read on the first request, when every router has been built."
+    const cases = Router();
+    cases.get('/api/cases', (_req, res) => void res.json({ from: 'cases' }));
+    const counted = countingRouter(cases);
+    const app = express();
+    app.use(scoped(counted.router));
+    expect(counted.seen.stackReads).toBe(0);
+    await request(app).get('/api/cases');
+    expect(counted.seen.stackReads).toBe(1);
+    await request(app).get('/api/cases');
+    await request(app).get('/api/patients');
+    expect(counted.seen.stackReads).toBe(1);
+  });
+});
