@@ -138,6 +138,9 @@ describe('toHttpError', () => {
       { code: 'NOT_A_NUMBER', row: 4, column: 'B3', columnNumber: 7, message: 'not a number' },
       { code: 'NOT_A_NUMBER', row: 5, column: 'C1', columnNumber: null, message: 'x' },
       { code: 'NOT_A_NUMBER', row: null, column: null, columnNumber: null, message: 'y' },
+      // A column whose header cell is empty has no name to give (the message names its number): column stays null
+      // and the word "null" is never written into the column.
+      { code: 'EMPTY_COLUMN_NAME', row: 1, column: null, columnNumber: 3, message: 'Column 3 has no name' },
     ] as never);
     const { status, body } = toHttpError(err);
     expect(status).toBe(400);
@@ -147,6 +150,7 @@ describe('toHttpError', () => {
       { row: 4, column: 'B3 (column 7)', message: 'not a number' },
       { row: 5, column: 'C1', message: 'x' },
       { row: null, column: null, message: 'y' },
+      { row: 1, column: null, message: 'Column 3 has no name' },
     ]);
   });
 
@@ -231,6 +235,9 @@ describe('toHttpError', () => {
     expect(toHttpError(lib(499, 'some.type')).status).toBe(499);
     expect(toHttpError(lib(399, 'some.type')).status).toBe(500);
     expect(toHttpError(lib(500, 'some.type')).status).toBe(500);
+    // 500 and 503 are 5xx, not the client's fault (RFC 9110 §15.6), so they are the server's own INTERNAL answer.
+    expect(toHttpError(lib(500, 'some.type')).body.error.code).toBe('INTERNAL');
+    expect(toHttpError(lib(503, 'some.type'))).toEqual(toHttpError(new Error('boom')));
     expect(toHttpError(lib(404)).status).toBe(500);
     expect(toHttpError(Object.assign(new Error('x'), { status: '404', type: 't' })).status).toBe(500);
     for (const thrown of [new Error('boom'), null, undefined, 'text', 42]) {
