@@ -346,6 +346,8 @@ export const flagCodes = [
   'STRAY_READING_AVOIDED',
   /** The readings jump to another level part-way through the window, which moves the straight line's rate. */
   'LEVEL_JUMP',
+  /** The automatic window keeps to one side of a jump in level, which would have moved its rate. */
+  'JUMP_AVOIDED',
   /** Most of the total rate remains with the inhibitor (or before the substrate). */
   'HIGH_BACKGROUND_FRACTION',
   /** Most of the total rate is also in the no-sample blank. */
@@ -385,6 +387,7 @@ export const flagTitles: Record<FlagCode, string> = {
   OUTLIER_READING: 'A stray reading',
   STRAY_READING_AVOIDED: 'Window moved past a stray reading',
   LEVEL_JUMP: 'Readings jump part-way',
+  JUMP_AVOIDED: 'Window kept clear of a jump',
   HIGH_BACKGROUND_FRACTION: 'Background is most of the rate',
   HIGH_BLANK_FRACTION: 'Blank is most of the rate',
   IMPLAUSIBLE_ACTIVITY: 'Implausibly high: check units',

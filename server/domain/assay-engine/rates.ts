@@ -1,5 +1,5 @@
 import type { AssayDefinition, Flag, FittedLine, RateWindow, TracePoint } from '@/schemas/assay';
-import { levelJump } from './level-jump';
+import { levelJump, type LevelJump } from './level-jump';
 import { curvedPart, findLinearWindow, worstOutlier } from './linearity';
 import { fitTraceRange } from './regression';
 import { checkLinearRange, checkTrace, fmt, indexRange, type TraceLabel } from './trace';
@@ -178,14 +178,17 @@ export function selectRange(
         });
         return null;
       }
-      if (found.lag && judged) {
+      // A jump in level inside the window (level-jump.ts) would bias its rate: the window keeps to one side of it.
+      const side = judged ? sideOfJump(trace, found.lo, found.hi, settings) : null;
+      const keepsStart = side === null || side.lo === found.lo;
+      if (found.lag && judged && keepsStart) {
         flags.push({
           code: 'LAG_EXCLUDED',
           message: `${label} trace: the first ${found.lag.readings} reading${found.lag.readings === 1 ? '' : 's'} (before ${fmt(found.lag.toS)} s) were left out of the rate: the reaction ran ${fmt(found.lag.slowerPct, 3)}% slower there than afterwards (a lag)`,
           values: { readings: found.lag.readings, toS: found.lag.toS, slowerPct: found.lag.slowerPct },
         });
       }
-      if (found.avoided && judged) {
+      if (found.avoided && judged && keepsStart) {
         const v = found.avoided;
         flags.push({
           code: 'STRAY_READING_AVOIDED',
@@ -193,7 +196,35 @@ export function selectRange(
           values: { reading: v.index + 1, t: v.t, readings: v.readings, fromS: v.fromS, toS: v.toS },
         });
       }
-      return { lo: found.lo, hi: found.hi };
+      if (side) {
+        const j = side.jump;
+        const [fromS, toS] = [trace[side.lo]!.t, trace[side.hi]!.t];
+        flags.push({
+          code: 'JUMP_AVOIDED',
+          message: `${label} trace: from ${fmt(j.t)} s on the readings sit ${fmt(Math.abs(j.jump), 2)} ${j.jump > 0 ? 'higher' : 'lower'} (a jump: a bubble that stays, a knock, a lid), which would make the straight line over ${fmt(trace[found.lo]!.t)}–${fmt(trace[found.hi]!.t)} s run ${fmt(Math.abs(j.changePct), 3)}% ${j.changePct > 0 ? 'faster' : 'slower'} than the rate on either side; the window is kept to ${fmt(fromS)}–${fmt(toS)} s, ${side.lo >= j.index ? 'after' : 'before'} the jump, the longer straight stretch on one side of it`,
+          values: { t: j.t, jump: j.jump, changePct: j.changePct, fromS, toS },
+        });
+      }
+      return side ? { lo: side.lo, hi: side.hi } : { lo: found.lo, hi: found.hi };
     }
   }
+}
+
+/**
+ * When the automatic window trace[lo..hi] holds a jump in level (levelJump), the longer straight stretch on one side
+ * of it: the window's own readings before the jump, or the longest straight window from the jump on (which may
+ * reach past `hi`). Of equal lengths, the earlier. Null when there is no jump, or neither side has enough readings.
+ */
+function sideOfJump(trace: readonly TracePoint[], lo: number, hi: number, settings: RateSettings): { lo: number; hi: number; jump: LevelJump } | null {
+  const jump = levelJump(trace, lo, hi, settings);
+  if (!jump) return null;
+  const sides: { lo: number; hi: number }[] = [];
+  if (jump.index - lo >= Math.max(3, settings.minPoints) && curvedPart(trace, lo, jump.index - 1, settings) === null) {
+    sides.push({ lo, hi: jump.index - 1 });
+  }
+  const after = findLinearWindow(trace.slice(jump.index), { ...settings, lagMaxS: 0 });
+  if (after.kind === 'found') sides.push({ lo: jump.index + after.lo, hi: jump.index + after.hi });
+  if (sides.length === 0) return null;
+  const longer = sides.reduce((a, b) => (b.hi - b.lo > a.hi - a.lo ? b : a));
+  return { ...longer, jump };
 }

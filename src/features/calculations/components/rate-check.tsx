@@ -147,7 +147,7 @@ export function RateCheck({ definitions }: { definitions: StoredAssayDefinition[
             </div>
             {!manual ? (
               <p className="mt-2 text-xs text-ink-faint">
-                Automatic: the longest straight stretch of at least {definition?.minPoints ?? '—'} readings (its rate changing by no more than {definition?.curvatureLimitPct ?? '—'}% from start to end), starting after any slower opening within the first {definition?.lagMaxS ?? '—'} s. A reading far off its neighbours (a bubble) is not allowed to straighten or bend a stretch, and readings that jump to another level part-way are flagged. When no stretch is straight, no rate is given.
+                Automatic: the longest straight stretch of at least {definition?.minPoints ?? '—'} readings (its rate changing by no more than {definition?.curvatureLimitPct ?? '—'}% from start to end), starting after any slower opening within the first {definition?.lagMaxS ?? '—'} s. A reading far off its neighbours (a bubble) is not allowed to straighten or bend a stretch, and it keeps to one side of readings that jump to another level part-way. When no stretch is straight, no rate is given.
               </p>
             ) : null}
           </fieldset>
