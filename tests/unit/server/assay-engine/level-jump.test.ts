@@ -106,6 +106,22 @@ describe('a jump in level inside a window', () => {
     // off its neighbours' line, 0.05/2/√1.5 = 0.0204 against a limit of 4 × 0.002 [derived by hand]).
     expect(levelJump(jumped(8, 10, -0.06, 4, -0.05), 0, 7, settings)).toMatchObject({ index: 4, t: 40 });
   });
+
+  it('a window of six readings with the stray-reading rule off: the one place, three either side, is tried', () => {
+    // Readings 10–15 of a 31-reading line, 0.05 lower from reading 13 on; the trace's noise is its floor (one jump
+    // hardly moves the median of 29 pseudo-residuals).
+    expect(levelJump(jumped(31, 10, -0.06, 13, -0.05), 10, 15, { ...settings, outlierLimitSd: undefined })).toMatchObject({ index: 13, t: 130 });
+  });
+
+  it('a flat trace with a jump too small to give it a measurable slope: no rate to move, so no jump is named', () => {
+    // 41 readings every 30 s (20 min), flat, 0.008 higher from 10 min on (k = 20): the line's slope is
+    // 0.008·Σ_{i≥20}(i − 20)·2/(41·1680/12) = 0.008·210·2/5740 = 0.000585 per minute [derived by hand as above], under
+    // the near-zero limit of 0.001; the gap itself is 0.008/(0.002·√(1/20 + 1/21 + …)) ≈ 3.6 SE, beyond noise.
+    const flat = jumped(41, 30, 0, 20, 0.008);
+    expect(levelJump(flat, 0, 40, settings)).toBeNull();
+    // With a near-zero limit below that slope, the same jump moves "the rate" from 0 to 0.000585: named.
+    expect(levelJump(flat, 0, 40, { ...settings, nearZeroSlopePerMin: 0.0001 })).toMatchObject({ index: 20, t: 600 });
+  });
 });
 
 /** Gaussian noise from a fixed linear congruential generator (Numerical Recipes' constants [from memory]). */
