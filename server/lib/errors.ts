@@ -71,13 +71,11 @@ export function zodFields(err: ZodError, prefix?: string): Record<string, string
   const fields: Record<string, string> = {};
   for (const issue of err.issues) {
     const parts = [...(prefix ? [prefix] : []), ...issue.path.map(String)];
-    let key = parts.join('.') || '(body)';
     if (issue.code === 'unrecognized_keys') {
       for (const k of issue.keys) fields[[...parts, k].join('.')] ??= 'Unknown field';
       continue;
     }
-    fields[key] ??= issue.message;
-    key = '';
+    fields[parts.join('.') || '(body)'] ??= issue.message;
   }
   return fields;
 }
