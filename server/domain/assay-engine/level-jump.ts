@@ -42,6 +42,17 @@ export interface LevelJump {
   changePct: number;
 }
 
+/** Critical |t| for a given number of places tried (Bonferroni-shared α), computed once per count. */
+const criticalFor = new Map<number, number>();
+function critical(places: number): number {
+  let z = criticalFor.get(places);
+  if (z === undefined) {
+    z = studentTQuantile(1 - CURVATURE_ALPHA / (2 * places), KNOWN_DF);
+    criticalFor.set(places, z);
+  }
+  return z;
+}
+
 type Sums = { n: number; x: number; y: number; xx: number; xy: number };
 const zero = (): Sums => ({ n: 0, x: 0, y: 0, xx: 0, xy: 0 });
 
@@ -92,7 +103,7 @@ function largestJump(trace: readonly TracePoint[], kept: readonly number[], nois
   };
   const all = part(0, m);
   const line = all.sxy / all.sxx;
-  const critical = studentTQuantile(1 - CURVATURE_ALPHA / (2 * (m - 2 * MIN_SIDE + 1)), KNOWN_DF);
+  const limit = critical(m - 2 * MIN_SIDE + 1);
   let best: Omit<LevelJump, 'changePct'> | null = null;
   for (let k = MIN_SIDE; k <= m - MIN_SIDE; k += 1) {
     const before = part(0, k);
@@ -102,7 +113,7 @@ function largestJump(trace: readonly TracePoint[], kept: readonly number[], nois
     const rate = (before.sxy + after.sxy) / sxx;
     const gap = after.my - before.my - rate * (after.mx - before.mx);
     const z = gap / Math.sqrt(noise * (1 / before.n + 1 / after.n + (after.mx - before.mx) ** 2 / sxx));
-    if (Math.abs(z) <= critical || (best && Math.abs(z) <= Math.abs(best.z))) continue;
+    if (Math.abs(z) <= limit || (best && Math.abs(z) <= Math.abs(best.z))) continue;
     const index = kept[k]!;
     best = { index, t: trace[index]!.t, jump: gap, z, ratePerMin: rate, linePerMin: line };
   }
