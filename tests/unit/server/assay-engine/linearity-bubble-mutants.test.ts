@@ -289,3 +289,66 @@ describe('findLinearWindow: naming the bubble a window gave way for', () => {
     expect(found.avoided).toEqual({ index: 1, t: 60, readings: 4, fromS: 0, toS: 240 });
   });
 });
+
+/*
+ * A flat trace (a blank, no reaction) read once a minute with one bubble: 0, 1, 0, 0, 0, 0, 0, 0, 0, 0. Distances to
+ * the neighbours' line: reading 1 |1 − 0| = 1, reading 2 |0 − ½| = 0.5, the rest 0; no floor, so the noise is 0 and
+ * reading 1 (above both neighbours) is the only bubble [by hand]. With no noise any quadratic term is significant,
+ * so a window is straight only where the bubble leaves no quadratic term and no change.
+ * - From reading 0 (the bubble at x = 1; P₂ and c₂ = d·P₂(1)/ΣP₂² as above): 0..9 (P₂ 4 of 528, start rate
+ *   −0.111 against the line's −0.042: change ≈ −62 %), 0..8 (2.33 of 308, ≈ −55 %), 0..7 (1 of 168, ≈ −41 %) bend;
+ *   0..6 has P₂(1) = 1 − 4 = 0: in its exact sums Szy = 1 − 91/7 = −12, Sxy = 1 − 21/7 = −2, Sxx 28, Sxz 168, so
+ *   c₂ ∝ 28·(−12) − 168·(−2) = 0; its halves (readings 0–2 and 3–6) are both flat (the bubble is the middle of the
+ *   first). Without reading 1 it is flat. The readings after it are flat too. Rate 0, and its slope's SE is 0 (the
+ *   noise, 0, bounds it).
+ * - From reading 1 every window starts on the bubble (x = 0, where P₂ is never 0): bent.
+ * - From reading 2 (lagMaxS 120 s: the last start): 2..9, flat, no bubble, rate 0, longer than 0..6.
+ * All rates are exactly 0 and the allowance is 0: both windows are of the fastest rate ("within 0 of 0"), and 0..6,
+ * holding the bubble, gives way to 2..9.
+ */
+describe('findLinearWindow: a flat trace with a bubble near its start', () => {
+  it('gives way from 0..6 (holding the bubble) to 2..9, the rates being equal at exactly 0', () => {
+    const found = findLinearWindow(perMinute([0, 1, 0, 0, 0, 0, 0, 0, 0, 0]), {
+      minPoints: 3,
+      curvatureLimitPct: 5,
+      lagMaxS: 120,
+      nearZeroSlopePerMin: 1e-6,
+      readingNoiseFloor: 0,
+      outlierLimitSd: 4,
+    });
+    expect(found.kind).toBe('found');
+    if (found.kind !== 'found') return;
+    expect([found.lo, found.hi]).toEqual([2, 9]);
+    expect(found.shape.slopePerMin).toBe(0);
+    expect(found.avoided).toEqual({ index: 1, t: 60, readings: 2, fromS: 0, toS: 120 });
+    expect(found.lag).toBeNull();
+  });
+});
+
+describe('findLinearWindow: giving way when the earliest window does not start at the first reading', () => {
+  it('gives way from 1..7 to 3..10 and counts the readings left out from the earliest window’s start', () => {
+    // −1, 0, 1, 0, 0, 0, 0, 0, 0, 0, 0: reading 0 sits 1 below a flat trace and reading 2 1 above it. Distances to
+    // the neighbours' line: reading 1 |0 − (−1 + 1)/2| = 0, reading 2 |1 − 0| = 1, reading 3 0.5, the rest 0: noise 0,
+    // reading 2 the only bubble [by hand]. From reading 0 every window either runs from −1 into the flat (without
+    // reading 2: a bend at the start, significant at noise 0) or is the three readings 0..2, the minimum, holding the
+    // bubble: none. From reading 1 the readings are those of the flat trace above (the bubble at x = 1), shifted by
+    // one: 1..7 is straight (P₂(1) = 0 for seven readings) and every longer window bends (1..10, ten readings:
+    // P₂(1) = (1 − 4.5)² − 8.25 = 4 of 528, as above). From reading 2 every window starts on the bubble. From reading 3,
+    // 3..10 is flat and clean: 8 readings, longer than 1..7's 7. All rates are 0, so 1..7 gives way to 3..10, two
+    // readings later; the readings before 1..7 (reading 0) are its lag, rising at (0 − (−1))/1 min = +1/min, and a
+    // percentage of the window's zero rate is 0.
+    const found = findLinearWindow(perMinute([-1, 0, 1, 0, 0, 0, 0, 0, 0, 0, 0]), {
+      minPoints: 3,
+      curvatureLimitPct: 5,
+      lagMaxS: 180,
+      nearZeroSlopePerMin: 1e-6,
+      readingNoiseFloor: 0,
+      outlierLimitSd: 4,
+    });
+    expect(found.kind).toBe('found');
+    if (found.kind !== 'found') return;
+    expect([found.lo, found.hi]).toEqual([3, 10]);
+    expect(found.avoided).toEqual({ index: 2, t: 120, readings: 2, fromS: 60, toS: 180 });
+    expect(found.lag).toEqual({ readings: 1, toS: 60, openingSlopePerMin: 1, slowerPct: 0 });
+  });
+});
