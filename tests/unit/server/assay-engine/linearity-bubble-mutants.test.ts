@@ -179,13 +179,13 @@ describe('worstOutlier: needs five readings', () => {
   });
 
   it('counts the readings of a window that does not start at the first reading', () => {
-    // 9, 1, 2, 13, 4, 5 one second apart, window 1..5 (reading 0, outside it, plays no part): the others 1, 2, 4, 5
-    // at 1, 2, 4, 5 s lie exactly on a = t (no residuals, so the SD is the floor, 1), and reading 3 reads 13 against
-    // the line's 3: 10 SDs off [by hand]. The others' means are over the window's four other readings (mean time 3 s).
-    const r = worstOutlier(everySecond([9, 1, 2, 13, 4, 5]), 1, 5, 3, 1);
-    expect(r?.index).toBe(3);
-    expect(r?.sds).toBeCloseTo(10, 9);
-    expect(r?.deviation).toBeCloseTo(10, 9);
+    // 9, 11, 1, 2, 3, 4 one second apart, window 1..5 (reading 0, outside it, plays no part): the others 1, 2, 3, 4 at
+    // 2, 3, 4, 5 s lie exactly on a = t − 1 (no residuals, so the SD is the floor, 1), which reads 0 at 1 s, so
+    // reading 1 is 11 off: 11 SDs [by hand]. The others' means are over the window's four other readings.
+    const r = worstOutlier(everySecond([9, 11, 1, 2, 3, 4]), 1, 5, 3, 1);
+    expect(r?.index).toBe(1);
+    expect(r?.sds).toBeCloseTo(11, 9);
+    expect(r?.deviation).toBeCloseTo(11, 9);
   });
 });
 
