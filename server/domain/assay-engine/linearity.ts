@@ -406,6 +406,9 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
   // worstFrom[i]: the reading of trace[lo..i] furthest off its neighbours beyond the limit (isolatedReading), −1 if none.
   const worstFrom = new Array<number>(trace.length).fill(-1);
   for (let lo = 0; lo + minPoints - 1 <= last && trace[lo]!.t - t0 <= settings.lagMaxS; lo += 1) {
+    // A window never starts on a reading far off its neighbours: its line would lean on it (the next start is tried),
+    // and the readings before it, taken for a lag, would be measured through it.
+    if (sizes[lo]! > limit) continue;
     // Longest first: all readings from lo, then shrink from the end until the window is straight.
     const sums = new WindowSums(trace[lo]!.t, trace[lo]!.a);
     for (let i = lo; i <= last; i += 1) {

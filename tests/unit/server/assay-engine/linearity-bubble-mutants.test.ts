@@ -243,18 +243,37 @@ describe('findLinearWindow: the opening readings before the window (the lag figu
     expect(found.lag).toEqual({ readings: 1, toS: 60, openingSlopePerMin: -1, slowerPct: 0 });
   });
 
-  it('takes the opening of one reading as the line through it and the window’s first reading, leaving nothing out', () => {
+  it('does not start a window on a reading far off its neighbours, and measures the opening without it', () => {
     // 0, 1, 0, −1, …, −9 once a minute: readings 1 to 11 lie on a = 2 − i; reading 0 sits 2 below that line. Reading
     // 1 is |1 − (0 + 0)/2| = 1 off its neighbours' line, the others 0 (reading 2: |0 − (1 − 1)/2| = 0), so reading 1
-    // counts as a bubble (noise the floor 0.05, limit 0.2) [by hand]. The window starts at reading 1 (reading 0 bends
-    // every window from 0). A line through two readings can leave none out: the opening rate is (1 − 0)/1 min = +1/min.
+    // counts as a bubble (noise the floor 0.05, limit 0.2) [by hand]. Reading 0 bends every window from 0, and no
+    // window starts on reading 1, so the window starts at reading 2. The opening, readings 0 to 2 without reading 1,
+    // is flat: (0 − 0)/2 min = 0 per minute, 100% slower than the window's −1 per minute [by hand]. (A window starting
+    // on reading 1 measured the opening through it: +1 per minute; on uneven times a "lag" −495% slower.)
     const trace = perMinute([0, 1, 0, -1, -2, -3, -4, -5, -6, -7, -8, -9]);
     const found = findLinearWindow(trace, { minPoints: 3, curvatureLimitPct: 5, lagMaxS: 600, nearZeroSlopePerMin: 1e-6, readingNoiseFloor: 0.05, outlierLimitSd: 4 });
     expect(found.kind).toBe('found');
     if (found.kind !== 'found') return;
-    expect(found.lo).toBe(1);
-    expect(found.lag?.readings).toBe(1);
-    expect(found.lag?.openingSlopePerMin).toBeCloseTo(1, 12);
+    expect(found.lo).toBe(2);
+    expect(found.shape.slopePerMin).toBeCloseTo(-1, 12);
+    expect(found.lag?.readings).toBe(2);
+    expect(found.lag?.openingSlopePerMin).toBeCloseTo(0, 12);
+    expect(found.lag?.slowerPct).toBeCloseTo(100, 9);
+  });
+
+  it('on uneven times, a bubble at the second reading neither starts the window nor makes the lag run faster than the reaction', () => {
+    // Readings at 0, 10, 60, 120 … 540 s: 0, then 1 (a bubble), then −(t − 60)/60. The window is 60–540 s at −1 per
+    // minute; the opening, 0 and 60 s without the bubble, is flat: 100% slower [by hand]. It was the window 10–540 s
+    // with an opening of +6 per minute, a lag "−494.7% slower".
+    const times = [0, 10, ...Array.from({ length: 9 }, (_, i) => 60 * (i + 1))];
+    const trace = times.map((t, i) => ({ t, a: i === 0 ? 0 : i === 1 ? 1 : -(t - 60) / 60 }));
+    const found = findLinearWindow(trace, { minPoints: 5, curvatureLimitPct: 5, lagMaxS: 120, nearZeroSlopePerMin: 0.001, readingNoiseFloor: 0.002, outlierLimitSd: 4 });
+    expect(found.kind).toBe('found');
+    if (found.kind !== 'found') return;
+    expect(trace[found.lo]!.t).toBe(60);
+    expect(found.shape.slopePerMin).toBeCloseTo(-1, 9);
+    expect(found.lag?.openingSlopePerMin).toBeCloseTo(0, 9);
+    expect(found.lag?.slowerPct).toBeCloseTo(100, 6);
   });
 });
 

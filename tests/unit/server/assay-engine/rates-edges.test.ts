@@ -264,9 +264,11 @@ describe('a bubble in a slowing window', () => {
     const flags: Flag[] = [];
     expect(fitTrace(trace, 'total', settings, { kind: 'auto' }, { checkR2: true }, flags)).toBeNull();
     expect(codes(flags)).toEqual(['NO_LINEAR_WINDOW']);
-    // The earliest five readings that slow down start where the lag ends, 60 s (the windows reaching back into the
-    // flat lag speed up instead): "the", not "the first", since they are not the trace's first readings.
-    expect(flags[0]!.message).toContain('across the 5 readings (60–100 s) the rate already falls');
+    // The earliest five readings that slow down start just after the lag (the windows reaching back into the flat
+    // lag speed up instead): at 70 s, since no window starts on the reading at 60 s, where the flat lag meets the
+    // fall, |1 − (1 + 0.924)/2|/√1.5 = 0.031 off its neighbours' line, beyond 4 × 0.002 [by hand]. "The", not "the
+    // first", since they are not the trace's first readings.
+    expect(flags[0]!.message).toContain('across the 5 readings (70–110 s) the rate already falls');
   });
 
   it('the window 110–190 s set by hand is flagged curved, judged without the bubble, and the flag names that reading', () => {
