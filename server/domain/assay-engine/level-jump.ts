@@ -65,8 +65,8 @@ export function levelJump(
   lo: number,
   hi: number,
   settings: Pick<LinearitySettings, 'curvatureLimitPct' | 'nearZeroSlopePerMin' | 'readingNoiseFloor' | 'outlierLimitSd'>,
+  noise: number = traceNoiseVariance(trace, settings.readingNoiseFloor),
 ): LevelJump | null {
-  const noise = traceNoiseVariance(trace, settings.readingNoiseFloor);
   if (!Number.isFinite(noise) || noise <= 0) return null;
   const every = Array.from({ length: hi - lo + 1 }, (_, i) => lo + i);
   const best = largestJump(trace, every, noise);

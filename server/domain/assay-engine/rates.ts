@@ -1,6 +1,6 @@
 import type { AssayDefinition, Flag, FittedLine, RateWindow, TracePoint } from '@/schemas/assay';
 import { levelJump, type LevelJump } from './level-jump';
-import { curvedPart, findLinearWindow, worstOutlier } from './linearity';
+import { curvedPart, findLinearWindow, traceNoiseVariance, worstOutlier } from './linearity';
 import { fitTraceRange } from './regression';
 import { checkLinearRange, checkTrace, fmt, indexRange, type TraceLabel } from './trace';
 
@@ -92,9 +92,11 @@ export function fitTrace(
   }
   // A chosen window is checked and flagged; an automatic one found by the search is straight by construction
   // (so passes), and a trace shorter than the minimum, fitted whole, is checked like a chosen window.
-  const curved = options.checkR2 && count >= 4 && flagCurvature(trace, lo, hi, label, settings, flags);
+  // The trace's reading noise, the yardstick of both window checks (computed once).
+  const noise = options.checkR2 ? traceNoiseVariance(trace, settings.readingNoiseFloor) : Number.NaN;
+  const curved = options.checkR2 && count >= 4 && flagCurvature(trace, lo, hi, label, settings, noise, flags);
   // A bent window is already flagged; on a straight one, a jump in level is what the curvature tests cannot see.
-  if (options.checkR2 && options.checkOutliers !== false && !curved) flagLevelJump(trace, lo, hi, label, settings, flags);
+  if (options.checkR2 && options.checkOutliers !== false && !curved) flagLevelJump(trace, lo, hi, label, settings, noise, flags);
   if (options.checkOutliers !== false) {
     const outlier = worstOutlier(trace, lo, hi, settings.outlierLimitSd, settings.readingNoiseFloor);
     if (outlier) {
@@ -119,8 +121,8 @@ export function fitTrace(
 }
 
 /** Flags the window when its readings jump to another level part-way (level-jump.ts). */
-function flagLevelJump(trace: readonly TracePoint[], lo: number, hi: number, label: TraceLabel, settings: RateSettings, flags: Flag[]): void {
-  const jump = levelJump(trace, lo, hi, settings);
+function flagLevelJump(trace: readonly TracePoint[], lo: number, hi: number, label: TraceLabel, settings: RateSettings, noise: number, flags: Flag[]): void {
+  const jump = levelJump(trace, lo, hi, settings, noise);
   if (!jump) return;
   flags.push({
     code: 'LEVEL_JUMP',
@@ -130,8 +132,8 @@ function flagLevelJump(trace: readonly TracePoint[], lo: number, hi: number, lab
 }
 
 /** Flags the window when it is not straight (as a whole, or its second half against its first); true when flagged. */
-function flagCurvature(trace: readonly TracePoint[], lo: number, hi: number, label: TraceLabel, settings: RateSettings, flags: Flag[]): boolean {
-  const shape = curvedPart(trace, lo, hi, settings);
+function flagCurvature(trace: readonly TracePoint[], lo: number, hi: number, label: TraceLabel, settings: RateSettings, noise: number, flags: Flag[]): boolean {
+  const shape = curvedPart(trace, lo, hi, settings, noise);
   if (!shape) return false;
   const change = shape.changePct;
   const fromS = trace[lo]!.t;
