@@ -1,6 +1,6 @@
 import type { TracePoint } from '@/schemas/assay';
 import { studentTQuantile } from '../reference-stats/distributions';
-import { CURVATURE_ALPHA, isolatedReading, traceNoiseVariance, type LinearitySettings } from './linearity';
+import { CURVATURE_ALPHA, isolatedReading, traceNoiseVariance, type WindowCheckSettings } from './linearity';
 
 /*
  * A jump in the readings' level inside a window: from one reading on, the trace runs on at the same rate but higher
@@ -64,7 +64,7 @@ export function levelJump(
   trace: readonly TracePoint[],
   lo: number,
   hi: number,
-  settings: Pick<LinearitySettings, 'curvatureLimitPct' | 'nearZeroSlopePerMin' | 'readingNoiseFloor' | 'outlierLimitSd'>,
+  settings: WindowCheckSettings,
   noise: number = traceNoiseVariance(trace, settings.readingNoiseFloor),
 ): LevelJump | null {
   if (!Number.isFinite(noise) || noise <= 0) return null;

@@ -153,6 +153,9 @@ export interface LinearitySettings {
   outlierLimitSd?: number;
 }
 
+/** What the checks of one window read from the settings (curvedPart, and level-jump.ts's levelJump). */
+export type WindowCheckSettings = Pick<LinearitySettings, 'curvatureLimitPct' | 'nearZeroSlopePerMin' | 'readingNoiseFloor' | 'outlierLimitSd'>;
+
 export function isStraight(shape: WindowShape, curvatureLimitPct: number): boolean {
   return !(shape.significant && Math.abs(shape.changePct) > curvatureLimitPct);
 }
@@ -287,7 +290,7 @@ export function curvedPart(
   trace: readonly TracePoint[],
   lo: number,
   hi: number,
-  settings: Pick<LinearitySettings, 'curvatureLimitPct' | 'nearZeroSlopePerMin' | 'readingNoiseFloor' | 'outlierLimitSd'>,
+  settings: WindowCheckSettings,
   noise: number = traceNoiseVariance(trace, settings.readingNoiseFloor),
   whole: WindowShape = windowShape(trace, lo, hi, settings.nearZeroSlopePerMin, noise),
 ): WindowShape | null {

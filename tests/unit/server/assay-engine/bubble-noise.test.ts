@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import type { Flag, TracePoint } from '@/schemas/assay';
 import { fitTrace } from '../../../../server/domain/assay-engine/rates';
-import { labRateSettings } from './fixtures';
+import { generator, labRateSettings } from './fixtures';
 
 /*
  * Straight traces with reading noise and one bubble, through the automatic window. The truth is the line's own
@@ -16,16 +16,6 @@ import { labRateSettings } from './fixtures';
  * long window of a slow trace (the bubble outweighs the whole fall) and are flagged OUTLIER_READING.
  */
 const settings = labRateSettings;
-
-function generator(seed: number) {
-  let state = seed;
-  const uniform = () => {
-    state = (state * 1664525 + 1013904223) % 4294967296;
-    return state / 4294967296;
-  };
-  const gauss = () => Math.sqrt(-2 * Math.log(uniform() + 1e-12)) * Math.cos(2 * Math.PI * uniform());
-  return { uniform, gauss };
-}
 
 describe('noisy straight traces with one bubble', () => {
   it('1,000 traces: a window is always given; median error under 2%, 95th percentile under 12%, and every error over 20% is flagged', () => {

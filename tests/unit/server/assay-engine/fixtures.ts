@@ -1,5 +1,6 @@
-import { defaultAssayDefinitions, type AssayDefinition, type FlagCode, type Trace } from '@/schemas/assay';
+import { defaultAssayDefinitions, type AssayDefinition, type FlagCode, type Trace, type TracePoint } from '@/schemas/assay';
 import type { AssayCode } from '@/schemas/common';
+import type { WindowShape } from '../../../../server/domain/assay-engine/linearity';
 import type { RateSettings } from '../../../../server/domain/assay-engine/rates';
 
 /*
@@ -33,3 +34,32 @@ export const codes = (r: { flags: { code: FlagCode }[] }) => r.flags.map((f) => 
 /** 13 readings every 10 s on a straight line of the given slope per minute. */
 export const line = (a0: number, slopePerMin: number, n = 13): Trace =>
   Array.from({ length: n }, (_, i) => ({ t: i * 10, a: a0 + (slopePerMin * i * 10) / 60 }));
+
+/** Readings once a minute (t in seconds = 60·i), so slopes per reading are per minute. */
+export const perMinute = (a: number[]): TracePoint[] => a.map((value, i) => ({ t: 60 * i, a: value }));
+
+/** A whole-window shape handed in as straight (its quadratic not significant), so only the part tests decide. */
+export const straightWhole = (n: number): WindowShape => ({
+  n,
+  slopePerMin: -0.5,
+  slopeSePerMin: 0.1,
+  startSlopePerMin: -0.5,
+  changePct: 0,
+  curvatureT: 0,
+  significant: false,
+  r2: 0.9,
+});
+
+/**
+ * Gaussian noise from a fixed linear congruential generator (Numerical Recipes' constants 1664525 and 1013904223
+ * [from memory]) through Box–Muller, so every run sees the same traces.
+ */
+export function generator(seed: number) {
+  let state = seed;
+  const uniform = () => {
+    state = (state * 1664525 + 1013904223) % 4294967296;
+    return state / 4294967296;
+  };
+  const gauss = () => Math.sqrt(-2 * Math.log(uniform() + 1e-12)) * Math.cos(2 * Math.PI * uniform());
+  return { uniform, gauss };
+}

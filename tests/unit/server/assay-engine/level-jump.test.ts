@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import type { Flag, TracePoint } from '@/schemas/assay';
 import { levelJump } from '../../../../server/domain/assay-engine/level-jump';
 import { fitTrace } from '../../../../server/domain/assay-engine/rates';
-import { labRateSettings } from './fixtures';
+import { generator, labRateSettings } from './fixtures';
 
 /*
  * A jump in level part-way through a window (level-jump.ts): the truths are analytic. For readings x_i = i·h
@@ -123,17 +123,6 @@ describe('a jump in level inside a window', () => {
     expect(levelJump(flat, 0, 40, { ...settings, nearZeroSlopePerMin: 0.0001 })).toMatchObject({ index: 20, t: 600 });
   });
 });
-
-/** Gaussian noise from a fixed linear congruential generator (Numerical Recipes' constants [from memory]). */
-function generator(seed: number) {
-  let state = seed;
-  const uniform = () => {
-    state = (state * 1664525 + 1013904223) % 4294967296;
-    return state / 4294967296;
-  };
-  const gauss = () => Math.sqrt(-2 * Math.log(uniform() + 1e-12)) * Math.cos(2 * Math.PI * uniform());
-  return { uniform, gauss };
-}
 
 describe('jumps against noise', () => {
   it('1,000 noisy straight traces with no jump: a jump is named in at most 2% of them, and their rate is still right', () => {

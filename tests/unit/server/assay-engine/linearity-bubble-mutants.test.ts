@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import type { TracePoint } from '@/schemas/assay';
-import { curvedPart, findLinearWindow, isolatedReading, windowShape, worstOutlier, type WindowShape } from '../../../../server/domain/assay-engine/linearity';
+import { curvedPart, findLinearWindow, isolatedReading, windowShape, worstOutlier } from '../../../../server/domain/assay-engine/linearity';
+import { perMinute, straightWhole } from './fixtures';
 
 /*
  * The bubble rules of the rate window (docs/domain.md § 5a), each checked on a hand-made trace against a value
@@ -73,17 +74,6 @@ describe('isolatedReading: the largest one beyond the limit, within the window',
  * without its bubble when it has 4 readings or more. The whole window is handed in as straight (its quadratic not
  * significant), so only the part tests and the bubble check decide. Readings once a minute (x in minutes).
  */
-const perMinute = (a: number[]): TracePoint[] => a.map((value, i) => ({ t: 60 * i, a: value }));
-const straightWhole = (n: number): WindowShape => ({
-  n,
-  slopePerMin: -0.5,
-  slopeSePerMin: 0.1,
-  startSlopePerMin: -0.5,
-  changePct: 0,
-  curvatureT: 0,
-  significant: false,
-  r2: 0.9,
-});
 const bubbleSettings = { curvatureLimitPct: 5, nearZeroSlopePerMin: 1e-6, readingNoiseFloor: 0, outlierLimitSd: 1 };
 
 describe('curvedPart: a bent window keeps its own verdict when bubbles are looked for', () => {

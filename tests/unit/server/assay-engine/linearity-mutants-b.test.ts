@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import type { TracePoint } from '@/schemas/assay';
-import { curvedPart, findLinearWindow, worstOutlier, type WindowShape } from '../../../../server/domain/assay-engine/linearity';
+import { curvedPart, findLinearWindow, worstOutlier } from '../../../../server/domain/assay-engine/linearity';
+import { perMinute, straightWhole } from './fixtures';
 
 /*
  * worstOutlier on five readings one second apart, every value hand-worked (least squares of the four other
@@ -58,17 +59,6 @@ describe('worstOutlier on hand-worked five-reading traces', () => {
  * Each trace's reading noise is 0 [worked by hand: most interior readings lie on the line through their
  * neighbours, so the median pseudo-residual is 0], so any difference between part slopes is significant.
  */
-const perMinute = (a: number[]): TracePoint[] => a.map((value, i) => ({ t: 60 * i, a: value }));
-const straightWhole = (n: number): WindowShape => ({
-  n,
-  slopePerMin: -0.5,
-  slopeSePerMin: 0.1,
-  startSlopePerMin: -0.5,
-  changePct: 0,
-  curvatureT: 0,
-  significant: false,
-  r2: 0.9,
-});
 const partSettings = { curvatureLimitPct: 5, nearZeroSlopePerMin: 1e-6, readingNoiseFloor: 0 };
 
 describe('curvedPart: the halves and thirds of a window', () => {
