@@ -57,6 +57,33 @@ describe('the words of a jump: up, and against the direction of the fall', () =>
   });
 });
 
+describe('only the trace the rate is read from, in absorbance, is checked for a jump', () => {
+  // The same window with its jump up at 50 s (LEVEL_JUMP above). docs/domain.md § 5a: the check is for "every window of
+  // the trace the rate is read from"; a background or blank trace (checkR2 off) shares the total's window and is not
+  // judged, and a log-transformed trace (checkOutliers off, first-order.ts) is not in absorbance, so the noise floor the
+  // jump is judged against does not apply to it.
+  const trace = jumped(37, 5, -0.06, 10, 0.01);
+  const window = { kind: 'manual', window: { fromS: 0, toS: 80 } } as const;
+
+  it('a background trace: not judged, so no jump is named', () => {
+    const flags: Flag[] = [];
+    const line = fitTrace(trace, 'background', labRateSettings, window, { checkR2: false }, flags);
+    expect(line!.slopePerMin).toBeCloseTo(-0.0497059, 6);
+    expect(codes(flags)).toEqual([]);
+  });
+
+  it('a trace fitted without the outlier checks (a log-transformed one): its r² is judged, no jump is named', () => {
+    // The jump lowers r² below 0.99 (LOW_R2, the one flag). In steps, with s_i = 1 from reading 10 on (7 of 17):
+    // SSE = d²·(Σ(s − s̄)² − (Σ(i − 8)s)²/Sxx) = 1e-4·(7·10/17 − 35²/408) = 1.1152e-4, and
+    // Syy = b²·408 + 2bd·35 + d²·70/17 with b = −0.005 per step = 0.0102 − 0.0035 + 0.00041176 = 0.0071118, so
+    // r² = 1 − 1.1152e-4/0.0071118 = 0.9843 [derived by hand from the normal equations].
+    const flags: Flag[] = [];
+    fitTrace(trace, 'total', labRateSettings, window, { checkR2: true, checkOutliers: false }, flags);
+    expect(codes(flags)).toEqual(['LOW_R2']);
+    expect(flags[0]!.values!.r2!).toBeCloseTo(0.9843, 4);
+  });
+});
+
 describe('a curved window is flagged curved, not for a jump', () => {
   it('a noise-free fall of 0.06/min read every 5 s for 180 s, 0.02 lower from 90 s, set by hand over 0–180 s: CURVATURE only', () => {
     // The jump is there (n = 37, k = 18: the line runs 13.95% faster than −0.06, level-jump.test.ts), but the window's
