@@ -373,10 +373,15 @@ export interface FoundWindow {
 
 export interface NoWindow {
   kind: 'none';
-  /** The earliest shortest window that is not straight (preferring one that slows down), to say how curved the trace is. */
+  /**
+   * The earliest shortest window that is not straight (preferring one that slows down), to say how curved the trace
+   * is; or, when every start had a straight window but the readings after each ran faster (`fasterAfter`), the first
+   * of those.
+   */
   lo: number;
   hi: number;
   shape: WindowShape;
+  fasterAfter?: true;
 }
 
 /**
@@ -400,6 +405,8 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
   const candidates: { lo: number; hi: number; shape: WindowShape; rate: number; suspect: number }[] = [];
   let firstShortest: { lo: number; hi: number; shape: WindowShape } | null = null;
   let firstSlowing: { lo: number; hi: number; shape: WindowShape } | null = null;
+  // The first straight window left out because the readings after it ran faster (a lag, or a jump in level).
+  let firstBeforeFaster: { lo: number; hi: number; shape: WindowShape } | null = null;
 
   // One pass over the readings gives both the trace's noise and each reading's distance from its neighbours.
   const pseudo = pseudoResiduals(trace);
@@ -432,6 +439,8 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
         const judged = lineSums(trace, lo, hi, suspect < 0 ? null : suspect);
         if (!runsFasterAfter(trace, hi, judged, minPoints, settings, noise, (from, to) => worstIn(sizes, from, to, limit))) {
           candidates.push({ lo, hi, shape, rate: judged.slope, suspect });
+        } else if (firstBeforeFaster === null) {
+          firstBeforeFaster = { lo, hi, shape };
         }
         break;
       }
@@ -446,7 +455,9 @@ export function findLinearWindow(trace: readonly TracePoint[], settings: Lineari
   }
 
   if (candidates.length === 0) {
-    const fallback = firstSlowing ?? firstShortest ?? { lo: 0, hi: last, shape: windowShape(trace, 0, last, settings.nearZeroSlopePerMin, noise) };
+    const bent = firstSlowing ?? firstShortest;
+    if (bent === null && firstBeforeFaster !== null) return { kind: 'none', ...firstBeforeFaster, fasterAfter: true };
+    const fallback = bent ?? { lo: 0, hi: last, shape: windowShape(trace, 0, last, settings.nearZeroSlopePerMin, noise) };
     return { kind: 'none', ...fallback };
   }
 

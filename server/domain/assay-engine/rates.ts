@@ -171,6 +171,14 @@ export function selectRange(
       // Too short for the laboratory's minimum: the whole trace, flagged by the caller for its length.
       if (trace.length < Math.max(3, settings.minPoints)) return { lo: 0, hi: last };
       const found = findLinearWindow(trace, settings);
+      if (found.kind === 'none' && found.fasterAfter) {
+        flags.push({
+          code: 'NO_LINEAR_WINDOW',
+          message: `${label} trace: every straight stretch (the first ${fmt(trace[found.lo]!.t)}–${fmt(trace[found.hi]!.t)} s) is followed by readings that run faster, as at the end of a lag or where the readings jump to another level, so no initial rate can be read. No activity is given: read for longer, or set a window by hand (it will be flagged)`,
+          values: { fromS: trace[found.lo]!.t, toS: trace[found.hi]!.t },
+        });
+        return null;
+      }
       if (found.kind === 'none') {
         const s = found.shape;
         flags.push({

@@ -124,6 +124,23 @@ describe('a jump in level inside a window', () => {
   });
 });
 
+describe('a jump the window search cannot step round', () => {
+  it('a lag, then a fall with a jump down near its end: refused, saying why, not that no stretch is straight', () => {
+    // Flat to 30 s, then falling 0.1/min, 0.015 lower from 160 s, read every 5 s to 200 s. Each start's longest
+    // straight window ends where the readings after it run faster (the lag's end, or the jump), so none is taken:
+    // no rate is given [a safe refusal; docs/domain.md § 5a]. It used to say "no stretch of 41 or more readings is
+    // straight", the whole trace's length, though the minimum is 5 and 30–155 s is straight.
+    const trace = Array.from({ length: 41 }, (_, i) => ({ t: i * 5, a: 1 - (0.1 * Math.max(0, i * 5 - 30)) / 60 + (i >= 32 ? -0.015 : 0) }));
+    const { line, flags } = fit(trace);
+    expect(line).toBeNull();
+    expect(codes(flags)).toEqual(['NO_LINEAR_WINDOW']);
+    expect(flags[0]!.message).toBe(
+      'total trace: every straight stretch (the first 0–35 s) is followed by readings that run faster, as at the end of a lag or where the readings jump to another level, so no initial rate can be read. No activity is given: read for longer, or set a window by hand (it will be flagged)',
+    );
+    expect(flags[0]!.values).toEqual({ fromS: 0, toS: 35 });
+  });
+});
+
 describe('jumps against noise', () => {
   it('1,000 noisy straight traces with no jump: a jump is named in at most 2% of them, and their rate is still right', () => {
     // α = 0.01 shared among the places tried (Bonferroni) bounds the false alarms of one window at 1% when the noise
