@@ -188,9 +188,10 @@ export function selectRange(
         });
         return null;
       }
-      // A jump in level inside the window (level-jump.ts) would bias its rate: the window keeps to one side of it.
-      const side = judged ? sideOfJump(trace, found.lo, found.hi, settings) : null;
-      const keepsStart = side === null || side.lo === found.lo;
+      // A jump in level inside the window (level-jump.ts) would bias its rate: the window keeps to one side of it. A
+      // "lag" whose readings ran at the window's own rate, at another level, was a jump at the window's start.
+      const side = judged ? (sideOfJump(trace, found.lo, found.hi, settings) ?? (found.lag ? jumpForLag(trace, found.lo, found.hi, settings) : null)) : null;
+      const keepsStart = side === null || (side.region.lo === found.lo && side.lo === found.lo);
       if (found.lag && judged && keepsStart) {
         flags.push({
           code: 'LAG_EXCLUDED',
@@ -211,7 +212,7 @@ export function selectRange(
         const [fromS, toS] = [trace[side.lo]!.t, trace[side.hi]!.t];
         flags.push({
           code: 'JUMP_AVOIDED',
-          message: `${label} trace: from ${fmt(j.t)} s on the readings sit ${fmt(Math.abs(j.jump), 2)} ${j.jump > 0 ? 'higher' : 'lower'} (a jump: a bubble that stays, a knock, a lid), which would make the straight line over ${fmt(trace[found.lo]!.t)}–${fmt(trace[found.hi]!.t)} s run ${fmt(Math.abs(j.changePct), 3)}% ${j.changePct > 0 ? 'faster' : 'slower'} than the rate on either side; the window is kept to ${fmt(fromS)}–${fmt(toS)} s, ${side.lo >= j.index ? 'after' : 'before'} the jump, the longer straight stretch on one side of it`,
+          message: `${label} trace: from ${fmt(j.t)} s on the readings sit ${fmt(Math.abs(j.jump), 2)} ${j.jump > 0 ? 'higher' : 'lower'} (a jump: a bubble that stays, a knock, a lid), which would make the straight line over ${fmt(trace[side.region.lo]!.t)}–${fmt(trace[side.region.hi]!.t)} s run ${fmt(Math.abs(j.changePct), 3)}% ${j.changePct > 0 ? 'faster' : 'slower'} than the rate on either side; the window is kept to ${fmt(fromS)}–${fmt(toS)} s, ${side.lo >= j.index ? 'after' : 'before'} the jump, the longer straight stretch on one side of it`,
           values: { t: j.t, jump: j.jump, changePct: j.changePct, fromS, toS },
         });
       }
@@ -225,8 +226,14 @@ export function selectRange(
  * of it: the window's own readings before the jump, or the longest straight window from the jump on (which may
  * reach past `hi`). Of equal lengths, the earlier. Null when there is no jump, or neither side has enough readings.
  */
-function sideOfJump(trace: readonly TracePoint[], lo: number, hi: number, settings: RateSettings): { lo: number; hi: number; jump: LevelJump } | null {
-  const jump = levelJump(trace, lo, hi, settings);
+function sideOfJump(
+  trace: readonly TracePoint[],
+  lo: number,
+  hi: number,
+  settings: RateSettings,
+  found: LevelJump | null = levelJump(trace, lo, hi, settings),
+): JumpSide | null {
+  const jump = found;
   if (!jump) return null;
   const sides: { lo: number; hi: number }[] = [];
   if (jump.index - lo >= Math.max(3, settings.minPoints) && curvedPart(trace, lo, jump.index - 1, settings) === null) {
@@ -236,5 +243,25 @@ function sideOfJump(trace: readonly TracePoint[], lo: number, hi: number, settin
   if (after.kind === 'found') sides.push({ lo: jump.index + after.lo, hi: jump.index + after.hi });
   if (sides.length === 0) return null;
   const longer = sides.reduce((a, b) => (b.hi - b.lo > a.hi - a.lo ? b : a));
-  return { ...longer, jump };
+  return { ...longer, jump, region: { lo, hi } };
+}
+
+/** A side of a jump kept by sideOfJump, the jump, and the readings it was found in. */
+type JumpSide = { lo: number; hi: number; jump: LevelJump; region: { lo: number; hi: number } };
+
+/**
+ * When the automatic window trace[lo..hi] starts after a "lag", whether the readings before it were a jump instead:
+ * over the trace's first reading to `hi`, a jump at the window's first reading (or next to it) with the readings on
+ * each side running at the same rate (within the curvature limit, as two halves of a window must). A real lag runs
+ * slower than the reaction, so its two sides differ; a jump up on a falling line made the readings before it look
+ * slower to the window search. Then the longer side is kept, as for a jump inside a window.
+ */
+function jumpForLag(trace: readonly TracePoint[], lo: number, hi: number, settings: RateSettings): JumpSide | null {
+  const jump = levelJump(trace, 0, hi, settings);
+  if (!jump || Math.abs(jump.index - lo) > 1 || jump.index < Math.max(3, settings.minPoints)) return null;
+  const before = Math.abs(fitTraceRange(trace, 0, jump.index - 1).slope);
+  const after = Math.abs(fitTraceRange(trace, jump.index, hi).slope);
+  const scale = Math.max(before, after);
+  if (scale > 0 && (100 * Math.abs(after - before)) / scale > settings.curvatureLimitPct) return null;
+  return sideOfJump(trace, 0, hi, settings, jump);
 }

@@ -124,6 +124,36 @@ describe('a jump in level inside a window', () => {
   });
 });
 
+describe('a jump near the start, taken for a lag by the window search', () => {
+  it('a fall of 0.06/min read every 5 s, 0.01 higher from 50 s: the readings before are the same rate at another level, so no lag is named', () => {
+    // Noise-free: the jump up makes every window across it slower, so the search takes 50–80 s and the ten readings
+    // before it for a lag "9.09% slower". Their own rate is the line's −0.06 per minute, as after it [by
+    // construction]: a jump, not a lag. The longer side, 0–45 s (ten readings against seven), is kept, at exactly
+    // −0.06; the straight line over 0–80 s would run 0.06 − 0.01·35·12/408 = 0.0497 per minute, 17.2% slower
+    // [derived by hand as above, n = 17, k = 10].
+    const { line, flags } = fit(jumped(17, 5, -0.06, 10, 0.01));
+    expect(codes(flags)).toEqual(['JUMP_AVOIDED']);
+    expect(line).toMatchObject({ fromS: 0, toS: 45, points: 10 });
+    expect(line!.slopePerMin).toBeCloseTo(-0.06, 9);
+    expect(flags[0]!.values?.jump).toBeCloseTo(0.01, 9);
+    expect(flags[0]!.message).toBe(
+      'total trace: from 50 s on the readings sit 0.01 higher (a jump: a bubble that stays, a knock, a lid), which would make the straight line over 0–80 s run 17.2% slower than the rate on either side; the window is kept to 0–45 s, before the jump, the longer straight stretch on one side of it',
+    );
+  });
+
+  it('a real lag (flat, then falling) is still a lag: the two sides do not run at the same rate', () => {
+    // Flat for 30 s, then falling 0.06/min, read every 5 s to 150 s, with the ripple: the readings before the window
+    // run at 0, not at the window's rate [by construction].
+    const trace = Array.from({ length: 31 }, (_, i) => ({ t: i * 5, a: 1.2 - (0.06 * Math.max(0, i * 5 - 30)) / 60 + 0.002 * Math.sin(i * 2.1) }));
+    const { line, flags } = fit(trace);
+    expect(codes(flags)).toEqual(['LAG_EXCLUDED']);
+    // The window may take the lag's last readings while it stays straight within the curvature limit (5%): here
+    // 20–150 s at −0.0587 per minute, 2% slow, as before the jump rule.
+    expect(line!.fromS).toBeGreaterThanOrEqual(15);
+    expect(Math.abs(line!.slopePerMin + 0.06)).toBeLessThan(0.05 * 0.06);
+  });
+});
+
 describe('a jump the window search cannot step round', () => {
   it('a lag, then a fall with a jump down near its end: refused, saying why, not that no stretch is straight', () => {
     // Flat to 30 s, then falling 0.1/min, 0.015 lower from 160 s, read every 5 s to 200 s. Each start's longest
