@@ -58,7 +58,9 @@ const zero = (): Sums => ({ n: 0, x: 0, y: 0, xx: 0, xy: 0 });
 
 /**
  * The most significant jump in trace[lo..hi], when it moves the straight line's slope beyond the curvature limit;
- * else null. Needs 2 × MIN_SIDE readings.
+ * else null. Needs 2 × MIN_SIDE readings. `againstPerMin`: judge the move against this rate instead of the trace's own
+ * (a background or blank trace, whose slope is subtracted from the total's: against the specific rate); `changePct`
+ * is then the size of the move as a share of it.
  */
 export function levelJump(
   trace: readonly TracePoint[],
@@ -66,6 +68,7 @@ export function levelJump(
   hi: number,
   settings: WindowCheckSettings,
   noise: number = traceNoiseVariance(trace, settings.readingNoiseFloor),
+  againstPerMin?: number,
 ): LevelJump | null {
   if (!Number.isFinite(noise) || noise <= 0) return null;
   const every = Array.from({ length: hi - lo + 1 }, (_, i) => lo + i);
@@ -74,8 +77,9 @@ export function levelJump(
   // A jump that is gone once the reading furthest off its neighbours is left out was that one reading (a bubble).
   const stray = settings.outlierLimitSd === undefined || every.length < 4 ? null : isolatedReading(trace, lo, hi, settings.outlierLimitSd, noise);
   if (stray !== null && !largestJump(trace, every.filter((i) => i !== stray), noise)) return null;
-  const scale = Math.max(Math.abs(best.ratePerMin), Math.abs(best.linePerMin));
-  const changePct = scale < settings.nearZeroSlopePerMin ? 0 : (100 * (Math.abs(best.linePerMin) - Math.abs(best.ratePerMin))) / scale;
+  const scale = againstPerMin === undefined ? Math.max(Math.abs(best.ratePerMin), Math.abs(best.linePerMin)) : Math.abs(againstPerMin);
+  const moved = againstPerMin === undefined ? Math.abs(best.linePerMin) - Math.abs(best.ratePerMin) : Math.abs(best.linePerMin - best.ratePerMin);
+  const changePct = scale < settings.nearZeroSlopePerMin ? 0 : (100 * moved) / scale;
   return Math.abs(changePct) > settings.curvatureLimitPct ? { ...best, changePct } : null;
 }
 

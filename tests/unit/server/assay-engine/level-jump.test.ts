@@ -1,8 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import type { Flag, TracePoint } from '@/schemas/assay';
 import { levelJump } from '../../../../server/domain/assay-engine/level-jump';
+import { calculateActivity } from '../../../../server/domain/assay-engine/engine';
 import { fitTrace } from '../../../../server/domain/assay-engine/rates';
-import { generator, labRateSettings } from './fixtures';
+import { cuvette, def, generator, labRateSettings } from './fixtures';
 
 /*
  * A jump in level part-way through a window (level-jump.ts): the truths are analytic. For readings x_i = i·h
@@ -151,6 +152,48 @@ describe('a jump near the start, taken for a lag by the window search', () => {
     // 20–150 s at −0.0587 per minute, 2% slow, as before the jump rule.
     expect(line!.fromS).toBeGreaterThanOrEqual(15);
     expect(Math.abs(line!.slopePerMin + 0.06)).toBeLessThan(0.05 * 0.06);
+  });
+});
+
+describe('a jump in the background trace, whose slope is subtracted', () => {
+  // Total: 1.2 − 0.06·t/min; background (the inhibitor-insensitive rate): 0.9 − 0.012·t/min, 0.01 lower from 90 s on;
+  // both read every 5 s for 180 s with a ±0.002 ripple. The specific rate is −0.048 per minute. The background's
+  // line over 0–180 s runs −0.012 − 0.01·171·12/4218 = −0.01686 per minute [derived by hand as above, n = 37,
+  // k = 18], so the specific rate reads −0.0431 and the activity 43.1 against 48 (factor 1000, fixtures.ts): 10% low,
+  // and the background trace was never checked for it.
+  const ripple = (p: TracePoint, i: number) => ({ ...p, a: p.a + 0.002 * Math.sin(i * 2.1) });
+  const total = jumped(37, 5, -0.06, 0, 0).map(ripple);
+  const background = jumped(37, 5, -0.012, 18, -0.01).map((p, i) => ({ t: p.t, a: p.a - 0.3 + 0.002 * Math.sin(i * 1.7) }));
+
+  it('is flagged LEVEL_JUMP on the background, by how much it moves the specific rate', () => {
+    const r = calculateActivity({ assay: 'CI', ...cuvette, total, background }, def('CI'));
+    const flag = r.flags.find((f) => f.code === 'LEVEL_JUMP');
+    expect(flag?.message).toMatch(/^background trace between 0 and 180 s: from 90 s on the readings sit 0\.0\d+ lower than the line of those before/);
+    expect(flag?.message).toMatch(/of the specific rate \(limit 5%\); set the window on one side of the jump, or repeat the background reading$/);
+    expect(flag?.values?.t).toBe(90);
+    expect(Math.abs(flag!.values!.jump! + 0.01)).toBeLessThan(0.002);
+    // 0.00486 of 0.048 per minute: 10.1% [by hand above]; the ripple moves it by a little (11.1% measured).
+    expect(flag!.values!.changePct!).toBeGreaterThan(8);
+    expect(flag!.values!.changePct!).toBeLessThan(14);
+    expect(r.activity).toBeLessThan(0.92 * 48);
+  });
+
+  it('a jump in a no-sample blank subtracted from the total is flagged the same way, and a blank that cancels is not judged', () => {
+    // CIV subtracts no background; its blank (the same 0.01 jump at 90 s on −0.012 per minute) is subtracted from the
+    // total: the same 10% move of the specific rate [as above].
+    const r = calculateActivity({ assay: 'CIV', ...cuvette, total }, def('CIV'), { blank: background });
+    expect(r.flags.find((f) => f.code === 'LEVEL_JUMP')?.message).toMatch(/^blank trace between 0 and 180 s: from 90 s on/);
+    // With a background given, the blank is in both traces and cancels (T − B): its jump does not reach the rate.
+    const both = calculateActivity({ assay: 'CI', ...cuvette, total, background: jumped(37, 5, -0.012, 0, 0) }, def('CI'), { blank: background });
+    expect(both.flags.map((f) => f.code)).not.toContain('LEVEL_JUMP');
+  });
+
+  it('a background with no jump, or a jump too small to move the specific rate by 5%, is not flagged', () => {
+    const clean = jumped(37, 5, -0.012, 0, 0).map((p, i) => ({ t: p.t, a: p.a - 0.3 + 0.002 * Math.sin(i * 1.7) }));
+    expect(calculateActivity({ assay: 'CI', ...cuvette, total, background: clean }, def('CI')).flags.map((f) => f.code)).not.toContain('LEVEL_JUMP');
+    // A jump of 0.004 moves the background's line by 0.004·0.4865 = 0.0019 per minute, 4.1% of 0.048 (noise-free).
+    const small = jumped(37, 5, -0.012, 18, -0.004).map((p) => ({ t: p.t, a: p.a - 0.3 }));
+    expect(calculateActivity({ assay: 'CI', ...cuvette, total, background: small }, def('CI')).flags.map((f) => f.code)).not.toContain('LEVEL_JUMP');
   });
 });
 
