@@ -142,6 +142,15 @@ describe('a jump near the start, taken for a lag by the window search', () => {
     );
   });
 
+  it('the same jump with a long trace after it: the side after is kept, and still no lag is named', () => {
+    // 37 readings: ten before the jump, 27 from it on; the search takes 50–180 s after a "lag", which was the jump.
+    const { line, flags } = fit(jumped(37, 5, -0.06, 10, 0.01));
+    expect(codes(flags)).toEqual(['JUMP_AVOIDED']);
+    expect(line).toMatchObject({ fromS: 50, toS: 180, points: 27 });
+    expect(line!.slopePerMin).toBeCloseTo(-0.06, 9);
+    expect(flags[0]!.message).toContain('the window is kept to 50–180 s, after the jump');
+  });
+
   it('a real lag (flat, then falling) is still a lag: the two sides do not run at the same rate', () => {
     // Flat for 30 s, then falling 0.06/min, read every 5 s to 150 s, with the ripple: the readings before the window
     // run at 0, not at the window's rate [by construction].
