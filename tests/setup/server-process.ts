@@ -50,9 +50,24 @@ export type ServerProcess = {
 
 /**
  * Starts the real server (`node --import tsx server/index.ts`) on a free port over `dbPath` and waits until
- * /api/health answers; throws with the server's output if it exits first.
+ * /api/health answers; throws with the server's output if it exits first. The answer counts only once the child has
+ * said it is serving on that port: between choosing a free port and the child binding it, another test's server can
+ * take the same port, and its answers (a production server refusing this origin with 403) were once taken for ours.
+ * A child that finds its port taken is started again on another.
  */
 export async function startServerProcess(env: Record<string, string>, dbPath: string): Promise<ServerProcess> {
+  for (let tries = 1; ; tries++) {
+    try {
+      return await startOnFreePort(env, dbPath);
+    } catch (err) {
+      if (!(err instanceof PortTaken) || tries >= 3) throw err;
+    }
+  }
+}
+
+class PortTaken extends Error {}
+
+async function startOnFreePort(env: Record<string, string>, dbPath: string): Promise<ServerProcess> {
   const port = await freePort();
   const smtpPort = await freePort();
   const child = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
@@ -65,10 +80,14 @@ export async function startServerProcess(env: Record<string, string>, dbPath: st
   child.stderr.on('data', (d: Buffer) => (log += d.toString()));
   const exited = new Promise<number | null>((resolve) => child.once('exit', (code) => resolve(code)));
   const origin = `http://localhost:${port}`;
+  const serving = `serving on http://localhost:${port}`;
   for (let attempt = 0; ; attempt++) {
-    if (child.exitCode !== null) throw new Error(`server exited with ${child.exitCode}:\n${log}`);
+    if (child.exitCode !== null) {
+      if (log.includes('EADDRINUSE')) throw new PortTaken(`port ${port} was taken:\n${log}`);
+      throw new Error(`server exited with ${child.exitCode}:\n${log}`);
+    }
     try {
-      if ((await fetch(`${origin}/api/health`)).ok) break;
+      if (log.includes(serving) && (await fetch(`${origin}/api/health`)).ok) break;
     } catch {
       /* not listening yet */
     }
