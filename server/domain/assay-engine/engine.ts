@@ -11,10 +11,8 @@ import {
 } from '@/schemas/assay';
 import { activityFactor } from './activity';
 import { calculateFirstOrder } from './first-order';
-import { levelJump } from './level-jump';
-import { traceNoiseVariance } from './linearity';
-import { fitTrace, type WindowChoice } from './rates';
-import { fmt, indexRange, sameTrace } from './trace';
+import { fitTrace, flagJumpAgainst, type WindowChoice } from './rates';
+import { fmt, sameTrace } from './trace';
 
 /** Inputs beyond the HTTP contract, for callers that have them (plate wells, first-order runs). */
 export interface CalculationOptions {
@@ -26,28 +24,6 @@ export interface CalculationOptions {
 
 /** Slopes closer than this (relative) are taken as the same: the background cancels the total. */
 const SAME_SLOPE_RELATIVE = 1e-9;
-
-/**
- * Flags a jump in level inside the window of a background or blank trace (level-jump.ts): its slope is subtracted
- * from the total's, so the jump is judged by how much it moves the specific rate, against the curvature limit.
- */
-function flagJumpIn(
-  trace: readonly TracePoint[],
-  fitted: FittedLine,
-  label: 'background' | 'blank',
-  specificPerMin: number,
-  definition: AssayDefinition,
-  flags: Flag[],
-): void {
-  const { lo, hi } = indexRange(trace, { fromS: fitted.fromS, toS: fitted.toS });
-  const jump = levelJump(trace, lo, hi, definition, traceNoiseVariance(trace, definition.readingNoiseFloor), specificPerMin);
-  if (!jump) return;
-  flags.push({
-    code: 'LEVEL_JUMP',
-    message: `${label} trace between ${fmt(fitted.fromS)} and ${fmt(fitted.toS)} s: from ${fmt(jump.t)} s on the readings sit ${fmt(Math.abs(jump.jump), 2)} ${jump.jump > 0 ? 'higher' : 'lower'} than the line of those before (a jump: a bubble that stays, a knock, a lid), which moves the ${label} slope by ${fmt(Math.abs(jump.linePerMin - jump.ratePerMin), 3)} per minute, ${fmt(jump.changePct, 3)}% of the specific rate (limit ${fmt(definition.curvatureLimitPct, 3)}%); set the window on one side of the jump, or repeat the ${label} reading`,
-    values: { t: jump.t, jump: jump.jump, changePct: jump.changePct, ratePerMin: jump.ratePerMin, limitPct: definition.curvatureLimitPct },
-  });
-}
 
 /**
  * One assay from one pair of traces: slopes, specific slope, specific activity (linear model) and the
@@ -118,9 +94,10 @@ export function calculateActivity(
 
   // A jump in level in the background or blank trace moves the specific rate as much as one in the total does.
   if (specificSlopePerMin !== null) {
-    if (request.background && fitBackground) flagJumpIn(request.background, fitBackground, 'background', specificSlopePerMin, definition, flags);
-    if (options.blank && !isSlope(options.blank) && !request.background && slopeBlankPerMin !== null) {
-      flagJumpIn(options.blank, fitBlankLine!, 'blank', specificSlopePerMin, definition, flags);
+    if (request.background && fitBackground) flagJumpAgainst(request.background, fitBackground, 'background', specificSlopePerMin, definition, flags);
+    // With a background the blank is in both traces and cancels, so only a blank subtracted on its own is judged.
+    if (!request.background && fitBlankLine && options.blank && !isSlope(options.blank)) {
+      flagJumpAgainst(options.blank, fitBlankLine, 'blank', specificSlopePerMin, definition, flags);
     }
   }
 

@@ -131,6 +131,28 @@ function flagLevelJump(trace: readonly TracePoint[], lo: number, hi: number, lab
   });
 }
 
+/**
+ * Flags a jump in level inside the window of a background or blank trace (level-jump.ts): its slope is subtracted
+ * from the total's, so the jump is judged by how much it moves the specific rate, against the curvature limit.
+ */
+export function flagJumpAgainst(
+  trace: readonly TracePoint[],
+  fitted: FittedLine,
+  label: 'background' | 'blank',
+  specificPerMin: number,
+  settings: RateSettings,
+  flags: Flag[],
+): void {
+  const { lo, hi } = indexRange(trace, { fromS: fitted.fromS, toS: fitted.toS });
+  const jump = levelJump(trace, lo, hi, settings, undefined, specificPerMin);
+  if (!jump) return;
+  flags.push({
+    code: 'LEVEL_JUMP',
+    message: `${label} trace between ${fmt(fitted.fromS)} and ${fmt(fitted.toS)} s: from ${fmt(jump.t)} s on the readings sit ${fmt(Math.abs(jump.jump), 2)} ${jump.jump > 0 ? 'higher' : 'lower'} than the line of those before (a jump: a bubble that stays, a knock, a lid), which moves the ${label} slope by ${fmt(Math.abs(jump.linePerMin - jump.ratePerMin), 3)} per minute, ${fmt(jump.changePct, 3)}% of the specific rate (limit ${fmt(settings.curvatureLimitPct, 3)}%); set the window on one side of the jump, or repeat the ${label} reading`,
+    values: { t: jump.t, jump: jump.jump, changePct: jump.changePct, ratePerMin: jump.ratePerMin, limitPct: settings.curvatureLimitPct },
+  });
+}
+
 /** Flags the window when it is not straight (as a whole, or its second half against its first); true when flagged. */
 function flagCurvature(trace: readonly TracePoint[], lo: number, hi: number, label: TraceLabel, settings: RateSettings, noise: number, flags: Flag[]): boolean {
   const shape = curvedPart(trace, lo, hi, settings, noise);
@@ -231,9 +253,8 @@ function sideOfJump(
   lo: number,
   hi: number,
   settings: RateSettings,
-  found: LevelJump | null = levelJump(trace, lo, hi, settings),
+  jump: LevelJump | null = levelJump(trace, lo, hi, settings),
 ): JumpSide | null {
-  const jump = found;
   if (!jump) return null;
   const sides: { lo: number; hi: number }[] = [];
   if (jump.index - lo >= Math.max(3, settings.minPoints) && curvedPart(trace, lo, jump.index - 1, settings) === null) {
