@@ -41,6 +41,28 @@ describe('rate check, in Chromium', () => {
     await page.close();
   });
 
+  it('when the readings or conditions change after a result, then the old figures leave the screen until Calculate is pressed again', async () => {
+    // The CI worked example above (100.0 nmol/min/mg with 4 mg/mL protein [derived]); doubling the protein halves it.
+    const page = await app.browser.newPage();
+    await signIn(page, app.server.origin, 'technologist@demo.test');
+    await page.getByRole('link', { name: 'Rate check' }).click();
+    await page.getByLabel(/Total trace/).fill(lines(1.2, -0.0348));
+    await page.getByLabel(/Background trace/).fill(lines(1.1, -0.01));
+    await page.getByRole('button', { name: 'Calculate' }).click();
+    await expect(page.getByTestId('activity').textContent()).resolves.toBe('100');
+    await page.getByLabel('Protein (mg/mL)').fill('8');
+    await page.getByText('The readings or conditions have changed since this result was calculated').waitFor();
+    expect(await page.getByTestId('activity').count()).toBe(0);
+    await page.getByRole('button', { name: 'Calculate' }).click();
+    await expect(page.getByTestId('activity').textContent()).resolves.toBe('50');
+    // A reading that is not a number: the field says so and no result stays beside it.
+    await page.getByLabel(/Total trace/).fill('0\t1.2\n10\tOVER\n20\t1.1');
+    await page.getByRole('button', { name: 'Calculate' }).click();
+    await page.getByText('Total trace, line 2, absorbance: "OVER" is not a number').waitFor();
+    expect(await page.getByTestId('activity').count()).toBe(0);
+    await page.close();
+  });
+
   it('when a curved complex IV trace is pasted, then no activity is read off the curve; a window set by hand gives one, flagged as curved', async () => {
     // A = 0.6 + 0.7·e^(−0.5·t/min) every 10 s for 300 s: initial rate 0.35 A/min [analytic]; every 5-reading
     // window already loses about 15% of it, so no straight stretch exists.

@@ -59,9 +59,18 @@ export function RateCheck({ definitions }: { definitions: StoredAssayDefinition[
     return Object.keys(errors).length === 0 && parsed.success ? parsed.data : null;
   }
 
+  // What the shown result was computed from (the window apart: moving it recomputes at once).
+  const inputsKey = JSON.stringify([assay, numbers, totalText, backgroundText]);
+  const [resultInputs, setResultInputs] = useState<string | null>(null);
+
   function run(win = window, byHand = manual) {
     const request = buildRequest(win, byHand);
-    if (!request) return;
+    if (!request) {
+      // No figures are left on screen beside readings they were not computed from.
+      preview.reset();
+      return;
+    }
+    setResultInputs(inputsKey);
     preview.mutate(request, {
       onSuccess: (result) => {
         if (!byHand && result.window) setWindow({ fromS: String(result.window.fromS), toS: String(result.window.toS) });
@@ -82,6 +91,7 @@ export function RateCheck({ definitions }: { definitions: StoredAssayDefinition[
   }
 
   const result = preview.data;
+  const stale = result !== undefined && resultInputs !== inputsKey;
   const setNumber = (key: keyof Numbers) => (e: React.ChangeEvent<HTMLInputElement>) => setNumbers((n) => ({ ...n, [key]: e.target.value }));
 
   return (
@@ -163,7 +173,7 @@ export function RateCheck({ definitions }: { definitions: StoredAssayDefinition[
       </Card>
       <div className="flex flex-col gap-6">
         <Card title="Readings and fitted lines">
-          {result ? (
+          {result && !stale ? (
             <TraceChart
               label="Absorbance against time with the fitted window"
               window={result.window}
@@ -176,7 +186,10 @@ export function RateCheck({ definitions }: { definitions: StoredAssayDefinition[
             <p className="text-sm text-ink-faint">Paste the readings and press Calculate to see them here.</p>
           )}
         </Card>
-        {result ? <ResultSummary result={result} /> : null}
+        {result && stale ? (
+          <Notice>The readings or conditions have changed since this result was calculated: press Calculate to see the result for what is entered now.</Notice>
+        ) : null}
+        {result && !stale ? <ResultSummary result={result} /> : null}
       </div>
     </div>
   );
