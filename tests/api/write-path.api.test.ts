@@ -5,6 +5,7 @@ import express from 'express';
 import request from 'supertest';
 import { QueryTypes, type Sequelize } from 'sequelize';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
+import { preparedRead } from '../../server/db/prepared-read';
 import { openDatabase } from '../../server/db/sequelize';
 import { writeTransaction, writesInFlight } from '../../server/db/write-transaction';
 import { limitReadsWhileWriting } from '../../server/lib/read-gate';
@@ -287,6 +288,55 @@ describe.runIf(testDialect === 'sqlite')('statements kept prepared on a SQLite c
     expect(await db.query('SELECT extra, n, k FROM kept', { type: QueryTypes.SELECT })).toEqual([{ extra: 'x', n: 2, k: 'after' }]);
     await db.close();
     fs.rmSync(dir, { recursive: true, force: true });
+  });
+});
+
+describe.runIf(testDialect === 'postgres')('reads kept prepared on PostgreSQL (server/db/prepared-read.ts)', () => {
+  /*
+   * What PostgreSQL documents for a prepared statement [from memory: PostgreSQL 15 manual, PREPARE and the view
+   * pg_prepared_statements, whose generic_plans and custom_plans count the statement's runs in this session
+   * (PostgreSQL 14 and later); under READ COMMITTED each statement, prepared or not, sees what was committed before
+   * it began]: a text is prepared once per connection and then only run, each run with its own values, and an
+   * error in one run leaves the pool usable.
+   */
+  const page = 'SELECT k, seen FROM wp_rows WHERE k LIKE $1 ORDER BY k LIMIT $2';
+
+  it('when one connection runs the same text three times, then PostgreSQL holds it prepared once and counts three runs', async () => {
+    const url = ((sequelize as unknown as { config: { host: string; port: number; database: string; username: string } }).config);
+    const saved = process.env.DATABASE_POOL_MAX;
+    process.env.DATABASE_POOL_MAX = '1';
+    const single = await openDatabase(`postgres://${url.username}@${url.host}:${url.port}/${url.database}`);
+    if (saved === undefined) delete process.env.DATABASE_POOL_MAX;
+    else process.env.DATABASE_POOL_MAX = saved;
+    try {
+      for (const limit of [1, 2, 3]) await preparedRead(single, page, ['pr-%', limit]);
+      const held = await preparedRead<{ name: string; runs: number }>(
+        single,
+        'SELECT name, generic_plans + custom_plans AS runs FROM pg_prepared_statements WHERE statement = $1',
+        [page],
+      );
+      expect(held).toHaveLength(1);
+      expect(held[0]!.name).toMatch(/^cristae_[0-9a-f]{24}$/);
+      expect(Number(held[0]!.runs)).toBe(3);
+    } finally {
+      await single.close();
+    }
+  });
+
+  it('when 30 reads of one text run at once with their own values, each answers for its values, and a read after a commit sees it', async () => {
+    await sequelize.query("INSERT INTO wp_rows (k, seen) VALUES ('pr-a', 1), ('pr-b', 2), ('pr-c', 3)");
+    const answers = await Promise.all(Array.from({ length: 30 }, (_, i) => preparedRead<{ k: string }>(sequelize, page, ['pr-%', (i % 3) + 1])));
+    answers.forEach((rows, i) => expect(rows.map((r) => r.k)).toEqual(['pr-a', 'pr-b', 'pr-c'].slice(0, (i % 3) + 1)));
+    await writeTransaction(sequelize, (transaction) => sequelize.query("INSERT INTO wp_rows (k, seen) VALUES ('pr-0', 0)", { transaction }));
+    const after = await Promise.all(Array.from({ length: 10 }, () => preparedRead<{ k: string }>(sequelize, page, ['pr-%', 1])));
+    for (const rows of after) expect(rows).toEqual([{ k: 'pr-0', seen: 0 }]);
+  });
+
+  it('when a run fails on the server, then that read rejects with its error and the next reads on the pool still answer', async () => {
+    const divide = 'SELECT 12 / $1::int AS q';
+    await expect(preparedRead(sequelize, divide, [0])).rejects.toThrow(/division by zero/);
+    const again = await Promise.all([4, 3, 2].map((d) => preparedRead<{ q: number }>(sequelize, divide, [d])));
+    expect(again.map((rows) => rows[0]!.q)).toEqual([3, 4, 6]);
   });
 });
 

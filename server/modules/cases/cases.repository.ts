@@ -6,6 +6,7 @@ import { displayName, foldText } from '../patients/patient-names';
 import { findPatientById } from '../patients/patients.repository';
 import { listSpecimensOfCase } from '../specimens/specimens.repository';
 import { UserModel } from '../users/user.model';
+import { preparedRead } from '../../db/prepared-read';
 import { isPostgres } from '../../db/sequelize';
 import { AccessionCounterModel, CaseModel } from './case.model';
 
@@ -339,21 +340,30 @@ type ListRow = {
   clinicianName: string | null;
 };
 
-/** Reads one page of the list; `total` is read in the same statement when given as a scalar subquery. */
-async function listPage(f: CaseListFilter, where: ListWhere, hint: string, totalSql = ''): Promise<(ListRow & { total?: number | string })[]> {
+type PageRow = ListRow & { total?: number | string };
+
+/**
+ * Reads one page of the list; `total` is read in the same statement when given as a scalar subquery. The whole
+ * list on PostgreSQL (no filter: the landing page) is a prepared statement, one of eight texts (sort × direction).
+ */
+async function listPage(f: CaseListFilter, where: ListWhere, hint: string, totalSql = ''): Promise<PageRow[]> {
   const dir = f.dir ?? (f.sort && f.sort !== 'receivedAt' ? 'asc' : 'desc');
   const direction = dir === 'asc' ? 'ASC' : 'DESC';
   const column = sortColumn[f.sort ?? 'receivedAt'];
-  return (await CaseModel.sequelize!.query(
-    `SELECT c.id, c.accession, c.state, c."patientName", c."specimenTypes", c."receivedAt", c.priority, c."patternCode",
+  const sequelize = CaseModel.sequelize!;
+  const prepared = !where.sql && isPostgres(sequelize);
+  const sql = `SELECT c.id, c.accession, c.state, c."patientName", c."specimenTypes", c."receivedAt", c.priority, c."patternCode",
             u.name AS "clinicianName"${totalSql}
        FROM cases c ${hint}
        LEFT JOIN users u ON u.id = c."referringClinicianId"
        ${where.sql}
       ORDER BY c."${column}" ${direction}, c.id ${direction}
-      LIMIT :limit OFFSET :offset`,
-    { replacements: { ...where.replacements, limit: f.limit, offset: f.offset }, type: QueryTypes.SELECT },
-  )) as (ListRow & { total?: number | string })[];
+      LIMIT ${prepared ? '$1 OFFSET $2' : ':limit OFFSET :offset'}`;
+  if (prepared) return preparedRead<PageRow>(sequelize, sql, [f.limit, f.offset]);
+  return (await sequelize.query(sql, {
+    replacements: { ...where.replacements, limit: f.limit, offset: f.offset },
+    type: QueryTypes.SELECT,
+  })) as PageRow[];
 }
 
 async function countMatches(where: ListWhere): Promise<number> {
