@@ -37,6 +37,9 @@ export function parseTrustProxy(raw: string | undefined): { value: TrustProxy } 
 }
 
 const DEFAULT_DATABASE_PATH = path.join('data', 'cristae.sqlite');
+/** PostgreSQL connections per application process, unless DATABASE_POOL_MAX says otherwise; never fewer than MIN_POOL. */
+export const DEFAULT_POOL_MAX = 10;
+const MIN_POOL = 2;
 
 /** The database file alone, for the operations commands (backup, restore, create-admin) that need nothing else. */
 export function databasePathFrom(env: NodeJS.ProcessEnv = process.env): string {
@@ -58,6 +61,16 @@ const envSchema = z.object({
     .regex(/^postgres(ql)?:\/\/\S+$/i, 'must be a postgres:// or postgresql:// URL (leave it unset for SQLite)')
     .optional()
     .or(z.literal('').transform(() => undefined)),
+  /** Connections each application process keeps to PostgreSQL (unused with SQLite). */
+  DATABASE_POOL_MAX: z.preprocess(
+    (v) => (v === '' ? undefined : v),
+    z.coerce
+      .number('must be a whole number')
+      .int('must be a whole number')
+      .min(MIN_POOL, `must be at least ${MIN_POOL}: a write holds one connection while the reads it makes take another`)
+      .max(1000, 'must be at most 1000 (PostgreSQL allows 100 connections in all by default)')
+      .optional(),
+  ),
   APP_ORIGIN: z.string().optional(),
   DEMO_PASSWORD: z.string().min(8).default(DEFAULT_DEMO_PASSWORD),
   SESSION_SECRET: z.string().optional(),
@@ -120,6 +133,8 @@ export type AppConfig = {
   databasePath: string;
   /** Set when DATABASE_URL selects PostgreSQL; databasePath is then unused. */
   databaseUrl: string | null;
+  /** Connections per application process to PostgreSQL (DATABASE_POOL_MAX). */
+  databasePoolMax: number;
   filesPath: string;
   /** Origins allowed to make state-changing requests (the CSRF defence compares against these). */
   allowedOrigins: string[];
@@ -162,6 +177,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
     port: e.PORT,
     databasePath: e.DATABASE_PATH,
     databaseUrl: e.DATABASE_URL ?? null,
+    databasePoolMax: e.DATABASE_POOL_MAX ?? DEFAULT_POOL_MAX,
     filesPath: e.FILES_PATH ?? path.join(path.dirname(e.DATABASE_PATH), 'files'),
     allowedOrigins,
     publicOrigin: extra[0] ?? defaults[0]!,

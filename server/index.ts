@@ -21,7 +21,7 @@ const root = projectRoot();
 async function main(): Promise<void> {
   const config = loadConfigOrExit();
   warnAboutDeployment(config);
-  const sequelize = await openDatabase(config.databaseUrl ?? config.databasePath);
+  const sequelize = await openDatabase(config.databaseUrl ?? config.databasePath, { poolMax: config.databasePoolMax });
   initModels(sequelize);
   // One process at a time (PostgreSQL may have several application servers starting together).
   const applied = await withStartupLock(sequelize, async () => {

@@ -3,6 +3,7 @@ import path from 'node:path';
 import type pg from 'pg';
 import sqlite3 from 'sqlite3';
 import { Sequelize } from 'sequelize';
+import { DEFAULT_POOL_MAX } from '../config';
 import { tuneSqliteConnections } from './sqlite-connections';
 
 /** A PostgreSQL connection URL (DATABASE_URL) rather than a SQLite file path. */
@@ -12,8 +13,8 @@ export const isPostgresUrl = (location: string): boolean => /^postgres(ql)?:\/\/
  * Opens the database: a PostgreSQL server when `location` is a postgres:// URL, otherwise a SQLite file (or
  * ':memory:'). Both dialects get the same migrations; see README ("Databases").
  */
-export async function openDatabase(location: string): Promise<Sequelize> {
-  return isPostgresUrl(location) ? openPostgres(location) : openSqlite(location);
+export async function openDatabase(location: string, opts: { poolMax?: number } = {}): Promise<Sequelize> {
+  return isPostgresUrl(location) ? openPostgres(location, opts.poolMax ?? DEFAULT_POOL_MAX) : openSqlite(location);
 }
 
 /**
@@ -55,7 +56,7 @@ function readBigintsAsNumbers(types: typeof pg.types): void {
 }
 
 /** PostgreSQL through `pg` (loaded only here: a SQLite start need not load it). Every connection works in UTC, like the SQLite dates. */
-async function openPostgres(url: string): Promise<Sequelize> {
+async function openPostgres(url: string, poolMax: number): Promise<Sequelize> {
   const { default: pg } = await import('pg');
   readBigintsAsNumbers(pg.types);
   const sequelize = new Sequelize(url, {
@@ -63,7 +64,7 @@ async function openPostgres(url: string): Promise<Sequelize> {
     dialectModule: pg,
     logging: false,
     timezone: '+00:00',
-    pool: { max: Number(process.env.DATABASE_POOL_MAX ?? 10), min: 0, idle: 10_000, acquire: 60_000 },
+    pool: { max: poolMax, min: 0, idle: 10_000, acquire: 60_000 },
     define: { freezeTableName: true },
   });
   await sequelize.authenticate();
@@ -77,13 +78,24 @@ const STARTUP_LOCK = 0x63727374; // "crst": any fixed key, other than the write 
 /**
  * Runs the start-up steps (migrations, default definitions, demo seed, first administrator) one process at a
  * time: on PostgreSQL several application servers may start together on one database, and two of them must not
- * both migrate or both seed it. The lock is a transaction-scoped advisory lock held while `work` runs on the
- * pool's other connections. SQLite's single file has one server (backup and restore refuse a running one).
+ * both migrate or both seed it. The lock is a session-level advisory lock on a connection of its own, outside the
+ * pool, so `work` has every pooled connection: held on a pooled connection, it left a pool of two with one, and
+ * the seed's write (one connection) waited for ever for a second one to read with. Ending that connection
+ * releases the lock, also when `work` fails. SQLite's single file has one server (backup and restore refuse a
+ * running one).
  */
 export async function withStartupLock<T>(sequelize: Sequelize, work: () => Promise<T>): Promise<T> {
   if (!isPostgres(sequelize)) return work();
-  return sequelize.transaction(async (t) => {
-    await sequelize.query(`SELECT pg_advisory_xact_lock(${STARTUP_LOCK})`, { transaction: t });
-    return work();
-  });
+  // Sequelize's own way of opening a connection (the pool's), so the URL's options (socket, SSL) apply alike.
+  const manager = sequelize.connectionManager as unknown as {
+    connect(config: unknown): Promise<pg.Client>;
+    disconnect(connection: pg.Client): Promise<void>;
+  };
+  const connection = await manager.connect(sequelize.config);
+  try {
+    await connection.query(`SELECT pg_advisory_lock(${STARTUP_LOCK})`);
+    return await work();
+  } finally {
+    await manager.disconnect(connection);
+  }
 }

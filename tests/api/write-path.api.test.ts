@@ -303,11 +303,7 @@ describe.runIf(testDialect === 'postgres')('reads kept prepared on PostgreSQL (s
 
   it('when one connection runs the same text three times, then PostgreSQL holds it prepared once and counts three runs', async () => {
     const url = ((sequelize as unknown as { config: { host: string; port: number; database: string; username: string } }).config);
-    const saved = process.env.DATABASE_POOL_MAX;
-    process.env.DATABASE_POOL_MAX = '1';
-    const single = await openDatabase(`postgres://${url.username}@${url.host}:${url.port}/${url.database}`);
-    if (saved === undefined) delete process.env.DATABASE_POOL_MAX;
-    else process.env.DATABASE_POOL_MAX = saved;
+    const single = await openDatabase(`postgres://${url.username}@${url.host}:${url.port}/${url.database}`, { poolMax: 1 });
     try {
       for (const limit of [1, 2, 3]) await preparedRead(single, page, ['pr-%', limit]);
       const held = await preparedRead<{ name: string; runs: number }>(

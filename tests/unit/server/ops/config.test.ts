@@ -83,3 +83,26 @@ describe('session secret', () => {
     expect(loadConfig({ NODE_ENV: 'production', SESSION_SECRET: SECRET }).sessionSecret).toBe(SECRET);
   });
 });
+
+describe('DATABASE_POOL_MAX: connections per application process to PostgreSQL', () => {
+  it('unset or empty gives 10; a whole number from 2 up is taken as it is', () => {
+    expect(loadConfig({}).databasePoolMax).toBe(10);
+    expect(loadConfig({ DATABASE_POOL_MAX: '' }).databasePoolMax).toBe(10);
+    expect(loadConfig({ DATABASE_POOL_MAX: '2' }).databasePoolMax).toBe(2);
+    expect(loadConfig({ DATABASE_POOL_MAX: '40' }).databasePoolMax).toBe(40);
+  });
+
+  // With one connection, a write holding it waited for ever for a second to read with: the demo seed on an empty
+  // PostgreSQL database never finished (tests/api/startup-lock.api.test.ts shows 2 is enough).
+  it.each([
+    ['1', /^DATABASE_POOL_MAX: must be at least 2: a write holds one connection/],
+    ['0', /^DATABASE_POOL_MAX: must be at least 2/],
+    ['abc', /^DATABASE_POOL_MAX: must be a whole number$/],
+    ['2.5', /^DATABASE_POOL_MAX: must be a whole number$/],
+    ['1001', /^DATABASE_POOL_MAX: must be at most 1000/],
+  ])('%j is refused, naming the variable', (raw, message) => {
+    const problems = problemsOf({ DATABASE_POOL_MAX: raw });
+    expect(problems).toHaveLength(1);
+    expect(problems[0]).toMatch(message);
+  });
+});
