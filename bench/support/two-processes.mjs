@@ -1,7 +1,7 @@
 // Several application processes behind one port (node:cluster: the primary accepts connections and hands them
 // to its workers in turn), as a laboratory running more than one application server on PostgreSQL would.
 //   node bench/support/two-processes.mjs <workers> <node options and server entry...>
-// Prints "all <n> listening" once every worker listens; SIGTERM stops the workers, then the primary.
+// Prints "all <n> listening" once every worker listens on PORT; SIGTERM stops the workers, then the primary.
 import cluster from 'node:cluster';
 
 const [count, ...command] = process.argv.slice(2);
@@ -13,8 +13,10 @@ if (!Number.isInteger(workers) || workers < 1 || command.length === 0) {
 cluster.schedulingPolicy = cluster.SCHED_RR;
 cluster.setupPrimary({ exec: command.at(-1), execArgv: command.slice(0, -1) });
 let listening = 0;
-cluster.on('listening', () => {
-  if (++listening === workers) console.log(`all ${workers} listening`);
+// Only the HTTP port counts: a worker's local mail server listens too (LOCAL_SMTP_PORT), usually before the
+// HTTP server, which waits for the start-up steps.
+cluster.on('listening', (_worker, address) => {
+  if (address.port === Number(process.env.PORT) && ++listening === workers) console.log(`all ${workers} listening`);
 });
 cluster.on('exit', (worker, code, signal) => {
   if (!stopping) {
