@@ -1,6 +1,8 @@
 import { literal, QueryTypes, type Transaction } from 'sequelize';
 import type { Role } from '@/schemas/common';
 import type { SessionUser, User, UserAccount } from '@/schemas/user';
+import { SHARED_SESSION_CACHE_MS } from '../../auth/session-cache';
+import { isPostgres } from '../../db/sequelize';
 import { UserModel } from './user.model';
 
 export type UserWithSecrets = UserAccount & { passwordHash: string; failedLogins: number; sessionGeneration: number };
@@ -47,10 +49,14 @@ export async function findUserByEmail(email: string): Promise<UserWithSecrets | 
 }
 
 // Every signed-in request looks its user up; the answer is kept briefly in memory and forgotten whenever this
-// repository (the only writer of users) changes that account, so a deactivation still takes effect at once.
+// repository (the only writer of users) changes that account, so a deactivation takes effect at once in this
+// process. Other application servers sharing a PostgreSQL database do not see that change: there a copy is read
+// again after SHARED_SESSION_CACHE_MS, like the session itself, so a deactivation, a password change or a reset
+// ends the account's sessions on every server within that time (it had been 30 s).
 export type SessionAccount = { user: SessionUser; generation: number };
 const sessionUserCache = new Map<number, { account: SessionAccount | null; at: number }>();
 const SESSION_USER_TTL_MS = 30_000;
+const sessionUserTtl = () => (isPostgres(UserModel.sequelize!) ? SHARED_SESSION_CACHE_MS : SESSION_USER_TTL_MS);
 
 function forgetUser(id: number): void {
   sessionUserCache.delete(id);
@@ -62,7 +68,7 @@ function forgetUser(id: number): void {
  */
 export async function findSessionAccount(id: number): Promise<SessionAccount | null> {
   const hit = sessionUserCache.get(id);
-  if (hit && Date.now() - hit.at < SESSION_USER_TTL_MS) return hit.account;
+  if (hit && Date.now() - hit.at < sessionUserTtl()) return hit.account;
   const row = await UserModel.findByPk(id);
   const account = row && row.active ? { user: sessionUser(row), generation: row.sessionGeneration } : null;
   if (sessionUserCache.size > 5000) sessionUserCache.clear();
