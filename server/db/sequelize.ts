@@ -4,6 +4,7 @@ import type pg from 'pg';
 import sqlite3 from 'sqlite3';
 import { Sequelize } from 'sequelize';
 import { DEFAULT_POOL_MAX } from '../config';
+import { tunePostgresConnections } from './postgres-connections';
 import { tuneSqliteConnections } from './sqlite-connections';
 
 /** A PostgreSQL connection URL (DATABASE_URL) rather than a SQLite file path. */
@@ -67,6 +68,7 @@ async function openPostgres(url: string, poolMax: number): Promise<Sequelize> {
     pool: { max: poolMax, min: 0, idle: 10_000, acquire: 60_000 },
     define: { freezeTableName: true },
   });
+  tunePostgresConnections(sequelize);
   await sequelize.authenticate();
   return sequelize;
 }
