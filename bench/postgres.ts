@@ -156,7 +156,8 @@ export default async function run(): Promise<BenchResult> {
       `${WORKERS} application processes (${kind === 'compiled' ? 'the compiled server' : 'TypeScript sources through tsx'}) sharing one port through node:cluster, ` +
       'the database server, the floor and the load generator all on the same 2-core machine. In each process, writes that wait together run ' +
       'as one transaction (group commit, each answered after that commit), which takes one advisory lock (server/db/write-transaction.ts), ' +
-      'so writes stay one at a time across both processes, as on SQLite. The floor is the bare Express ' +
+      'so writes stay one at a time across both processes, as on SQLite. The case list\'s landing page is a named prepared ' +
+      'statement on each pooled connection (server/db/prepared-read.ts): bound and run, not parsed and planned again. The floor is the bare Express ' +
       'handler of bench/floor-server.mjs, measured in the same run. ' +
       `The machine's one-minute load average when the run began: ${loadAverage.toFixed(1)} (other work on the same 2 cores slows the floor and the application alike).`,
   };
