@@ -6,7 +6,8 @@ import { initModels } from './db/models';
 import { migrate } from './db/migrate';
 import { loadConfigOrExit, prepareAccounts, warnAboutDeployment } from './ops/start-up';
 import { ensureDefaultDefinitions } from './modules/assay-definitions/assay-definitions.service';
-import { openDatabase, withStartupLock } from './db/sequelize';
+import { listenForForgets } from './db/forget-everywhere';
+import { isPostgres, openDatabase, withStartupLock } from './db/sequelize';
 import { logError, logInfo } from './lib/log';
 import { startMail } from './modules/mail/mail-setup';
 
@@ -23,6 +24,8 @@ async function main(): Promise<void> {
   warnAboutDeployment(config);
   const sequelize = await openDatabase(config.databaseUrl ?? config.databasePath, { poolMax: config.databasePoolMax });
   initModels(sequelize);
+  // Several servers may share a PostgreSQL database: each hears the others' sign-outs and account changes.
+  const stopListening = isPostgres(sequelize) ? await listenForForgets(sequelize) : async () => undefined;
   // One process at a time (PostgreSQL may have several application servers starting together).
   const applied = await withStartupLock(sequelize, async () => {
     const done = await migrate(sequelize);
@@ -49,6 +52,7 @@ async function main(): Promise<void> {
       void mail
         .close()
         .catch((err: unknown) => logError(err, 'closing mail'))
+        .then(() => stopListening())
         .then(() => sequelize.close())
         .finally(() => process.exit(0));
     });

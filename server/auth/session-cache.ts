@@ -1,5 +1,6 @@
 import type { RequestHandler } from 'express';
 import type { Store } from 'express-session';
+import { forgetEverywhere, onForget } from '../db/forget-everywhere';
 
 type SessionStoreLike = Pick<Store, 'get' | 'set' | 'destroy' | 'touch'>;
 
@@ -16,10 +17,16 @@ type Entry = { data: { [key: string]: Plain }; expiresAt: number; readAt: number
 // Every cache made in this process, so ending an account's sessions can drop them from all of them.
 const caches = new Set<Map<string, Entry>>();
 
-/** Drops these sessions from every in-memory cache (their rows have been deleted). */
+/** Drops these sessions from every in-memory cache of this process (their rows have been deleted). */
 export function forgetCachedSessions(sids: readonly string[]): void {
   for (const cache of caches) for (const sid of sids) cache.delete(sid);
 }
+
+// Another server ended these sessions, or notices were missed (server/db/forget-everywhere.ts).
+onForget((forget) => {
+  if (forget.all) for (const cache of caches) cache.clear();
+  else if (forget.sessions) forgetCachedSessions(forget.sessions);
+});
 
 /** A deep copy of JSON-shaped data: express-session and passport mutate the object they are handed. */
 function copy<T extends Plain>(value: T): T {
@@ -83,7 +90,11 @@ export function cacheSessionReads(store: SessionStoreLike, opts: { maxAgeMs?: nu
   };
   store.destroy = (sid, callback) => {
     cache.delete(sid);
-    destroy(sid, callback);
+    destroy(sid, (err?: unknown) => {
+      if (err) return callback?.(err);
+      // Signed out: other servers drop their copies too (those sharing a PostgreSQL database), before the answer.
+      void forgetEverywhere({ sessions: [sid] }).then(() => callback?.());
+    });
   };
   store.touch = (_sid, _session, callback) => callback?.();
 }

@@ -1,10 +1,10 @@
 import { QueryTypes, type Sequelize, type Transaction } from 'sequelize';
 import { storedLoginUserId } from './passport';
-import { forgetCachedSessions } from './session-cache';
+import { forgetEverywhere } from '../db/forget-everywhere';
 
 /**
  * Ends every stored session of one account (OWASP ASVS 4.0, 3.3.3 and 3.3.4): deletes the rows of the session
- * table and, once the transaction commits, drops them from the in-memory session cache. The account's session
+ * table and, once the transaction commits, drops them from the in-memory session caches of every server. The account's session
  * generation, raised in the same transaction, refuses any copy still in flight. A laboratory keeps few sessions,
  * so the rows are read and matched here rather than indexed by user.
  */
@@ -25,6 +25,6 @@ export async function endSessionsOfUser(sequelize: Sequelize, userId: number, tr
     .map((r) => r.sid);
   if (sids.length === 0) return 0;
   await sequelize.query('DELETE FROM "Sessions" WHERE sid IN (:sids)', { replacements: { sids }, transaction });
-  transaction.afterCommit(() => forgetCachedSessions(sids));
+  transaction.afterCommit(() => forgetEverywhere({ sessions: sids }));
   return sids.length;
 }

@@ -2,6 +2,7 @@ import { literal, QueryTypes, type Transaction } from 'sequelize';
 import type { Role } from '@/schemas/common';
 import type { SessionUser, User, UserAccount } from '@/schemas/user';
 import { SHARED_SESSION_CACHE_MS } from '../../auth/session-cache';
+import { forgetEverywhere, onForget } from '../../db/forget-everywhere';
 import { isPostgres } from '../../db/sequelize';
 import { UserModel } from './user.model';
 
@@ -62,6 +63,12 @@ function forgetUser(id: number): void {
   sessionUserCache.delete(id);
 }
 
+// Another server changed these accounts, or notices were missed (server/db/forget-everywhere.ts).
+onForget((forget) => {
+  if (forget.all) sessionUserCache.clear();
+  else forget.users?.forEach(forgetUser);
+});
+
 /**
  * The active account behind a session with its session generation (a session opened under an older generation
  * has ended), or null when the account is gone or deactivated.
@@ -112,8 +119,9 @@ export async function updateUserIfVersion(
     { ...changes, version: expectedVersion + 1 },
     { where: { id, version: expectedVersion }, transaction },
   );
-  // Forget again once the transaction ends, so a read in between cannot keep the old account.
-  transaction?.afterCommit(() => forgetUser(id));
+  // Forget again once the change is committed, so a read in between cannot keep the old account; other servers too.
+  if (transaction) transaction.afterCommit(() => forgetEverywhere({ users: [id] }));
+  else await forgetEverywhere({ users: [id] });
   return count === 1;
 }
 
@@ -139,7 +147,7 @@ export async function storePassword(
     },
     { where: { id }, transaction },
   );
-  transaction.afterCommit(() => forgetUser(id));
+  transaction.afterCommit(() => forgetEverywhere({ users: [id] }));
 }
 
 export type FailureCount = { failedLogins: number; lockedUntil: Date | null };
