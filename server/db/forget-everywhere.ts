@@ -1,6 +1,6 @@
 import type { Sequelize } from 'sequelize';
-import type pg from 'pg';
 import { logError, logInfo } from '../lib/log';
+import { openOwnConnection, type OwnConnection } from './sequelize';
 
 /*
  * Application servers sharing a PostgreSQL database each keep copies of sessions and accounts in memory
@@ -68,43 +68,43 @@ const RETRY_MAX_MS = 30_000;
  * is dropped when it is back, since notices sent meanwhile were missed. Answers a function that stops listening.
  */
 export async function listenForForgets(sequelize: Sequelize): Promise<() => Promise<void>> {
-  const manager = sequelize.connectionManager as unknown as {
-    connect(config: unknown): Promise<pg.Client>;
-    disconnect(connection: pg.Client): Promise<void>;
-  };
   notify = (payload) =>
     sequelize.query('SELECT pg_notify(:channel, :payload)', { replacements: { channel: CHANNEL, payload } }).then(
       () => undefined,
       (err: unknown) => logError(err, 'telling other servers to forget'),
     );
-  let connection: pg.Client | null = null;
+  let connection: OwnConnection | null = null;
   let stopped = false;
   let retryMs = RETRY_FIRST_MS;
   let timer: NodeJS.Timeout | null = null;
 
   const connect = async (again: boolean): Promise<void> => {
+    let own: OwnConnection | null = null;
     try {
-      const c = await manager.connect(sequelize.config);
+      own = await openOwnConnection(sequelize);
+      const mine = own;
+      const c = own.client;
       c.on('notification', (message) => {
         if (message.channel !== CHANNEL) return;
         const forget = parse(message.payload);
         if (forget) forgetHere(forget);
       });
       const lost = () => {
-        if (connection !== c) return;
+        if (connection !== mine) return;
         connection = null;
         if (!stopped) schedule();
       };
       c.on('error', lost);
       c.on('end', lost);
       await c.query(`LISTEN ${CHANNEL}`);
-      connection = c;
+      connection = mine;
       retryMs = RETRY_FIRST_MS;
       if (again) {
         forgetHere({ all: true });
         logInfo('listening again for other servers’ sign-outs and account changes');
       }
     } catch (err) {
+      await own?.close().catch(() => undefined);
       if (!again) throw err;
       logError(err, 'listening for other servers’ sign-outs and account changes');
       schedule();
@@ -121,8 +121,8 @@ export async function listenForForgets(sequelize: Sequelize): Promise<() => Prom
     stopped = true;
     notify = null;
     if (timer) clearTimeout(timer);
-    const c = connection;
+    const own = connection;
     connection = null;
-    if (c) await manager.disconnect(c).catch(() => undefined);
+    await own?.close().catch(() => undefined);
   };
 }

@@ -88,16 +88,25 @@ const STARTUP_LOCK = 0x63727374; // "crst": any fixed key, other than the write 
  */
 export async function withStartupLock<T>(sequelize: Sequelize, work: () => Promise<T>): Promise<T> {
   if (!isPostgres(sequelize)) return work();
-  // Sequelize's own way of opening a connection (the pool's), so the URL's options (socket, SSL) apply alike.
+  const own = await openOwnConnection(sequelize);
+  try {
+    await own.client.query(`SELECT pg_advisory_lock(${STARTUP_LOCK})`);
+    return await work();
+  } finally {
+    await own.close();
+  }
+}
+
+/**
+ * PostgreSQL: a connection outside the pool (for a session-level lock, or for LISTEN), opened the way the pool
+ * opens its own, so the URL's options (socket, SSL) apply alike. Closing it ends its session and what it held.
+ */
+export type OwnConnection = { client: pg.Client; close: () => Promise<void> };
+export async function openOwnConnection(sequelize: Sequelize): Promise<OwnConnection> {
   const manager = sequelize.connectionManager as unknown as {
     connect(config: unknown): Promise<pg.Client>;
     disconnect(connection: pg.Client): Promise<void>;
   };
-  const connection = await manager.connect(sequelize.config);
-  try {
-    await connection.query(`SELECT pg_advisory_lock(${STARTUP_LOCK})`);
-    return await work();
-  } finally {
-    await manager.disconnect(connection);
-  }
+  const client = await manager.connect(sequelize.config);
+  return { client, close: () => manager.disconnect(client) };
 }
