@@ -8,15 +8,21 @@ const app = useAppInBrowser();
 // -> 100.0 nmol/min/mg. Total falls 0.0348 A/min, the rotenone trace 0.0100 A/min.
 const lines = (a0: number, perMin: number) => Array.from({ length: 13 }, (_, i) => `${i * 10}\t${(a0 + (perMin / 60) * i * 10).toFixed(6)}`).join('\n');
 
+/** A technologist's rate check showing the CI worked example's result (100 nmol/min/mg). */
+async function workedExample() {
+  const page = await app.browser.newPage();
+  await signIn(page, app.server.origin, 'technologist@demo.test');
+  await page.getByRole('link', { name: 'Rate check' }).click();
+  await page.getByLabel(/Total trace/).fill(lines(1.2, -0.0348));
+  await page.getByLabel(/Background trace/).fill(lines(1.1, -0.01));
+  await page.getByRole('button', { name: 'Calculate' }).click();
+  await expect(page.getByTestId('activity').textContent()).resolves.toBe('100');
+  return page;
+}
+
 describe('rate check, in Chromium', () => {
   it('when a technologist pastes two traces, then the activity, the fitted lines and the window are shown, and moving the window recomputes', async () => {
-    const page = await app.browser.newPage();
-    await signIn(page, app.server.origin, 'technologist@demo.test');
-    await page.getByRole('link', { name: 'Rate check' }).click();
-    await page.getByLabel(/Total trace/).fill(lines(1.2, -0.0348));
-    await page.getByLabel(/Background trace/).fill(lines(1.1, -0.01));
-    await page.getByRole('button', { name: 'Calculate' }).click();
-    await expect(page.getByTestId('activity').textContent()).resolves.toBe('100');
+    const page = await workedExample();
     await page.getByText('No flags.').waitFor();
     expect(await page.locator('figure .recharts-line').count()).toBe(2); // a fitted line per trace
     // A slow server: the recomputation started by ticking the box is still on its way when the end is typed;
@@ -43,13 +49,7 @@ describe('rate check, in Chromium', () => {
 
   it('when the readings or conditions change after a result, then the old figures leave the screen until Calculate is pressed again', async () => {
     // The CI worked example above (100.0 nmol/min/mg with 4 mg/mL protein [derived]); doubling the protein halves it.
-    const page = await app.browser.newPage();
-    await signIn(page, app.server.origin, 'technologist@demo.test');
-    await page.getByRole('link', { name: 'Rate check' }).click();
-    await page.getByLabel(/Total trace/).fill(lines(1.2, -0.0348));
-    await page.getByLabel(/Background trace/).fill(lines(1.1, -0.01));
-    await page.getByRole('button', { name: 'Calculate' }).click();
-    await expect(page.getByTestId('activity').textContent()).resolves.toBe('100');
+    const page = await workedExample();
     await page.getByLabel('Protein (mg/mL)').fill('8');
     await page.getByText('The readings or conditions have changed since this result was calculated').waitFor();
     expect(await page.getByTestId('activity').count()).toBe(0);

@@ -51,9 +51,9 @@ export async function findUserByEmail(email: string): Promise<UserWithSecrets | 
 
 // Every signed-in request looks its user up; the answer is kept briefly in memory and forgotten whenever this
 // repository (the only writer of users) changes that account, so a deactivation takes effect at once in this
-// process. Other application servers sharing a PostgreSQL database do not see that change: there a copy is read
-// again after SHARED_SESSION_CACHE_MS, like the session itself, so a deactivation, a password change or a reset
-// ends the account's sessions on every server within that time (it had been 30 s).
+// process. Other application servers sharing a PostgreSQL database are told through forgetEverywhere (LISTEN/
+// NOTIFY) and drop their copy at once; should a notice not arrive, a copy there is read again after
+// SHARED_SESSION_CACHE_MS anyway, like the session itself (it had been 30 s).
 export type SessionAccount = { user: SessionUser; generation: number };
 const sessionUserCache = new Map<number, { account: SessionAccount | null; at: number }>();
 const SESSION_USER_TTL_MS = 30_000;
