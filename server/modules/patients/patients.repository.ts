@@ -1,4 +1,4 @@
-import { Op, Sequelize, type Transaction, type WhereOptions } from 'sequelize';
+import { Op, QueryTypes, Sequelize, type Transaction, type WhereOptions } from 'sequelize';
 import type { Patient } from '@/schemas/case';
 import { isPostgres } from '../../db/sequelize';
 import { PatientModel } from './patient.model';
@@ -29,11 +29,13 @@ export async function findPossibleDuplicates(
   transaction?: Transaction,
 ): Promise<{ byLabId: Patient | null; sameNameAndBirth: Patient[] }> {
   const { labPatientId, nameKey, dateOfBirth } = candidate;
-  const rows = await PatientModel.findAll({
-    where: { [Op.or]: [{ labPatientId }, { nameKey, dateOfBirth }] },
-    order: [['id', 'ASC']],
-    transaction,
-  });
+  // Values bound, not spliced in (findAll would write them into the text): every registration sends this one text,
+  // which SQLite keeps prepared (one trip through the thread pool instead of two, inside the write queue), and no
+  // patient's name reaches an SQL log.
+  const rows = await PatientModel.sequelize!.query(
+    `SELECT * FROM patients WHERE "labPatientId" = $1 OR ("nameKey" = $2 AND "dateOfBirth" = $3) ORDER BY id ASC`,
+    { bind: [labPatientId, nameKey, dateOfBirth], type: QueryTypes.SELECT, model: PatientModel, mapToModel: true, transaction },
+  );
   const byLabId = rows.find((r) => r.labPatientId === labPatientId);
   return {
     byLabId: byLabId ? toPatient(byLabId) : null,
