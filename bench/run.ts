@@ -60,7 +60,7 @@ async function main() {
     for (const r of result.rows) section.push(`| ${r.metric} | ${r.value} | ${r.goal} | ${r.met ? 'yes' : '**no**'} |`);
     section.push('');
     if (result.notes) section.push(result.notes, '');
-    if (only) section.push(`Run alone (\`npm run bench -- ${only}\`) at ${new Date().toISOString()} on ${machine}.`, '');
+    if (only) section.push(`Run alone (\`npm run bench -- ${process.argv.slice(2).join(' ')}\`) at ${new Date().toISOString()} on ${machine}.`, '');
   }
   const out = path.join(import.meta.dirname, '..', 'docs', 'performance.md');
   if (only && fs.existsSync(out)) {
