@@ -42,8 +42,8 @@ describe('POST /api/patients', () => {
     } finally {
       options.logging = logging;
     }
-    // A text that never changes is prepared once per connection and run again (server/db/sqlite-connections.ts,
-    // server/db/prepared-read.ts); a value spliced into the text also puts a patient's name into any SQL log.
+    // On SQLite a text that never changes is prepared once per connection and run again (server/db/sqlite-connections.ts);
+    // a value spliced into the text would also put a patient's name into any SQL log.
     for (const [i, input] of inputs.entries()) {
       for (const value of [input.familyName, input.givenName, input.labPatientId, input.labPatientId.toUpperCase(), input.dateOfBirth]) {
         expect(texts[i]!.filter((sql) => sql.toLowerCase().includes(value.toLowerCase()))).toEqual([]);
