@@ -76,6 +76,10 @@ describe('POST /api/patients', () => {
     expect(res.body.error.code).toBe('CONFLICT');
     expect(res.body.error.fields).toHaveProperty('labPatientId');
     expect(res.body.error.fields[EXISTING_PATIENT_FIELD]).toBe(String(existing.id));
+    // Says whose ID it is, naming the ID once (it was said twice, "…FX-DUP-7 is already registered: …, lab ID FX-DUP-7").
+    const said = res.body.error.fields.labPatientId as string;
+    expect(said).toBe(`Lab patient ID FX-DUP-7 already belongs to ${existing.familyName}, ${existing.givenName}, born ${existing.dateOfBirth}`);
+    expect(res.body.error.message).toBe(`${said}. Use that patient instead of registering a new one.`);
     expect(await countRows(t.sequelize, 'patients')).toBe(before);
   });
 

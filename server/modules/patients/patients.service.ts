@@ -16,11 +16,14 @@ import * as repo from './patients.repository';
 /** Lab IDs are compared and stored in capitals, so "demo-0001" and "DEMO-0001" are one patient. */
 const normaliseLabId = (s: string) => s.trim().toUpperCase();
 
-function duplicateOf(existing: Patient, fields: string[], message: string): AppError {
-  const where = `${displayName(existing)}, born ${existing.dateOfBirth}, lab ID ${existing.labPatientId}`;
-  return new AppError('CONFLICT', `${message} (${where}). Use that patient instead of registering a new one.`, {
+/** A 409 naming the registered patient: `sentence` says what clashed, given who the patient is. */
+function duplicateOf(existing: Patient, fields: string[], sentence: (who: string) => string): AppError {
+  // The lab ID is named once: a clash on it already says which ID.
+  const labId = fields.includes('labPatientId') ? '' : `, lab ID ${existing.labPatientId}`;
+  const said = sentence(`${displayName(existing)}, born ${existing.dateOfBirth}${labId}`);
+  return new AppError('CONFLICT', `${said}. Use that patient instead of registering a new one.`, {
     fields: {
-      ...Object.fromEntries(fields.map((f) => [f, `${message}: ${where}`])),
+      ...Object.fromEntries(fields.map((f) => [f, said])),
       [EXISTING_PATIENT_FIELD]: String(existing.id),
     },
   });
@@ -42,13 +45,13 @@ async function assertNotDuplicate(
 ): Promise<string | null> {
   const { byLabId: byId, sameNameAndBirth } = await repo.findPossibleDuplicates(candidate, transaction);
   if (byId && byId.id !== exceptId) {
-    throw duplicateOf(byId, ['labPatientId'], `Lab patient ID ${candidate.labPatientId} is already registered`);
+    throw duplicateOf(byId, ['labPatientId'], (who) => `Lab patient ID ${byId.labPatientId} already belongs to ${who}`);
   }
   const sameName = sameNameAndBirth.filter((p) => p.id !== exceptId);
   const { confirmDistinctFrom: otherId, distinctReason: reason } = distinct;
   if (otherId === undefined || !reason) {
     if (sameName[0]) {
-      throw duplicateOf(sameName[0], ['familyName', 'givenName', 'dateOfBirth'], 'A patient with this name and date of birth is already registered');
+      throw duplicateOf(sameName[0], ['familyName', 'givenName', 'dateOfBirth'], (who) => `A patient with this name and date of birth is already registered: ${who}`);
     }
     return null;
   }
