@@ -1,4 +1,4 @@
-import { load, loadNote, ms, p50p95, percentile, type LoadResult } from './support/load';
+import { load, loadNote, p50p95, percentile, pooled, roundRatios, type LoadResult } from './support/load';
 import { signIn, startBenchServer, startFloorServer } from './support/server';
 import type { BenchResult } from './types';
 
@@ -13,11 +13,7 @@ import type { BenchResult } from './types';
 const CONNECTIONS = 20;
 /** Seconds of load per target in each round. */
 const DURATION_S = Number(process.env.BENCH_SECONDS ?? 5);
-/**
- * Floor and application take turns, round after round: this shared machine's speed drifts within minutes (the
- * floor alone ran at 3,000 to 8,300 answers a second within one hour), and each ratio compares two runs a few
- * seconds apart. The goal's ratio is the median of the rounds' ratios; p50 and p95 are over every answer of all rounds.
- */
+/** Floor and application take turns this many times (roundRatios: the floor alone drifted 3,000–8,300 answers a second within an hour). */
 const ROUNDS = Number(process.env.BENCH_ROUNDS ?? 3);
 const GOAL_P95_MS = 25;
 const GOAL_RATIO = 3;
@@ -69,28 +65,16 @@ export default async function run(): Promise<BenchResult> {
     }
 
     const rows: BenchResult['rows'] = [];
-    const pooled = (runs: Measured[]): Measured => {
-      const answers = runs.reduce((n, r) => n + r.latencies.length, 0);
-      return {
-        ...runs[0]!,
-        latencies: runs.flatMap((r) => r.latencies).sort((a, b) => a - b), // sorted, as LoadResult's are
-        errors: runs.reduce((n, r) => n + r.errors, 0),
-        perSecond: Math.round(answers / (DURATION_S * runs.length)),
-        cpuPerRequest: runs.reduce((sum, r) => sum + r.cpuPerRequest * r.latencies.length, 0) / Math.max(1, answers),
-      };
-    };
-    const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor((xs.length - 1) / 2)]!;
     const pair = (label: string, app: 'list' | 'preview', base: 'floorGet' | 'floorPost') => {
-      const r = pooled(rounds.map((x) => x[app]));
-      const f = pooled(rounds.map((x) => x[base]));
+      const cpu = (runs: Measured[]) => runs.reduce((sum, x) => sum + x.cpuPerRequest * x.latencies.length, 0) / Math.max(1, runs.reduce((n, x) => n + x.latencies.length, 0));
+      const r = { ...pooled(rounds.map((x) => x[app]), DURATION_S), cpuPerRequest: cpu(rounds.map((x) => x[app])) };
+      const f = { ...pooled(rounds.map((x) => x[base]), DURATION_S), cpuPerRequest: cpu(rounds.map((x) => x[base])) };
       const p95 = percentile(r.latencies, 95);
-      const perRound = rounds.map((x) => percentile(x[app].latencies, 95) / percentile(x[base].latencies, 95));
-      const ratio = median(perRound);
-      const each = rounds.map((x, i) => `${perRound[i]!.toFixed(2)}× (${ms(percentile(x[app].latencies, 95))} ÷ ${ms(percentile(x[base].latencies, 95))})`);
+      const { median: ratio, each } = roundRatios(rounds.map((x) => ({ app: x[app], floor: x[base] })));
       rows.push(
         { metric: `floor for ${label} (bare Express)`, value: `${p50p95(f)}; ${f.perSecond} req/s`, goal: '—', met: f.errors === 0 },
         { metric: label, value: `${p50p95(r)}; ${r.perSecond} req/s; ${r.errors} errors`, goal: `p95 < ${GOAL_P95_MS} ms, no errors`, met: p95 < GOAL_P95_MS && r.errors === 0 },
-        { metric: `${label}: p95 ÷ floor p95, median of ${ROUNDS} rounds`, value: `${ratio.toFixed(2)}×; rounds ${each.join(', ')}`, goal: `≤ ${GOAL_RATIO}×`, met: ratio <= GOAL_RATIO },
+        { metric: `${label}: p95 ÷ floor p95, median of ${ROUNDS} rounds`, value: `${ratio.toFixed(2)}×; rounds ${each}`, goal: `≤ ${GOAL_RATIO}×`, met: ratio <= GOAL_RATIO },
         {
           metric: `${label}: server CPU per request (floor)`,
           value: `${r.cpuPerRequest.toFixed(2)} ms (${f.cpuPerRequest.toFixed(2)} ms), ${(r.cpuPerRequest / f.cpuPerRequest).toFixed(1)}×`,

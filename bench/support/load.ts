@@ -70,3 +70,28 @@ export const ms = (v: number) => `${v.toFixed(1)} ms`;
 /** The machine's 1-minute load average, for the notes: on 2 cores, anything above 2 means other work shared the CPU. */
 export const loadNote = () => `1-minute load average when the run ended: ${os.loadavg()[0]!.toFixed(1)} on ${os.cpus().length} cores.`;
 export const p50p95 = (r: LoadResult) => `p50 ${ms(percentile(r.latencies, 50))}, p95 ${ms(percentile(r.latencies, 95))}`;
+
+/** Every answer of several runs against one target as one result: latencies sorted, the rate over all their time. */
+export function pooled(runs: LoadResult[], durationS: number): LoadResult {
+  const statuses: Record<number, number> = {};
+  for (const r of runs) for (const [status, n] of Object.entries(r.statuses)) statuses[Number(status)] = (statuses[Number(status)] ?? 0) + n;
+  const latencies = runs.flatMap((r) => r.latencies).sort((a, b) => a - b);
+  return {
+    latencies,
+    ok: runs.reduce((n, r) => n + r.ok, 0),
+    errors: runs.reduce((n, r) => n + r.errors, 0),
+    statuses,
+    perSecond: Math.round(latencies.length / (durationS * runs.length)),
+  };
+}
+
+/**
+ * p95 ÷ floor p95 over rounds in which floor and application took turns: the median of the rounds' ratios, and each
+ * round's figures for the notes. The machine's speed drifts within minutes, so each ratio compares runs seconds apart.
+ */
+export function roundRatios(rounds: { app: LoadResult; floor: LoadResult }[]): { median: number; each: string } {
+  const ratios = rounds.map((r) => percentile(r.app.latencies, 95) / percentile(r.floor.latencies, 95));
+  const median = [...ratios].sort((a, b) => a - b)[Math.floor((ratios.length - 1) / 2)]!;
+  const each = rounds.map((r, i) => `${ratios[i]!.toFixed(2)}× (${ms(percentile(r.app.latencies, 95))} ÷ ${ms(percentile(r.floor.latencies, 95))})`);
+  return { median, each: each.join(', ') };
+}
