@@ -54,6 +54,7 @@ async function main(): Promise<void> {
         .catch((err: unknown) => logError(err, 'closing mail'))
         .then(() => stopListening())
         .then(() => sequelize.close())
+        .catch((err: unknown) => logError(err, 'closing the database'))
         .finally(() => process.exit(0));
     });
     setTimeout(() => process.exit(0), 5000).unref();
