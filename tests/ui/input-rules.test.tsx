@@ -3,9 +3,12 @@ import { fireEvent, render, screen } from '@testing-library/react';
 import type { ReactNode } from 'react';
 import { createMemoryRouter, RouterProvider } from 'react-router-dom';
 import { afterEach, describe, expect, it, vi } from 'vitest';
+import { RateCheck } from '@/features/calculations/components/rate-check';
 import { LabProfileForm } from '@/features/lab-profile/components/lab-profile-form';
 import { NewPatientForm } from '@/features/patients/components/new-patient-form';
 import { VerifyForm } from '@/features/reference-intervals/components/verify-form';
+import { besideField } from '@/lib/form';
+import { defaultAssayDefinitions, type StoredAssayDefinition } from '@/schemas/assay';
 
 /*
  * The forms use the same shared schemas as the server (src/schemas), so bad input is named beside its field
@@ -95,5 +98,46 @@ describe('VerifyForm', () => {
     fireEvent.change(screen.getByLabelText('Second set (only if the first set failed)'), { target: { value: column } });
     fireEvent.click(screen.getByRole('button', { name: 'Check the interval' }));
     expect(await screen.findByText('Line 3: "62,0" looks like a decimal comma; use a point (62.0)')).toBeInTheDocument();
+  });
+});
+
+describe('RateCheck', () => {
+  const definitions: StoredAssayDefinition[] = defaultAssayDefinitions.map((definition, i) => ({
+    id: i + 1,
+    definition,
+    status: 'approved',
+    changeNote: null,
+    createdBy: null,
+    createdById: null,
+    createdAt: '2026-01-01T00:00:00.000Z',
+    approvedBy: null,
+    approvedById: null,
+    approvedAt: null,
+    selfApproved: false,
+  }));
+
+  it('when the protein is negative, then the message under "Protein (mg/mL)" reads as words, not as the API field name, and nothing is sent', async () => {
+    const fetchMock = answer(200, {});
+    renderInRouter(<RateCheck definitions={definitions} />);
+    fireEvent.change(screen.getByLabelText('Protein (mg/mL)'), { target: { value: '-4' } });
+    fireEvent.change(screen.getByLabelText(/Total trace/), { target: { value: '0 1.2\n10 1.1\n20 1.0\n30 0.9' } });
+    fireEvent.click(screen.getByRole('button', { name: 'Calculate' }));
+    // The shared schema says "proteinMgPerMl must be at least 0.001 mg/mL", for API callers; the label names the field here.
+    expect(await screen.findByText('Must be at least 0.001 mg/mL')).toBeInTheDocument();
+    expect(screen.queryByText(/proteinMgPerMl/)).toBeNull();
+    expect(screen.getByLabelText('Protein (mg/mL)')).toHaveAttribute('aria-invalid', 'true');
+    expect(fetchMock).not.toHaveBeenCalled();
+  });
+});
+
+describe('besideField', () => {
+  it.each([
+    ['proteinMgPerMl', 'proteinMgPerMl must be at least 0.001 mg/mL', 'Must be at least 0.001 mg/mL'],
+    ['window.toS', 'window.toS must be after window.fromS', 'Must be after window.fromS'],
+    ['window.fromS', 'fromS must be a number', 'Must be a number'],
+    ['familyName', 'Family name cannot be empty', 'Family name cannot be empty'],
+    ['total', 'totalled wrongly', 'totalled wrongly'],
+  ])('%s: "%s" → "%s"', (path, message, shown) => {
+    expect(besideField(path, message)).toBe(shown);
   });
 });

@@ -4,6 +4,7 @@ import { TraceChart } from '@/components/charts/trace-chart';
 import { SelectField, TextArea, TextField } from '@/components/ui/field';
 import { Card, Notice } from '@/components/ui/layout';
 import { ApiError } from '@/lib/api-client';
+import { besideField } from '@/lib/form';
 import { calculationRequestSchema, type CalculationRequest, type StoredAssayDefinition } from '@/schemas/assay';
 import { assayCodes, type AssayCode } from '@/schemas/common';
 import { parsePastedTrace } from '@/utils/pasted-trace';
@@ -53,7 +54,7 @@ export function RateCheck({ definitions }: { definitions: StoredAssayDefinition[
     };
     const parsed = calculationRequestSchema.safeParse(candidate);
     if (!parsed.success) {
-      for (const issue of parsed.error.issues) errors[issue.path.join('.')] ??= issue.message;
+      for (const issue of parsed.error.issues) errors[issue.path.join('.')] ??= besideField(issue.path.join('.'), issue.message);
     }
     setFieldErrors(errors);
     return Object.keys(errors).length === 0 && parsed.success ? parsed.data : null;
@@ -76,7 +77,7 @@ export function RateCheck({ definitions }: { definitions: StoredAssayDefinition[
         if (!byHand && result.window) setWindow({ fromS: String(result.window.fromS), toS: String(result.window.toS) });
       },
       onError: (err) => {
-        if (err instanceof ApiError) setFieldErrors(err.fields);
+        if (err instanceof ApiError) setFieldErrors(Object.fromEntries(Object.entries(err.fields).map(([field, message]) => [field, besideField(field, message)])));
       },
     });
   }
